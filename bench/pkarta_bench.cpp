@@ -1,0 +1,63 @@
+// Benchmarks (Google Benchmark). Figures are quoted in DEVELOPERS.md.
+#include <benchmark/benchmark.h>
+
+#include <random>
+
+#include "pkarta/equilibrium.h"
+#include "pkarta/mixture_builder.h"
+#include "pkarta/xml_input.h"
+
+namespace {
+
+using namespace pkarta;
+
+// A monoprotic weak base (pKa 8.3, dH 40 kJ/mol, S0 20 ug/mL with dH of solution 18 kJ/mol,
+// molar mass 320.4) added as free form at random doses 0.01-5 mg/mL to 25 mM KH2PO4 +
+// 25 mM Na2HPO4 at random temperatures 5-40 °C, Davies activities; some states saturate.
+Compound bench_base() {
+  Compound c;
+  c.id = "bench-base";
+  c.name = "benchmark base";
+  c.molar_mass_g_per_mol = 320.4;
+  c.system.id = c.id;
+  Pka p;
+  p.value = 8.3;
+  p.type = GroupType::kBase;
+  p.dH_kJ_per_mol = 40;
+  c.system.pkas.push_back(p);
+  c.has_intrinsic_solubility = true;
+  c.s0_mol_per_L = 20e-3 / 320.4;
+  c.s0_dH_kJ_per_mol = 18.0;
+  return c;
+}
+
+void closed_system_solve(benchmark::State& state) {
+  const Library lib = builtin_library();
+  const Compound base = bench_base();
+  std::mt19937_64 rng(42);
+  std::uniform_real_distribution<double> dose_mg(0.01, 5.0), temp(5.0, 40.0);
+  Mixture m;
+  add_reagent(m, lib, "KH2PO4", 0.025);
+  add_reagent(m, lib, "Na2HPO4", 0.025);
+  add_drug(m, lib, base, 1e-3, "free");
+  SolverOptions opt;
+  long evaluations = 0, saturated = 0, states = 0;
+  for (auto _ : state) {
+    m.temperature_C = temp(rng);
+    m.drug->dose_mol_per_L = dose_mg(rng) / 320.4;
+    EquilibriumModel model(m);
+    const StateSummary s = model.solve(opt);
+    benchmark::DoNotOptimize(s.pH);
+    evaluations += s.evaluations;
+    saturated += s.phase != 0;
+    ++states;
+  }
+  state.counters["evaluations_per_state"] = static_cast<double>(evaluations) / states;
+  state.counters["saturated_fraction"] = static_cast<double>(saturated) / states;
+  state.counters["states_per_s"] = benchmark::Counter(static_cast<double>(states), benchmark::Counter::kIsRate);
+}
+BENCHMARK(closed_system_solve);
+
+}  // namespace
+
+BENCHMARK_MAIN();

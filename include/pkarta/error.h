@@ -1,0 +1,36 @@
+// Input errors: the one exception type of the library, thrown only at the input boundary.
+#ifndef PKARTA_ERROR_H_
+#define PKARTA_ERROR_H_
+
+#include <stdexcept>
+#include <string>
+
+namespace pkarta {
+
+/// Where a piece of input came from: a file position (1-based line and column) or a
+/// command-line option. An empty file and zero line mean "no position known".
+struct SourceLocation {
+  std::string file;    ///< file path, or an option name such as "--dose"
+  int line = 0;        ///< 1-based; 0 when not known
+  int column = 0;      ///< 1-based; 0 when not known
+  /// "file:line:column" (or the shorter forms when parts are unknown).
+  std::string str() const;
+};
+
+/// Bad input: a malformed file, an unknown unit, a value out of range. The message is
+/// lower-case without a final period; what() gives "place: message".
+class InputError : public std::runtime_error {
+ public:
+  InputError(SourceLocation where, const std::string& message);
+  explicit InputError(const std::string& message) : InputError(SourceLocation{}, message) {}
+  const SourceLocation& where() const noexcept { return where_; }
+  const std::string& message() const noexcept { return message_; }
+
+ private:
+  SourceLocation where_;
+  std::string message_;
+};
+
+}  // namespace pkarta
+
+#endif  // PKARTA_ERROR_H_

@@ -1,0 +1,38 @@
+// Amounts with units, as accepted on the command line and in files.
+#ifndef PKARTA_UNITS_H_
+#define PKARTA_UNITS_H_
+
+#include <string>
+#include <string_view>
+
+namespace pkarta {
+
+/// Units of amount accepted everywhere: mol/L, mmol/L, mol/kg (molality), mg/mL, g/L,
+/// ug/mL (µg/mL also accepted), %w/v (g per 100 mL).
+enum class AmountUnit { kMolar, kMillimolar, kMicromolar, kMolal, kMgPerMl, kGPerL, kUgPerMl, kPercentWv };
+
+/// A value with its unit, as written by the user.
+struct Amount {
+  double value = 0.0;
+  AmountUnit unit = AmountUnit::kMolar;
+  bool is_mass_based() const;
+  /// Converts to mol/L. Mass units need the molar mass (g/mol); molality is converted with
+  /// c = m * rho_water(T) (dilute approximation: the solutes' own volume is ignored).
+  /// Throws InputError when a mass unit is used without a molar mass.
+  double to_mol_per_L(double molar_mass_g_per_mol, double temperature_C) const;
+};
+
+/// Parses "25mM", "0.025 M", "0.025mol/kg", "10mg/mL", "1.5g/L", "5ug/mL", "0.9%w/v".
+/// The number is read locale-independently and must be finite and >= 0.
+/// Throws InputError (without location; callers add it) naming the problem.
+Amount parse_amount(std::string_view text);
+
+/// Parses a finite number (whole string, locale-independent). Throws InputError.
+double parse_number(std::string_view text, std::string_view what);
+
+/// The unit as written in output ("mM", "mg/mL", ...).
+std::string unit_symbol(AmountUnit unit);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_UNITS_H_

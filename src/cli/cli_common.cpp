@@ -1,0 +1,173 @@
+#include "cli_common.h"
+
+#include <iostream>
+
+#include "pkarta/error.h"
+#include "pkarta/mixture_builder.h"
+#include "pkarta/xml_input.h"
+
+namespace pkarta::cli {
+
+void add_common_options(po::options_description& desc, CommonOptions& common) {
+  desc.add_options()
+      ("help,h", po::bool_switch(&common.help), "show this help")
+      ("format", po::value(&common.format)->default_value("text"), "output format: text, csv or json")
+      ("library", po::value(&common.library_files)->composing(),
+       "extra library XML file (adds or overrides built-in entries); may repeat");
+}
+
+po::variables_map parse(const std::vector<std::string>& args, const po::options_description& desc,
+                        const po::positional_options_description* positional) {
+  po::variables_map vm;
+  po::command_line_parser parser(args);
+  parser.options(desc).style(po::command_line_style::default_style &
+                             ~po::command_line_style::allow_guessing);
+  if (positional) parser.positional(*positional);
+  po::store(parser.run(), vm);
+  po::notify(vm);
+  return vm;
+}
+
+Library load_libraries(const CommonOptions& common) {
+  Library lib = builtin_library();
+  for (const std::string& f : common.library_files) {
+    Warnings w;
+    Library extra = load_library_file(f, &lib, &w);
+    for (const std::string& s : w) std::cerr << "pkarta: " << s << "\n";
+    lib.merge(extra);
+  }
+  return lib;
+}
+
+void check_format(const std::string& format, bool allow_csv) {
+  if (format == "text" || format == "json" || (allow_csv && format == "csv")) return;
+  throw InputError(SourceLocation{"--format", 0, 0},
+                   "unknown format \"" + format + "\", expected text, " +
+                       std::string(allow_csv ? "csv or json" : "or json"));
+}
+
+Amount option_amount(const std::string& option, const std::string& text) {
+  try {
+    return parse_amount(text);
+  } catch (const InputError& e) {
+    throw InputError(SourceLocation{option, 0, 0}, e.message());
+  }
+}
+
+double option_number(const std::string& option, const std::string& text, double lo, double hi) {
+  double v;
+  try {
+    v = parse_number(text, "value");
+  } catch (const InputError& e) {
+    throw InputError(SourceLocation{option, 0, 0}, e.message());
+  }
+  if (!(v >= lo && v <= hi)) {
+    throw InputError(SourceLocation{option, 0, 0},
+                     "value " + text + " is out of range, expected " + std::to_string(lo).substr(0, 6) +
+                         " to " + std::to_string(hi).substr(0, 6));
+  }
+  return v;
+}
+
+double option_temperature(const std::string& option, const std::string& text) {
+  return option_number(option, text, -10.0, 100.0);
+}
+
+std::pair<std::string, std::string> split_assignment(const std::string& option, const std::string& text) {
+  const auto eq = text.find('=');
+  if (eq == std::string::npos || eq == 0 || eq + 1 == text.size()) {
+    throw InputError(SourceLocation{option, 0, 0},
+                     "expected REAGENT=AMOUNT (e.g. KH2PO4=25mM), got \"" + text + "\"");
+  }
+  return {text.substr(0, eq), text.substr(eq + 1)};
+}
+
+Compound load_compound(const std::string& path, const Library& library) {
+  Warnings w;
+  Compound c = load_compound_file(path, library, &w);
+  for (const std::string& s : w) std::cerr << "pkarta: " << s << "\n";
+  return c;
+}
+
+void add_formulation_options(po::options_description& desc, FormulationOptions& f) {
+  desc.add_options()
+      ("compound", po::value(&f.compound_file), "compound XML file")
+      ("dose", po::value(&f.dose), "dose as an amount of the form weighed, e.g. 5mg/mL or 10mM")
+      ("form", po::value(&f.form)->default_value("free"), "form of the drug: free or a salt id")
+      ("add", po::value(&f.adds)->composing(), "reagent and amount, e.g. KH2PO4=25mM; may repeat")
+      ("medium", po::value(&f.medium), "library medium to start from (e.g. saline-0.9)")
+      ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C")
+      ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)");
+}
+
+Mixture build_formulation(const FormulationOptions& f, const Library& library,
+                          std::vector<std::string>* inputs, Compound* compound_out) {
+  Mixture m;
+  m.temperature_C = option_temperature("--temp", f.temperature);
+  m.activity = f.ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
+  if (!f.medium.empty()) {
+    try {
+      library.medium(f.medium);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--medium", 0, 0}, e.message());
+    }
+    add_medium(m, library, f.medium);
+    if (inputs) inputs->push_back("medium " + f.medium);
+  }
+  for (const std::string& a : f.adds) {
+    const auto [id, amount_text] = split_assignment("--add", a);
+    const Amount amount = option_amount("--add", amount_text);
+    try {
+      const double c = reagent_conc_mol_per_L(library, id, amount, m.temperature_C);
+      add_reagent(m, library, id, c);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--add", 0, 0}, e.message());
+    }
+    if (inputs) inputs->push_back(id + " " + amount_text);
+  }
+  if (!f.compound_file.empty()) {
+    if (f.dose.empty()) throw InputError(SourceLocation{"--dose", 0, 0}, "--compound needs --dose");
+    const Compound c = load_compound(f.compound_file, library);
+    const Amount dose = option_amount("--dose", f.dose);
+    double conc;
+    try {
+      conc = dose_conc_mol_per_L(library, c, f.form, dose, m.temperature_C);
+      add_drug(m, library, c, conc, f.form);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{e.where().file.empty() ? "--form" : e.where().file,
+                                      e.where().line, e.where().column},
+                       e.message());
+    }
+    if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + f.dose);
+    if (compound_out) *compound_out = c;
+  } else if (!f.dose.empty()) {
+    throw InputError(SourceLocation{"--dose", 0, 0}, "--dose needs --compound");
+  }
+  return m;
+}
+
+void error(const std::string& message) { std::cerr << "pkarta: " << message << "\n"; }
+
+int guarded(const std::function<int()>& body) {
+  try {
+    return body();
+  } catch (const InputError& e) {
+    error(e.what());
+    return kExitBadInput;
+  } catch (const po::error& e) {
+    error(std::string(e.what()) + " (see --help)");
+    return kExitBadInput;
+  } catch (const std::bad_alloc&) {
+    error("out of memory");
+    return kExitRefused;
+  } catch (const std::exception& e) {
+    error(std::string("internal error: ") + e.what());
+    return kExitRefused;
+  }
+}
+
+void print_help(std::ostream& out, const std::string& usage, const po::options_description& desc) {
+  out << "usage: " << usage << "\n\n" << desc << "\n";
+}
+
+}  // namespace pkarta::cli

@@ -1,0 +1,85 @@
+// Shared pieces of the command-line layer: exit codes, common options, error reporting.
+#ifndef PKARTA_CLI_COMMON_H_
+#define PKARTA_CLI_COMMON_H_
+
+#include <boost/program_options.hpp>
+
+#include <functional>
+#include <iosfwd>
+#include <string>
+#include <vector>
+
+#include "pkarta/equilibrium.h"
+#include "pkarta/model.h"
+#include "pkarta/units.h"
+
+namespace pkarta::cli {
+
+namespace po = boost::program_options;
+
+/// Exit codes (DESIGN.md section 4).
+enum ExitCode : int {
+  kExitOk = 0,       ///< success; a result such as "not achievable" is still a success
+  kExitRefused = 1,  ///< computed but not usable (e.g. no convergence)
+  kExitBadInput = 2  ///< bad usage or bad file
+};
+
+/// Options every command takes.
+struct CommonOptions {
+  std::string format = "text";
+  std::vector<std::string> library_files;
+  bool help = false;
+};
+
+void add_common_options(po::options_description& desc, CommonOptions& common);
+
+/// Parses args (without the command word); throws po::error on bad usage.
+po::variables_map parse(const std::vector<std::string>& args, const po::options_description& desc,
+                        const po::positional_options_description* positional = nullptr);
+
+/// The built-in library plus every --library file (later files override).
+Library load_libraries(const CommonOptions& common);
+
+/// Checks --format; throws InputError naming the option.
+void check_format(const std::string& format, bool allow_csv = true);
+
+/// Amount from an option value; errors name the option.
+Amount option_amount(const std::string& option, const std::string& text);
+/// Number in [lo, hi] from an option value; errors name the option.
+double option_number(const std::string& option, const std::string& text, double lo, double hi);
+/// Temperature option (°C, -10..100).
+double option_temperature(const std::string& option, const std::string& text);
+
+/// Splits "A=B" of --add; errors name the option.
+std::pair<std::string, std::string> split_assignment(const std::string& option, const std::string& text);
+
+/// Loads a compound file against a library, printing located warnings to stderr.
+Compound load_compound(const std::string& path, const Library& library);
+
+/// What `mix` and `dilute` share: the formulation options.
+struct FormulationOptions {
+  std::string compound_file;
+  std::string dose;
+  std::string form = "free";
+  std::vector<std::string> adds;
+  std::string medium;
+  std::string temperature = "25";
+  bool ideal = false;
+};
+void add_formulation_options(po::options_description& desc, FormulationOptions& f);
+/// Builds the mixture; `inputs` receives a readable list of the contents.
+Mixture build_formulation(const FormulationOptions& f, const Library& library,
+                          std::vector<std::string>* inputs, Compound* compound_out = nullptr);
+
+/// Runs a command body, mapping exceptions to messages on stderr and exit codes.
+int guarded(const std::function<int()>& body);
+
+/// Prints "pkarta: message" on stderr.
+void error(const std::string& message);
+
+/// Usage line and option help.
+void print_help(std::ostream& out, const std::string& usage, const po::options_description& desc);
+
+}  // namespace pkarta::cli
+
+#endif  // PKARTA_CLI_COMMON_H_

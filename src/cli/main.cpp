@@ -1,0 +1,63 @@
+// pkarta: command-line entry point. Parses the command word and hands over.
+#include <cstring>
+#include <iostream>
+#include <string>
+#include <vector>
+
+#include "cli_common.h"
+#include "commands.h"
+
+namespace {
+
+struct Command {
+  const char* name;
+  int (*run)(const pkarta::cli::Args&);
+  const char* summary;
+};
+
+const Command kCommands[] = {
+    {"mix", pkarta::cli::run_mix, "closed-system equilibrium of reagents and a drug dose"},
+    {"profile", pkarta::cli::run_profile, "pH-solubility profile with salt limits and pHmax"},
+    {"classify", pkarta::cli::run_classify, "solubility classification over pH 1.2-6.8 at 37 °C (ICH M9)"},
+    {"screen", pkarta::cli::run_screen, "buffer strength needed to hold a target pH at the dose"},
+    {"recipe", pkarta::cli::run_recipe, "bench recipe for a buffer at a pH and strength"},
+    {"fit", pkarta::cli::run_fit, "fit pKa and intrinsic solubility to measured solubilities"},
+    {"dilute", pkarta::cli::run_dilute, "precipitation risk of a formulation diluted into a medium"},
+    {"report", pkarta::cli::run_report, "self-contained HTML preformulation report with CSV tables"},
+    {"check", pkarta::cli::run_check, "validate a compound or library file"},
+    {"library", pkarta::cli::run_library, "list or show entries of the library"},
+    {"demo", pkarta::cli::run_demo, "run the demonstration on the invented demo compounds"},
+};
+
+void usage(std::ostream& out) {
+  out << "usage: pkarta COMMAND [OPTIONS]   (pkarta COMMAND --help for its options)\n\n"
+         "pH, buffer and solubility calculations for formulation scientists.\n\ncommands:\n";
+  for (const Command& c : kCommands) {
+    out << "  " << c.name << std::string(10 - std::strlen(c.name), ' ') << c.summary << "\n";
+  }
+  out << "\nexit codes: 0 ok, 1 computed but not usable, 2 bad input\n";
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  if (argc < 2) {
+    usage(std::cerr);
+    return pkarta::cli::kExitBadInput;
+  }
+  const std::string cmd = argv[1];
+  if (cmd == "--help" || cmd == "-h" || cmd == "help") {
+    usage(std::cout);
+    return 0;
+  }
+  if (cmd == "--version") {
+    std::cout << "pkarta " << PKARTA_VERSION << "\n";
+    return 0;
+  }
+  const pkarta::cli::Args args(argv + 2, argv + argc);
+  for (const Command& c : kCommands) {
+    if (cmd == c.name) return c.run(args);
+  }
+  pkarta::cli::error("unknown command '" + cmd + "' (see pkarta --help)");
+  return pkarta::cli::kExitBadInput;
+}

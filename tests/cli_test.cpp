@@ -1,0 +1,188 @@
+// The command-line front end: exit codes and messages for good and bad input.
+#include <gtest/gtest.h>
+#include <sys/wait.h>
+
+#include <cstdio>
+#include <cstdlib>
+#include <fstream>
+#include <sstream>
+#include <string>
+
+namespace {
+
+struct RunResult {
+  int code = -1;
+  std::string out;
+  std::string err;
+};
+
+std::string slurp(const std::string& path) {
+  std::ifstream in(path);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+std::string temp_dir() {
+  static std::string dir = [] {
+    char tmpl[] = "/tmp/pkarta-cli-XXXXXX";
+    return std::string(mkdtemp(tmpl));
+  }();
+  return dir;
+}
+
+RunResult run(const std::string& args) {
+  const std::string out = temp_dir() + "/out.txt", err = temp_dir() + "/err.txt";
+  const std::string cmd = std::string("cd ") + PKARTA_SOURCE_DIR + " && " + PKARTA_BINARY + " " + args +
+                          " >" + out + " 2>" + err;
+  const int status = std::system(cmd.c_str());
+  RunResult r;
+  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+  r.out = slurp(out);
+  r.err = slurp(err);
+  return r;
+}
+
+std::string write_file(const std::string& name, const std::string& text) {
+  const std::string path = temp_dir() + "/" + name;
+  std::ofstream(path) << text;
+  return path;
+}
+
+TEST(Cli, HelpAndVersionSucceedOnStdout) {
+  EXPECT_EQ(run("--help").code, 0);
+  EXPECT_EQ(run("--version").code, 0);
+  const RunResult r = run("mix --help");
+  EXPECT_EQ(r.code, 0);
+  EXPECT_NE(r.out.find("--compound"), std::string::npos);
+}
+
+TEST(Cli, MixPrintsPhOfAPhosphateBuffer) {
+  const RunResult r = run("mix --add KH2PO4=0.025mol/kg --add Na2HPO4=0.025mol/kg --format json");
+  ASSERT_EQ(r.code, 0) << r.err;
+  EXPECT_NE(r.out.find("\"pH\": 6.87"), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("\"capacity_mol_per_L_per_pH\""), std::string::npos);
+}
+
+TEST(Cli, MixWithTheDemoBase) {
+  const RunResult r = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride "
+                    "--add KH2PO4=25mM --add Na2HPO4=25mM --format csv");
+  ASSERT_EQ(r.code, 0) << r.err;
+  EXPECT_NE(r.out.find("drug_dissolved"), std::string::npos);
+}
+
+TEST(Cli, CheckAcceptsTheShippedFiles) {
+  for (const char* f : {"compounds/library.xml", "compounds/demo-base.xml", "compounds/demo-acid.xml",
+                        "compounds/demo-ampholyte.xml"}) {
+    const RunResult r = run(std::string("check ") + f);
+    EXPECT_EQ(r.code, 0) << f << ": " << r.err;
+  }
+}
+
+// Bad options: each exits 2 with a message naming the option and the problem.
+struct BadOption {
+  const char* args;
+  const char* expect;
+};
+
+TEST(Cli, BadOptionsExitTwoWithAMessage) {
+  const BadOption cases[] = {
+      {"frobnicate", "unknown command"},
+      {"mix --add KH2PO4", "expected REAGENT=AMOUNT"},
+      {"mix --add KH2PO4=25", "--add: amount \"25\" has no unit"},
+      {"mix --add KH2PO4=25 parsecs", "--add"},
+      {"mix --add KH2PO4=25furlongs", "unknown unit"},
+      {"mix --add NoSuchSalt=25mM", "unknown reagent 'NoSuchSalt'"},
+      {"mix --add KH2PO4=-5mM", "negative"},
+      {"mix --add KH2PO4=25mM --temp hot", "--temp: value is not a number"},
+      {"mix --add KH2PO4=25mM --temp 400", "--temp: value 400 is out of range"},
+      {"mix --add KH2PO4=25mM --format xml", "--format: unknown format"},
+      {"mix --medium nowhere", "--medium: unknown medium 'nowhere'"},
+      {"mix", "nothing to mix"},
+      {"mix --dose 5mg/mL", "--dose needs --compound"},
+      {"mix --compound compounds/demo-base.xml", "--compound needs --dose"},
+      {"mix --compound compounds/demo-base.xml --dose 5", "--dose: amount \"5\" has no unit"},
+      {"mix --compound compounds/demo-base.xml --dose 5mg/mL --form tartrate", "has no salt 'tartrate'"},
+      {"mix --compound /no/such/file.xml --dose 5mg/mL", "/no/such/file.xml: cannot read file"},
+      {"mix --bogus", "unrecognised option"},
+      {"mix --add", "--add"},
+      {"library show nothing-like-this", "no library entry"},
+      {"library dance", "unknown library action"},
+      {"check", "usage"},
+      {"check /no/such/file.xml", "cannot read file"},
+      {"mix --add KH2PO4=25mM --library /no/such/lib.xml", "cannot read file"},
+  };
+  for (const BadOption& c : cases) {
+    const RunResult r = run(c.args);
+    EXPECT_EQ(r.code, 2) << c.args << "\n" << r.err;
+    EXPECT_NE(r.err.find(c.expect), std::string::npos) << c.args << "\nstderr: " << r.err;
+    EXPECT_TRUE(r.out.empty() || r.code != 2) << c.args;
+  }
+}
+
+// Bad files: each exits 2 with file:line:column and what was expected.
+struct BadFile {
+  const char* text;
+  const char* expect;  // substring of the message after "file:"
+};
+
+TEST(Cli, BadCompoundFilesNameTheLineAndProblem) {
+  const BadFile cases[] = {
+      {"<compound id='x' name='x' molar-mass='300'>\n<pka value='8' type='base'/>\n", "malformed XML"},
+      {"<drug/>", ":1:1: root element is <drug>, expected <compound>"},
+      {"<compound name='x' molar-mass='300'/>", ":1:1: <compound> needs attribute 'id'"},
+      {"<compound id='x' name='x' molar-mass='abc'/>", "attribute 'molar-mass' is not a number"},
+      {"<compound id='x' name='x' molar-mass='300'>\n  <pka type='base'/>\n</compound>", ":2:3: <pka> needs attribute 'value'"},
+      {"<compound id='x' name='x' molar-mass='300'>\n  <pka value='8' type='weird'/>\n</compound>", "expected acid or base"},
+      {"<compound id='x' name='x' molar-mass='300'>\n  <pka value='42' type='base'/>\n</compound>", "attribute 'value' of <pka> is 42, expected -5 to 20"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n <pka value='3' type='base'/>\n"
+       " <intrinsic-solubility value='1' unit='mg/mL'/>\n</compound>", ":3:2: pKa values must be in ascending order"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n</compound>", "needs an <intrinsic-solubility>"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <intrinsic-solubility value='0' unit='mg/mL'/>\n</compound>", ":2:2: intrinsic solubility must be > 0"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <intrinsic-solubility value='-1' unit='mg/mL'/>\n</compound>", "intrinsic solubility must be > 0"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <intrinsic-solubility value='1' unit='stone'/>\n</compound>", "unknown unit"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+       " <salt id='hcl' counterion='Xy-' ksp='1e-3'/>\n</compound>", ":4:2: counterion 'Xy-' of salt 'hcl' is not an ion of the library"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+       " <salt id='hcl' counterion='Cl-'/>\n</compound>", "needs exactly one of 'ksp' or 'solubility-in-water'"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+       " <salt id='hcl' counterion='Cl-' ksp='-1'/>\n</compound>", "ksp must be > 0"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+       " <salt id='calcium' counterion='Ca2+' ksp='1e-3'/>\n</compound>", "only 1:1 salts"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+       " <salt id='sodium' counterion='Na+' ksp='1e-3'/>\n</compound>", "no species of charge -1"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='6' type='base'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+       " <salt id='hcl' counterion='Cl-' solubility-in-water='100 mg/mL'/>\n</compound>", "would disproportionate"},
+      {"<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+       " <measured-solubility><point pH='2' value='-3' unit='mg/mL'/></measured-solubility>\n</compound>", "measured solubility must be > 0"},
+  };
+  int i = 0;
+  for (const BadFile& c : cases) {
+    const std::string path = write_file("bad" + std::to_string(i++) + ".xml", c.text);
+    const RunResult r = run("check " + path);
+    EXPECT_EQ(r.code, 2) << c.text << "\n" << r.err;
+    EXPECT_NE(r.err.find(path), std::string::npos) << r.err;
+    EXPECT_NE(r.err.find(c.expect), std::string::npos) << c.text << "\nstderr: " << r.err;
+  }
+}
+
+TEST(Cli, BadLibraryFilesNameTheLineAndProblem) {
+  const BadFile cases[] = {
+      {"<library>\n <system id='s'/>\n</library>", ":2:2: <system> 's' has no <pka>"},
+      {"<library>\n <reagent id='r' formula='Qq'><gives ion='Na+'/></reagent>\n</library>", "unknown element 'Qq'"},
+      {"<library>\n <reagent id='r' formula='NaCl'><gives ion='Zz+'/></reagent>\n</library>", ":2:33: unknown ion 'Zz+'"},
+      {"<library>\n <buffer id='b' system='nothing'/>\n</library>", "unknown system 'nothing'"},
+      {"<library>\n <medium id='m'><add reagent='NaCl' amount='9'/></medium>\n</library>", "has no unit"},
+      {"<library>\n <ion id='Q+' charge='1'/>\n</library>", "needs a 'formula' or a 'molar-mass'"},
+      {"<library>\n <buffer id='b' system='phosphate' routes='rectal'/>\n</library>", "unknown route 'rectal'"},
+  };
+  int i = 0;
+  for (const BadFile& c : cases) {
+    const std::string path = write_file("badlib" + std::to_string(i++) + ".xml", c.text);
+    const RunResult r = run("check " + path);
+    EXPECT_EQ(r.code, 2) << c.text << "\n" << r.err;
+    EXPECT_NE(r.err.find(c.expect), std::string::npos) << c.text << "\nstderr: " << r.err;
+  }
+}
+
+}  // namespace
