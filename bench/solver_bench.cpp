@@ -60,4 +60,3 @@ BENCHMARK(closed_system_solve);
 
 }  // namespace
 
-BENCHMARK_MAIN();
