@@ -1,5 +1,6 @@
 # Thin wrapper around CMake. `make demo` runs the demo, `make test` runs every test.
 BUILD ?= build
+MAKEFLAGS += --no-print-directory
 JOBS ?= $(shell nproc 2>/dev/null || echo 2)
 PACKAGES := cmake g++ make libboost-program-options-dev libpugixml-dev libeigen3-dev \
             libgtest-dev libgmock-dev libbenchmark-dev nlohmann-json3-dev libxml2-utils

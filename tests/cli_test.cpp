@@ -186,3 +186,25 @@ TEST(Cli, BadLibraryFilesNameTheLineAndProblem) {
 }
 
 }  // namespace
+
+namespace {
+
+// The shipped XML Schemas accept the shipped files and reject a broken one (xmllint from
+// libxml2-utils, installed by the Makefile's package check).
+TEST(Schema, ShippedFilesValidateAgainstTheXsd) {
+  const std::string src = PKARTA_SOURCE_DIR;
+  auto valid = [&](const std::string& schema, const std::string& file) {
+    const std::string cmd = "xmllint --noout --schema " + src + "/compounds/schema/" + schema + " " + file +
+                            " >/dev/null 2>&1";
+    return std::system(cmd.c_str()) == 0;
+  };
+  EXPECT_TRUE(valid("library.xsd", src + "/compounds/library.xml"));
+  for (const char* f : {"demo-base.xml", "demo-acid.xml", "demo-ampholyte.xml"}) {
+    EXPECT_TRUE(valid("compound.xsd", src + "/compounds/" + f)) << f;
+  }
+  const std::string broken = write_file("broken.xml",
+      "<compound id='x' name='x' molar-mass='300'><pka type='base'/></compound>");
+  EXPECT_FALSE(valid("compound.xsd", broken));
+}
+
+}  // namespace
