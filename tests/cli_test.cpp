@@ -71,6 +71,19 @@ TEST(Cli, MixWithTheDemoBase) {
   EXPECT_NE(r.out.find("drug_dissolved"), std::string::npos);
 }
 
+TEST(Cli, MixComparesSeveralTemperatures) {
+  // Phosphate 0.025/0.025 mol/kg: 6.951 (5 °C), 6.865 (25 °C), 6.841 (37 °C) (IUPAC 2002 [memory];
+  // Ph. Eur. 5.0 Table 2.2.3.-2: 6.87 at 25 °C). The text table lists the three states.
+  const RunResult r = run("mix --add KH2PO4=0.025mol/kg --add Na2HPO4=0.025mol/kg --temp 5,25,37 --format csv");
+  ASSERT_EQ(r.code, 0) << r.err;
+  EXPECT_NE(r.out.find("5.0,6.96"), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("25.0,6.87"), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("37.0,6.85"), std::string::npos) << r.out;
+  const RunResult j = run("mix --add KH2PO4=25mM --temp 5,37 --format json");
+  ASSERT_EQ(j.code, 0) << j.err;
+  EXPECT_NE(j.out.find("\"states\""), std::string::npos);
+}
+
 TEST(Cli, CheckAcceptsTheShippedFiles) {
   for (const char* f : {"compounds/library.xml", "compounds/demo-base.xml", "compounds/demo-acid.xml",
                         "compounds/demo-ampholyte.xml"}) {

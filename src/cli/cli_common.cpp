@@ -96,7 +96,7 @@ void add_formulation_options(po::options_description& desc, FormulationOptions& 
       ("form", po::value(&f.form)->default_value("free"), "form of the drug: free or a salt id")
       ("add", po::value(&f.adds)->composing(), "reagent and amount, e.g. KH2PO4=25mM; may repeat")
       ("medium", po::value(&f.medium), "library medium to start from (e.g. saline-0.9)")
-      ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C")
+      ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C (mix: a list such as 5,25,37 compares them)")
       ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)");
 }
 

@@ -1,10 +1,73 @@
 #include <iostream>
+#include <sstream>
+
+#include "pkarta/format.h"
 
 #include "cli_common.h"
 #include "commands.h"
 #include "pkarta/mix.h"
 
 namespace pkarta::cli {
+
+namespace {
+
+// Several temperatures: a compact comparison (text, csv) or {"states": [...]} (json).
+int run_mix_temperatures(FormulationOptions f, const Library& lib, const std::vector<std::string>& temps,
+                         const std::string& format) {
+  std::vector<MixResult> results;
+  std::vector<std::string> inputs;
+  for (const std::string& t : temps) {
+    f.temperature = t;
+    inputs.clear();
+    const Mixture m = build_formulation(f, lib, &inputs);
+    results.push_back(analyse_mix(m, inputs));
+    if (!results.back().equilibrium.usable()) {
+      error(results.back().equilibrium.message + " at " + t + " C");
+      return static_cast<int>(kExitRefused);
+    }
+  }
+  if (format == "json") {
+    std::cout << "{\"states\": [\n";
+    for (std::size_t i = 0; i < results.size(); ++i) {
+      std::ostringstream one;
+      write_mix_json(results[i], one);
+      std::string text = one.str();
+      while (!text.empty() && text.back() == '\n') text.pop_back();
+      std::cout << text << (i + 1 < results.size() ? ",\n" : "\n");
+    }
+    std::cout << "]}\n";
+    return 0;
+  }
+  const bool drug = results.front().equilibrium.drug.has_value();
+  std::vector<std::string> head = {"temperature (°C)", "pH", "ionic strength (mol/L)",
+                                   "capacity (mol/L per pH)", "osmolarity (mOsm/L)"};
+  if (drug) {
+    head.push_back("drug dissolved (mg/mL)");
+    head.push_back("solid");
+  }
+  TextTable t(head);
+  if (format == "csv") write_csv_row(std::cout, head);
+  for (const MixResult& r : results) {
+    const Equilibrium& e = r.equilibrium;
+    std::vector<std::string> row = {fixed(e.temperature_C, 1), fixed(e.pH, 3), sig(e.ionic_strength_mol_per_L, 4),
+                                    sig(r.capacity_mol_per_L_per_pH, 4), fixed(e.osmolarity_mOsm_per_L, 1)};
+    if (drug) {
+      row.push_back(sig(e.drug->dissolved_mg_per_mL, 4));
+      row.push_back(e.drug->solid);
+    }
+    if (format == "csv") write_csv_row(std::cout, row);
+    else t.add_row(row);
+  }
+  if (format == "csv") return 0;
+  std::cout << "Closed-system equilibrium at " << temps.size() << " temperatures\n  contents: ";
+  for (std::size_t i = 0; i < inputs.size(); ++i) std::cout << (i ? ", " : "") << inputs[i];
+  std::cout << "\n\n";
+  t.write(std::cout);
+  std::cout << "\n(give one --temp for the species table)\n" << caution_text() << "\n";
+  return 0;
+}
+
+}  // namespace
 
 int run_mix(const Args& args) {
   return guarded([&] {
@@ -23,6 +86,15 @@ int run_mix(const Args& args) {
     }
     check_format(common.format);
     const Library lib = load_libraries(common);
+    // --temp may list several temperatures (e.g. 5,25,37): one state each, same contents.
+    std::vector<std::string> temps;
+    for (std::size_t start = 0;;) {
+      const std::size_t comma = f.temperature.find(',', start);
+      temps.push_back(f.temperature.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
+      if (comma == std::string::npos) break;
+      start = comma + 1;
+    }
+    if (temps.size() > 1) return run_mix_temperatures(f, lib, temps, common.format);
     std::vector<std::string> inputs;
     const Mixture m = build_formulation(f, lib, &inputs);
     if (m.systems.empty() && m.ions.empty() && !m.drug) {
