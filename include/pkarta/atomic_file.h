@@ -1,0 +1,31 @@
+// Writing output files so that a reader never sees half of one, and inputs are never lost.
+#ifndef PKARTA_ATOMIC_FILE_H_
+#define PKARTA_ATOMIC_FILE_H_
+
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace pkarta {
+
+/// Writes `content` to `path` through a temporary file in the same folder, flushed and then
+/// renamed over `path` (rename is atomic within one file system on POSIX), so `path` holds
+/// either its old content or the whole new one. The new file gets mode 0666 less the umask.
+///
+/// Throws InputError naming `path` when it is the same file as one of `inputs_to_protect`
+/// ("refusing to overwrite the input file compounds/x.xml"), and std::system_error when the
+/// folder is missing or a write fails; its what() reads
+/// "cannot write reports/x.html: No space left on device". The temporary file is removed on
+/// failure.
+///
+/// Example: write_file_atomically("reports/demo.html", html, {"compounds/demo-base.xml"});
+void write_file_atomically(const std::string& path, std::string_view content,
+                           const std::vector<std::string>& inputs_to_protect = {});
+
+/// Throws InputError when `path` names an existing file that is one of `inputs`
+/// (same file after resolving links and relative paths).
+void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::string>& inputs);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_ATOMIC_FILE_H_
