@@ -14,6 +14,10 @@ constexpr int kGammaOffset = 16;  // gamma_ table covers charges -16..+16
 constexpr double kPhLow = -3.0;   // bracket of every solve: charge balance > 0 here ...
 constexpr double kPhHigh = 17.0;  // ... and < 0 here, for totals up to 10 mol/L
 constexpr double kEps = 1e-12;    // relative slack of the phase-consistency checks
+// Largest relative charge residual of a returned state (DESIGN.md section 2). The bracketed
+// solve also stops where the charge balance jumps across zero without a root, which happens
+// where no set of solids the model covers (free form and at most one salt) is consistent.
+constexpr double kMaxChargeResidual = 1e-10;
 }  // namespace
 
 void Mixture::add_ion(const std::string& id, int charge, double amount_mol_per_L) {
@@ -396,6 +400,7 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
   };
   double x = inner(pH_guess);
   bool converged = ok;
+  bool diverged = false;
   if (!ideal_ && ok) {
     // Fixed point I = I(pH(I)), accelerated by the secant method on g(I) = I(pH(I)) - I.
     double i_prev = ionic_strength_, g_prev = ev.ionic_strength - ionic_strength_;
@@ -405,8 +410,14 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
       set_ionic_strength(i_cur);
       x = inner(x);
       if (!ok) break;
+      if (!std::isfinite(ev.ionic_strength)) {  // activity coefficients overflow
+        diverged = true;
+        break;
+      }
       const double g = ev.ionic_strength - i_cur;
-      if (std::fabs(g) <= options.ionic_strength_rel_tolerance * i_cur + 1e-300) {
+      // Where solids pin the pH (free form and salt together), I(pH) is as uncertain as the
+      // charge balance itself: accept a change of I within a few times the charge residual.
+      if (std::fabs(g) <= options.ionic_strength_rel_tolerance * i_cur + 4.0 * std::fabs(ev.charge) + 1e-300) {
         converged = true;
         break;
       }
@@ -422,13 +433,15 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
       i_cur = i_next;
     }
   }
-  out.converged = converged && std::isfinite(x);
   out.pH = x;
-  out.ionic_strength_mol_per_L = ionic_strength_;
+  out.ionic_strength_mol_per_L =
+      diverged ? std::numeric_limits<double>::infinity() : ionic_strength_;
   out.drug_dissolved_mol_per_L = ev.drug.dissolved;
   out.phase = ev.drug.phase;
   out.salt_index = ev.drug.salt;
   out.charge_residual_rel = ev.abs_sum > 0 ? std::fabs(ev.charge) / ev.abs_sum : 0.0;
+  out.converged = converged && std::isfinite(x) && std::isfinite(ionic_strength_) &&
+                  out.charge_residual_rel <= kMaxChargeResidual;
   return out;
 }
 
@@ -452,6 +465,25 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
   if (!s.converged) {
     r.termination = Termination::kMaxIterations;
     r.message = "the equilibrium did not converge";
+    if (!std::isfinite(s.ionic_strength_mol_per_L) || !std::isfinite(s.pH) ||
+        !std::isfinite(s.charge_residual_rel)) {
+      r.termination = Termination::kNumericalFailure;
+      r.message = "the activity corrections diverge: the ionic strength grows beyond the range of "
+                  "the Davies equation (the mixture is too concentrated for the model)";
+      r.pH = 0.0;
+      r.ionic_strength_mol_per_L = 0.0;
+    } else if (!(s.charge_residual_rel <= kMaxChargeResidual) &&
+               (s.pH <= kPhLow + 1e-6 || s.pH >= kPhHigh - 1e-6)) {
+      r.message = "the pH would lie outside " + std::to_string(static_cast<int>(kPhLow)) + " to " +
+                  std::to_string(static_cast<int>(kPhHigh)) +
+                  " (the mixture is too concentrated for the model)";
+    } else if (mixture.drug && mixture.drug->allow_solids && mixture.drug->compound.salts.size() > 1 &&
+        !(s.charge_residual_rel <= kMaxChargeResidual)) {
+      r.termination = Termination::kNumericalFailure;
+      r.message = "no equilibrium with the solids the model covers (the free form and at most one "
+                  "salt): more than one salt of '" + mixture.drug->compound.id +
+                  "' would precipitate in this mixture";
+    }
     return r;
   }
   const EquilibriumModel::Evaluation ev = model.evaluate(s.pH);
