@@ -1,12 +1,197 @@
-// Placeholder until the screen analysis lands.
+// `pkarta screen`: the weakest buffer holding a target pH once the dose is dissolved.
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cstdio>
+#include <filesystem>
+#include <iostream>
+
 #include "cli_common.h"
 #include "commands.h"
+#include "pkarta/error.h"
+#include "pkarta/mixture_builder.h"
+#include "pkarta/screen.h"
 
 namespace pkarta::cli {
 
-int run_screen(const Args&) {
-  error("the 'screen' command is not available in this build");
-  return kExitRefused;
+namespace {
+
+std::vector<std::string> split_list(const std::string& text) {
+  std::vector<std::string> out;
+  std::string cur;
+  for (char c : text + ",") {
+    if (c == ',') {
+      if (!cur.empty()) out.push_back(cur);
+      cur.clear();
+    } else if (c != ' ') {
+      cur += c;
+    }
+  }
+  return out;
+}
+
+// Compound files: each --compound is a file or a folder (its *.xml files, by name).
+std::vector<std::string> compound_paths(const std::vector<std::string>& given) {
+  namespace fs = std::filesystem;
+  std::vector<std::string> out;
+  for (const std::string& g : given) {
+    std::error_code ec;
+    if (fs::is_directory(g, ec)) {
+      std::vector<std::string> found;
+      for (const fs::directory_entry& e : fs::directory_iterator(g, ec)) {
+        if (e.is_regular_file() && e.path().extension() == ".xml") found.push_back(e.path().string());
+      }
+      if (ec) throw InputError(SourceLocation{"--compound", 0, 0}, "cannot read folder " + g);
+      std::sort(found.begin(), found.end());
+      if (found.empty()) {
+        throw InputError(SourceLocation{"--compound", 0, 0}, "folder " + g + " holds no .xml compound file");
+      }
+      out.insert(out.end(), found.begin(), found.end());
+    } else {
+      out.push_back(g);
+    }
+  }
+  return out;
+}
+
+// A progress bar on stderr, drawn only when stderr is a terminal and the work is expected to
+// take more than about a second.
+class ProgressBar {
+ public:
+  ProgressBar() : enabled_(isatty(STDERR_FILENO) == 1), start_(std::chrono::steady_clock::now()) {}
+  ~ProgressBar() { finish(); }
+  /// Clears the bar (before the results are written).
+  void finish() {
+    if (drawn_) std::cerr << "\r" << std::string(60, ' ') << "\r" << std::flush;
+    drawn_ = false;
+    enabled_ = false;
+  }
+  void update(std::size_t done, std::size_t total) {
+    if (!enabled_ || total == 0) return;
+    const auto now = std::chrono::steady_clock::now();
+    const double elapsed = std::chrono::duration<double>(now - start_).count();
+    const double expected = done > 0 ? elapsed * static_cast<double>(total) / done : 0.0;
+    if (!drawn_ && (elapsed < 0.2 || expected < 1.0)) return;
+    if (drawn_ && done < total && std::chrono::duration<double>(now - last_).count() < 0.1) return;
+    last_ = now;
+    drawn_ = true;
+    const int width = 30;
+    const int filled = static_cast<int>(width * done / total);
+    std::cerr << "\rscreening [" << std::string(filled, '#') << std::string(width - filled, '.') << "] "
+              << done << "/" << total << std::flush;
+  }
+
+ private:
+  bool enabled_;
+  bool drawn_ = false;
+  std::chrono::steady_clock::time_point start_;
+  std::chrono::steady_clock::time_point last_;
+};
+
+}  // namespace
+
+int run_screen(const Args& args) {
+  return guarded([&] {
+    CommonOptions common;
+    std::vector<std::string> compounds;
+    std::string dose, form = "free", target, tolerance = "0.1", buffers = "all", route = "any",
+                temp = "25", dose_range, threads = "0";
+    po::options_description desc("screen options");
+    desc.add_options()
+        ("compound", po::value(&compounds)->composing(),
+         "compound XML file, or a folder of them; may repeat (batch)")
+        ("dose", po::value(&dose), "dose as an amount of the form weighed, e.g. 5mg/mL or 10mM")
+        ("form", po::value(&form)->default_value("free"), "form of the drug: free or a salt id")
+        ("target-ph", po::value(&target), "pH to hold, 0-14")
+        ("tolerance", po::value(&tolerance)->default_value("0.1"), "allowed pH drift after the dose, > 0")
+        ("buffers", po::value(&buffers)->default_value("all"), "all, or buffer ids separated by commas")
+        ("route", po::value(&route)->default_value("any"), "oral, parenteral, ophthalmic, topical or any")
+        ("temp", po::value(&temp)->default_value("25"), "run temperature, °C")
+        ("dose-range", po::value(&dose_range), "also report the worst pH for the dose +/- this (10% or 0.1)")
+        ("threads", po::value(&threads)->default_value("0"), "worker threads for a batch (0: all cores)");
+    add_common_options(desc, common);
+    parse(args, desc);
+    if (common.help) {
+      print_help(std::cout,
+                 "pkarta screen --compound F --dose AMOUNT [--form free|SALT] --target-ph P "
+                 "[--tolerance 0.1] [--buffers all|ID,ID] [--route oral|parenteral|ophthalmic|any] "
+                 "[--temp C] [--dose-range 10%]",
+                 desc);
+      return 0;
+    }
+    check_format(common.format);
+    if (compounds.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "give a compound file (--compound F)");
+    if (dose.empty()) throw InputError(SourceLocation{"--dose", 0, 0}, "give the dose (--dose AMOUNT, e.g. 5mg/mL)");
+    if (target.empty()) throw InputError(SourceLocation{"--target-ph", 0, 0}, "give the pH to hold (--target-ph P)");
+
+    ScreenOptions opt;
+    opt.target_pH = option_number("--target-ph", target, 0.0, 14.0);
+    opt.tolerance_pH = option_number("--tolerance", tolerance, -1e9, 1e9);
+    if (!(opt.tolerance_pH > 0)) {
+      throw InputError(SourceLocation{"--tolerance", 0, 0}, "tolerance " + tolerance + " must be > 0 (pH units)");
+    }
+    opt.temperature_C = option_temperature("--temp", temp);
+    opt.route = route;
+    if (route != "any" && route != "oral" && route != "parenteral" && route != "ophthalmic" && route != "topical") {
+      throw InputError(SourceLocation{"--route", 0, 0},
+                       "unknown route \"" + route + "\", expected oral, parenteral, ophthalmic, topical or any");
+    }
+    if (!dose_range.empty()) {
+      try {
+        opt.dose_range_fraction = parse_dose_range(dose_range);
+      } catch (const InputError& e) {
+        throw InputError(SourceLocation{"--dose-range", 0, 0}, e.message());
+      }
+    }
+    BatchOptions batch;
+    batch.threads = static_cast<int>(option_number("--threads", threads, 0, 1024));
+
+    const Library lib = load_libraries(common);
+    if (buffers != "all") {
+      opt.buffers = split_list(buffers);
+      if (opt.buffers.empty()) {
+        throw InputError(SourceLocation{"--buffers", 0, 0}, "expected all or buffer ids separated by commas");
+      }
+      for (const std::string& id : opt.buffers) {
+        try {
+          lib.buffer(id);
+        } catch (const InputError& e) {
+          throw InputError(SourceLocation{"--buffers", 0, 0}, e.message());
+        }
+      }
+    }
+    if (screen_candidates(lib, opt).empty()) {
+      throw InputError(SourceLocation{"--route", 0, 0},
+                       "none of the selected buffers is listed for the " + route + " route");
+    }
+    const Amount dose_amount = option_amount("--dose", dose);
+    if (!(dose_amount.value > 0)) throw InputError(SourceLocation{"--dose", 0, 0}, "the dose must be > 0");
+
+    // Every input is read and checked before any work starts.
+    std::vector<ScreenJob> jobs;
+    for (const std::string& path : compound_paths(compounds)) {
+      ScreenJob job;
+      job.compound = load_compound(path, lib);
+      job.form = form;
+      try {
+        job.dose_mol_per_L = dose_conc_mol_per_L(lib, job.compound, form, dose_amount, opt.temperature_C);
+      } catch (const InputError& e) {
+        throw InputError(SourceLocation{"--form", 0, 0}, path + ": " + e.message());
+      }
+      jobs.push_back(std::move(job));
+    }
+
+    ProgressBar bar;
+    batch.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
+    std::vector<ScreenReport> reports = screen_batch(lib, jobs, opt, batch);
+    bar.finish();
+
+    if (common.format == "json") write_screen_json(reports, std::cout);
+    else if (common.format == "csv") write_screen_csv(reports, std::cout);
+    else write_screen_text(reports, std::cout);
+    return 0;
+  });
 }
 
 }  // namespace pkarta::cli
