@@ -1,12 +1,140 @@
-// Placeholder until the profile analysis lands.
+// `pkarta profile`: pH-solubility profile with salt limits and pHmax.
+#include <iostream>
+#include <sstream>
+
 #include "cli_common.h"
 #include "commands.h"
+#include "pkarta/profile.h"
 
 namespace pkarta::cli {
 
-int run_profile(const Args&) {
-  error("the 'profile' command is not available in this build");
-  return kExitRefused;
+namespace {
+
+std::vector<double> parse_points(const std::string& text) {
+  std::vector<double> v;
+  std::stringstream ss(text);
+  std::string item;
+  while (std::getline(ss, item, ',')) {
+    const auto b = item.find_first_not_of(" \t");
+    const auto e = item.find_last_not_of(" \t");
+    if (b == std::string::npos) {
+      throw InputError(SourceLocation{"--points", 0, 0},
+                       "empty entry in \"" + text + "\", expected comma-separated pH values such as 1.2,4.5,6.8");
+    }
+    v.push_back(option_number("--points", item.substr(b, e - b + 1), -1.0, 15.0));
+  }
+  if (v.empty() || text.back() == ',') {
+    throw InputError(SourceLocation{"--points", 0, 0},
+                     "empty entry in \"" + text + "\", expected comma-separated pH values such as 1.2,4.5,6.8");
+  }
+  return v;
+}
+
+}  // namespace
+
+int run_profile(const Args& args) {
+  return guarded([&] {
+    CommonOptions common;
+    FormulationOptions f;
+    std::string from = "1", to = "13", step = "0.05", points, acid = "HCl", base = "NaOH";
+    po::options_description desc("profile options");
+    desc.add_options()
+        ("compound", po::value(&f.compound_file), "compound XML file (required)")
+        ("from", po::value(&from)->default_value("1"), "first pH of the grid")
+        ("to", po::value(&to)->default_value("13"), "last pH of the grid")
+        ("step", po::value(&step)->default_value("0.05"), "grid step, pH units (> 0)")
+        ("points", po::value(&points), "explicit pH list instead of the grid, e.g. 1.2,4.5,6.8")
+        ("add", po::value(&f.adds)->composing(), "medium reagent and amount, e.g. NaCl=154mM; may repeat")
+        ("medium", po::value(&f.medium), "library medium to start from (e.g. saline-0.9, hcl-1.2)")
+        ("acid", po::value(&acid)->default_value("HCl"),
+         "strong acid holding the low pH (a library reagent giving one strong anion, e.g. HCl, "
+         "methanesulfonic-acid); its anion can form a salt")
+        ("base", po::value(&base)->default_value("NaOH"),
+         "strong base holding the high pH (NaOH, KOH); its cation can form a salt")
+        ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C")
+        ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)");
+    add_common_options(desc, common);
+    const po::variables_map vm = parse(args, desc);
+    if (common.help) {
+      print_help(std::cout,
+                 "pkarta profile --compound F [--from 1 --to 13 --step 0.05 | --points LIST] "
+                 "[--add REAGENT=AMOUNT]... [--medium ID] [--acid HCl] [--base NaOH] [--temp C] [--ideal]",
+                 desc);
+      std::cout << "At each pH the drug's excess free form is equilibrated in the medium, the pH held by\n"
+                   "the acid or the base; a salt limits where its ion product would exceed Ksp, its\n"
+                   "counterion coming from the titrant and the medium. pHmax is where the free-form and\n"
+                   "salt curves cross in this medium. Text output prints every 0.5 pH of the default\n"
+                   "grid; giving --step or --points prints every row (csv and json always hold all).\n";
+      return 0;
+    }
+    check_format(common.format);
+    if (f.compound_file.empty()) {
+      throw InputError(SourceLocation{"--compound", 0, 0}, "--compound FILE is required");
+    }
+    const bool explicit_grid = !vm["from"].defaulted() || !vm["to"].defaulted() || !vm["step"].defaulted();
+    ProfileGrid grid;
+    if (vm.count("points")) {
+      if (explicit_grid) {
+        throw InputError(SourceLocation{"--points", 0, 0}, "--points cannot be combined with --from, --to or --step");
+      }
+      grid.points_pH = parse_points(points);
+    } else {
+      grid.from_pH = option_number("--from", from, -1.0, 15.0);
+      grid.to_pH = option_number("--to", to, -1.0, 15.0);
+      if (grid.to_pH < grid.from_pH) {
+        throw InputError(SourceLocation{"--to", 0, 0},
+                         "empty pH range: --to " + to + " is below --from " + from);
+      }
+      double s;
+      try {
+        s = parse_number(step, "value");
+      } catch (const InputError& e) {
+        throw InputError(SourceLocation{"--step", 0, 0}, e.message());
+      }
+      if (!(s > 0)) throw InputError(SourceLocation{"--step", 0, 0}, "step " + step + " must be > 0 (pH units)");
+      grid.step_pH = s;
+      std::string err;
+      if (!grid.is_valid(&err)) {
+        throw InputError(SourceLocation{"--step", 0, 0},
+                         "step " + step + " gives more than " + std::to_string(kMaxProfilePoints) + " points");
+      }
+    }
+
+    const Library lib = load_libraries(common);
+    ProfileConditions cond;
+    cond.acid_titrant = acid;
+    cond.base_titrant = base;
+    try {
+      titrant_strong_ion(lib, acid, -1);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--acid", 0, 0}, e.message());
+    }
+    try {
+      titrant_strong_ion(lib, base, +1);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--base", 0, 0}, e.message());
+    }
+    std::vector<std::string> contents;
+    const std::string compound_file = f.compound_file;
+    f.compound_file.clear();  // the medium only; the compound is loaded below
+    cond.medium = build_formulation(f, lib, &contents);
+    cond.temperature_C = cond.medium.temperature_C;
+    cond.activity = cond.medium.activity;
+    const Compound c = load_compound(compound_file, lib);
+
+    const Profile p = compute_profile(c, lib, cond, grid, contents);
+    if (common.format == "json") {
+      write_profile_json(p, std::cout);
+    } else if (common.format == "csv") {
+      write_profile_csv(p, std::cout);
+    } else {
+      write_profile_text(p, std::cout, explicit_grid || vm.count("points") ? 0.0 : 0.5);
+    }
+    if (common.format != "text") {
+      for (const std::string& w : p.warnings) std::cerr << "pkarta: warning: " << w << "\n";
+    }
+    return 0;
+  });
 }
 
 }  // namespace pkarta::cli
