@@ -3,7 +3,8 @@ BUILD ?= build
 MAKEFLAGS += --no-print-directory
 JOBS ?= $(shell nproc 2>/dev/null || echo 2)
 PACKAGES := cmake g++ make libboost-program-options-dev libpugixml-dev libeigen3-dev \
-            libgtest-dev libgmock-dev libbenchmark-dev nlohmann-json3-dev libxml2-utils
+            libgtest-dev libgmock-dev libbenchmark-dev nlohmann-json3-dev libxml2-utils \
+            zlib1g-dev
 TEST_PACKAGES := chromium
 
 .PHONY: all deps test-deps configure build demo test bench clean

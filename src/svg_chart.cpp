@@ -247,25 +247,25 @@ void write_svg(const Chart& c, std::ostream& out) {
   const double plot_h = std::max(80.0, c.plot_height);
   const double x0 = left, x1 = left + plot_w, y0 = top + plot_h, y1 = top;  // y0 bottom
 
-  // Legend layout: rows of (sample, text) items below the x-axis label.
+  // Legend layout: a grid of equal columns below the x-axis label (as many as fit).
   struct Item {
     std::size_t series;
     double x, y;
   };
   std::vector<Item> items;
-  double lx = x0, ly = y0 + 66.0;
+  double item_w = 0.0;
+  for (const Series& s : c.series) {
+    if (!s.name.empty()) item_w = std::max(item_w, 40.0 + text_width(s.name, kFont) + 24.0);
+  }
+  const double legend_w = c.width - x0 - 8.0;
+  const int columns = item_w > 0 ? std::max(1, static_cast<int>(legend_w / item_w)) : 1;
+  const double col_w = item_w > 0 ? std::max(item_w, legend_w / columns) : 0.0;
   int rows = 0;
   for (std::size_t i = 0; i < c.series.size(); ++i) {
     if (c.series[i].name.empty()) continue;
-    const double w = 40.0 + text_width(c.series[i].name, kFont) + 22.0;
-    if (lx > x0 && lx + w > x1 + right - 8.0) {
-      lx = x0;
-      ly += 21.0;
-      ++rows;
-    }
-    if (items.empty()) rows = 1;
-    items.push_back({i, lx, ly});
-    lx += w;
+    const int k = static_cast<int>(items.size());
+    items.push_back({i, x0 + (k % columns) * col_w, y0 + 66.0 + (k / columns) * 21.0});
+    rows = k / columns + 1;
   }
   const double height = y0 + 50.0 + (rows ? 10.0 + 21.0 * rows : 0.0) + 6.0;
 
@@ -435,7 +435,9 @@ void write_svg(const Chart& c, std::ostream& out) {
   }
   out << "</g>\n";
 
-  // Reference lines and their labels (not clipped, so labels may sit at the edge).
+  // Reference lines and their labels (not clipped, so labels may sit at the edge). Labels of
+  // vertical lines that would overlap go one row lower each.
+  std::vector<std::vector<std::pair<double, double>>> rows_spans;
   out << "<g class=\"reference-lines\">\n";
   for (const RefLine& l : c.lines) {
     const bool vertical = l.orientation == RefLine::Orientation::kVertical;
@@ -454,12 +456,23 @@ void write_svg(const Chart& c, std::ostream& out) {
       double tx, ty;
       std::string anchor = "start";
       if (vertical) {
+        double a = p + 5.0, b = p + 5.0 + w;
         tx = p + 5.0;
-        ty = y1 + 15.0;
-        if (tx + w > x1 - 2.0) {
+        if (b > x1 - 2.0) {
           tx = p - 5.0;
           anchor = "end";
+          a = p - 5.0 - w;
+          b = p - 5.0;
         }
+        std::size_t row = 0;
+        for (;; ++row) {
+          if (row == rows_spans.size()) rows_spans.emplace_back();
+          bool clash = false;
+          for (const auto& span : rows_spans[row]) clash = clash || (a < span.second + 6.0 && b > span.first - 6.0);
+          if (!clash) break;
+        }
+        rows_spans[row].push_back({a, b});
+        ty = y1 + 15.0 + 17.0 * static_cast<double>(row);
       } else {
         tx = x1 - 6.0;
         ty = p - 6.0;

@@ -1,40 +1,91 @@
+// `pkarta demo` (what `make demo` runs): the reports of the three invented demo compounds.
 #include <filesystem>
 #include <iostream>
+#include <system_error>
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/mix.h"
-#include "pkarta/mixture_builder.h"
+#include "pkarta/format.h"
+#include "report_cli.h"
 
 namespace pkarta::cli {
 
 namespace {
+
 bool vm_has_dir(const std::string& dir) { return std::filesystem::is_directory(dir); }
+
+// Invented demonstration scenarios: dose, form, target pH and route of each demo compound.
+struct DemoCase {
+  const char* file;
+  const char* dose;
+  const char* form;
+  const char* target_ph;
+  const char* route;
+};
+constexpr DemoCase kDemoCases[] = {
+    {"demo-base", "2mg/mL", "hydrochloride", "5.0", "parenteral"},
+    {"demo-acid", "5mg/mL", "sodium", "7.4", "ophthalmic"},
+    {"demo-ampholyte", "0.5mg/mL", "hydrochloride", "3.0", "oral"},
+};
+
+std::string summary_line(const ReportData& d) {
+  std::string s = d.compound.name + ":";
+  if (d.pHmax.empty()) s += " no salt limits in water;";
+  for (const PhMaxPoint& p : d.pHmax) s += " pHmax " + fixed(p.pH, 2) + " (" + p.salt + ");";
+  if (d.dose_in_water && d.dose_in_water->equilibrium.drug) {
+    const Equilibrium& e = d.dose_in_water->equilibrium;
+    s += " dose " + d.request.dose_text + " in water: pH " + fixed(e.pH, 2) + ", " +
+         (e.drug->solid == "none" ? std::string("all dissolved") : e.drug->solid + " remains");
+  }
+  return s;
+}
+
 }  // namespace
 
 int run_demo(const Args& args) {
   return guarded([&] {
     CommonOptions common;
     std::string dir = "compounds";
+    std::string out_dir = "reports";
     po::options_description desc("demo options");
-    desc.add_options()("compounds", po::value(&dir)->default_value("compounds"), "folder of the demo compounds");
+    desc.add_options()
+        ("compounds", po::value(&dir)->default_value("compounds"), "folder of the demo compounds")
+        ("out-dir", po::value(&out_dir)->default_value("reports"), "folder the reports are written to");
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
-      print_help(std::cout, "pkarta demo [--compounds DIR]", desc);
+      print_help(std::cout, "pkarta demo [--compounds DIR] [--out-dir DIR]", desc);
       return 0;
     }
     if (!vm_has_dir(dir)) dir = PKARTA_DEFAULT_COMPOUNDS;
     const Library lib = load_libraries(common);
-    FormulationOptions f;
-    f.compound_file = dir + "/demo-base.xml";
-    f.dose = "2mg/mL";
-    f.form = "hydrochloride";
-    f.adds = {"KH2PO4=25mM", "Na2HPO4=25mM"};
-    std::vector<std::string> inputs;
-    const Mixture m = build_formulation(f, lib, &inputs);
-    const MixResult r = analyse_mix(m, inputs);
-    write_mix_text(r, std::cout);
+    std::error_code ec;
+    std::filesystem::create_directories(out_dir, ec);
+    if (ec) {
+      error("cannot create folder " + out_dir + ": " + ec.message());
+      return static_cast<int>(kExitRefused);
+    }
+    std::cout << "pkarta demo: preformulation reports of three invented compounds\n\n";
+    for (const DemoCase& dc : kDemoCases) {
+      ReportOptions r;
+      r.compound_file = dir + "/" + dc.file + ".xml";
+      r.dose = dc.dose;
+      r.form = dc.form;
+      r.target_ph = dc.target_ph;
+      r.route = dc.route;
+      r.output = out_dir + "/" + dc.file + ".html";
+      ReportData data;
+      std::vector<std::string> written;
+      try {
+        written = make_report(r, common, lib, "pkarta report" + report_arguments(r), &data);
+      } catch (const std::system_error& e) {
+        error(e.what());
+        return static_cast<int>(kExitRefused);
+      }
+      std::cout << "  " << r.output << "  (tables in " << out_dir << "/" << dc.file << "/, " << written.size() - 1
+                << " CSV files)\n    " << summary_line(data) << "\n";
+    }
+    std::cout << "\nOpen the HTML files in any browser; they need no network. " << caution_text() << "\n";
     return 0;
   });
 }

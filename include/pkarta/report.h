@@ -1,0 +1,127 @@
+// The preformulation report: one self-contained HTML file (inline CSS and SVG, no script, no
+// network) and a folder of CSV tables with the same numbers, for preformulation reports and
+// the pharmaceutical-development section of regulatory documents.
+//
+// Two steps, as everywhere in pkarta: analyse_report() runs the analyses (profile, dose in
+// water, and whichever further analyses were asked and exist) into a ReportData value;
+// the writers turn that value into HTML or CSV text and compute no chemistry. A section
+// appears when its analysis is in the ReportData.
+//
+// Output is deterministic: fixed number formats, stable order, the date taken from
+// SOURCE_DATE_EPOCH when set (reproducible-builds.org convention), so the same inputs give
+// byte-identical files.
+#ifndef PKARTA_REPORT_H_
+#define PKARTA_REPORT_H_
+
+#include <cstdint>
+#include <optional>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "pkarta/equilibrium.h"
+#include "pkarta/mix.h"
+#include "pkarta/model.h"
+#include "pkarta/profile.h"
+
+namespace pkarta {
+
+/// What the report is asked to cover. Everything but the compound is optional.
+struct ReportRequest {
+  std::string dose_text;                  ///< as given, e.g. "2mg/mL" ("" = no dose)
+  double dose_mol_per_L = 0.0;            ///< of drug; 0 = no dose
+  std::string form = "free";              ///< form weighed: "free" or a salt id
+  std::optional<double> target_pH;        ///< for the buffer screen and recipe
+  double tolerance_pH = 0.1;
+  std::string route = "any";              ///< oral, parenteral, ophthalmic, topical, any
+  double temperature_C = 25.0;            ///< profile, dose and screen temperature
+  ActivityModel activity = ActivityModel::kDavies;
+  double profile_from_pH = 1.0;
+  double profile_to_pH = 13.0;
+  double profile_step_pH = 0.05;
+  /// False with a message naming the field ("ReportRequest::profile_step_pH = 0, must be > 0").
+  bool is_valid(std::string* error) const;
+};
+
+/// An input file and its SHA-256, for the traceability block.
+struct InputFile {
+  std::string role;     ///< "compound", "library"
+  std::string path;     ///< as given on the command line
+  std::string sha256;   ///< 64 hex digits
+  std::uint64_t bytes = 0;
+};
+
+/// Traceability: what produced the report.
+struct Provenance {
+  std::string tool_version = PKARTA_VERSION;
+  std::string library_id;
+  std::string library_version;
+  std::vector<InputFile> inputs;          ///< the built-in library is listed with its digest too
+  std::string date_utc;                   ///< "2026-12-01" (from SOURCE_DATE_EPOCH when set)
+  std::string command_line;               ///< the options that made the report, in order
+};
+
+/// pHmax of one salt in the profile's medium: where the free-form and salt curves cross.
+struct PhMaxPoint {
+  std::string salt;
+  double pH = 0.0;
+};
+
+/// Everything a report shows. Built by analyse_report(); writers only read it.
+struct ReportData {
+  Compound compound;
+  ReportRequest request;
+  Provenance provenance;
+  double free_molar_mass_g_per_mol = 0.0;
+  double form_molar_mass_g_per_mol = 0.0;
+  /// Salts with the Ksp used at 25 °C reference and at the run temperature.
+  std::vector<double> salt_ksp_at_run_temperature;
+  /// pH-solubility profile in water, pH held by HCl or NaOH (profile.h), at the run temperature.
+  std::vector<SolubilityAtPh> profile;
+  std::vector<PhMaxPoint> pHmax;
+  /// The dose dissolved in water alone (no buffer): pH it sets, what stays solid.
+  std::optional<MixResult> dose_in_water;
+  std::vector<std::string> warnings;
+};
+
+/// Runs the analyses the request asks for. `compound_file` and `library_files` are hashed for
+/// the traceability block (the built-in library by its embedded text). Throws InputError for an
+/// invalid request (named field), an unknown form, or unreadable files.
+ReportData analyse_report(const Compound& compound, const Library& library, const ReportRequest& request,
+                          const std::string& compound_file, const std::vector<std::string>& library_files,
+                          const std::string& command_line);
+
+/// The date for reports: SOURCE_DATE_EPOCH (seconds since 1970, UTC) when set and valid, else
+/// the current UTC date; "YYYY-MM-DD". Throws InputError when SOURCE_DATE_EPOCH is set but not
+/// a non-negative integer.
+std::string report_date_utc();
+
+/// One table of the report, as the HTML shows it and the CSV holds it (same strings).
+struct ReportTable {
+  std::string file;                        ///< CSV file name, e.g. "profile.csv"
+  std::string caption;
+  std::vector<std::string> header;         ///< with units: "solubility (mg/mL)"
+  std::vector<std::vector<std::string>> rows;
+};
+
+/// The tables of the report (compound, profile, dose in water, ...), in report order.
+std::vector<ReportTable> report_tables(const ReportData& data);
+
+/// RFC 4180 text of a table (header row, CRLF line endings).
+std::string table_csv(const ReportTable& table);
+
+/// Writes the HTML report. `csv_folder` is the folder name the HTML links to for the tables
+/// (relative to the HTML file, e.g. "demo-base"); "" = no links.
+void write_report_html(const ReportData& data, const std::string& csv_folder, std::ostream& out);
+
+/// Writes `html_path` and, beside it, the folder NAME/ (NAME = html file name without
+/// extension) with one CSV file per table, each through a temporary file and a rename; the CSV
+/// files come first, so a complete HTML file always has its tables. Refuses (InputError) to
+/// overwrite any of `inputs_to_protect`; write failures throw std::system_error naming the file.
+/// Returns the paths written (CSV files, then the HTML file).
+std::vector<std::string> write_report_files(const ReportData& data, const std::string& html_path,
+                                            const std::vector<std::string>& inputs_to_protect);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_REPORT_H_

@@ -1,0 +1,69 @@
+#include "report_cli.h"
+
+#include "pkarta/equilibrium.h"
+#include "pkarta/mixture_builder.h"
+#include "pkarta/report.h"
+
+namespace pkarta::cli {
+
+void add_report_options(po::options_description& desc, ReportOptions& r) {
+  desc.add_options()
+      ("compound", po::value(&r.compound_file), "compound XML file")
+      ("dose", po::value(&r.dose), "dose as an amount of the form weighed, e.g. 2mg/mL (draws the dose line)")
+      ("form", po::value(&r.form)->default_value("free"), "form of the drug: free or a salt id")
+      ("target-ph", po::value(&r.target_ph), "pH the formulation must hold (buffer screen and recipe)")
+      ("tolerance", po::value(&r.tolerance)->default_value("0.1"), "allowed pH drift after the dose")
+      ("route", po::value(&r.route)->default_value("any"), "oral, parenteral, ophthalmic, topical or any")
+      ("temp", po::value(&r.temperature)->default_value("25"), "temperature, °C")
+      ("ideal", po::bool_switch(&r.ideal), "activity coefficients 1 (no Davies correction)")
+      ("output,o", po::value(&r.output), "HTML file to write; its CSV tables go to the folder beside it");
+}
+
+std::string report_arguments(const ReportOptions& r) {
+  std::string s = " --compound " + r.compound_file;
+  if (!r.dose.empty()) s += " --dose " + r.dose;
+  if (r.form != "free") s += " --form " + r.form;
+  if (!r.target_ph.empty()) s += " --target-ph " + r.target_ph;
+  if (r.tolerance != "0.1") s += " --tolerance " + r.tolerance;
+  if (r.route != "any") s += " --route " + r.route;
+  s += " --temp " + r.temperature;
+  if (r.ideal) s += " --ideal";
+  return s;
+}
+
+std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions& common, const Library& library,
+                                     const std::string& command_line, ReportData* data_out) {
+  ReportRequest req;
+  req.temperature_C = option_temperature("--temp", r.temperature);
+  req.activity = r.ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
+  req.form = r.form;
+  req.tolerance_pH = option_number("--tolerance", r.tolerance, 1e-4, 2.0);
+  if (!r.target_ph.empty()) req.target_pH = option_number("--target-ph", r.target_ph, 0.0, 14.0);
+  if (r.route != "any" && r.route != "oral" && r.route != "parenteral" && r.route != "ophthalmic" &&
+      r.route != "topical") {
+    throw InputError(SourceLocation{"--route", 0, 0},
+                     "unknown route \"" + r.route + "\", expected oral, parenteral, ophthalmic, topical or any");
+  }
+  req.route = r.route;
+  const Compound compound = load_compound(r.compound_file, library);
+  if (!r.dose.empty()) {
+    const Amount dose = option_amount("--dose", r.dose);
+    try {
+      req.dose_mol_per_L = dose_conc_mol_per_L(library, compound, r.form, dose, req.temperature_C);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--form", 0, 0}, e.message());
+    }
+    if (!(req.dose_mol_per_L > 0)) throw InputError(SourceLocation{"--dose", 0, 0}, "the dose must be above 0");
+    req.dose_text = r.dose;
+  } else if (r.form != "free") {
+    form_molar_mass(compound, r.form, library);  // an unknown form is an error even without a dose
+  }
+  const ReportData data = analyse_report(compound, library, req, r.compound_file, common.library_files, command_line);
+  std::vector<std::string> protect = {r.compound_file};
+  protect.insert(protect.end(), common.library_files.begin(), common.library_files.end());
+  std::vector<std::string> written = write_report_files(data, r.output, protect);
+  if (data_out) *data_out = data;
+  return written;
+}
+
+}  // namespace pkarta::cli

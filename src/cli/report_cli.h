@@ -1,0 +1,39 @@
+// What `report` and `demo` share: the report options and the step from options to files.
+#ifndef PKARTA_CLI_REPORT_CLI_H_
+#define PKARTA_CLI_REPORT_CLI_H_
+
+#include <string>
+#include <vector>
+
+#include "cli_common.h"
+#include "pkarta/report.h"
+
+namespace pkarta::cli {
+
+struct ReportOptions {
+  std::string compound_file;
+  std::string dose;
+  std::string form = "free";
+  std::string target_ph;
+  std::string tolerance = "0.1";
+  std::string route = "any";
+  std::string temperature = "25";
+  bool ideal = false;
+  std::string output;
+};
+
+void add_report_options(po::options_description& desc, ReportOptions& r);
+
+/// The options as a canonical argument string (" --compound F --dose 2mg/mL ..."), for the
+/// traceability block: the same options always give the same text.
+std::string report_arguments(const ReportOptions& r);
+
+/// Loads the compound, runs the analyses and writes the HTML file and its CSV folder.
+/// Returns the paths written (CSV files, then the HTML file).
+/// `data_out` (may be null) receives the analysed report.
+std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions& common, const Library& library,
+                                     const std::string& command_line, ReportData* data_out = nullptr);
+
+}  // namespace pkarta::cli
+
+#endif  // PKARTA_CLI_REPORT_CLI_H_

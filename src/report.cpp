@@ -1,0 +1,762 @@
+#include "pkarta/report.h"
+
+#include <algorithm>
+#include <cerrno>
+#include <cmath>
+#include <cstdlib>
+#include <ctime>
+#include <filesystem>
+#include <map>
+#include <sstream>
+
+#include "pkarta/atomic_file.h"
+#include "pkarta/error.h"
+#include "pkarta/format.h"
+#include "pkarta/mixture_builder.h"
+#include "pkarta/sha256.h"
+#include "pkarta/svg_chart.h"
+#include "pkarta/water.h"
+#include "pkarta/xml_input.h"
+
+namespace pkarta {
+
+namespace {
+
+namespace fs = std::filesystem;
+using svg::xml_escape;
+
+// ---------------------------------------------------------------------------------------------
+// Analysis helpers
+
+// Bisects the switch of the limiting solid between two profile points (a < b) whose limiting
+// solids differ; returns the pH where the solid named `salt` stops (or starts) limiting.
+double refine_switch(const Compound& c, const Library& lib, const ProfileConditions& cond, double a,
+                     double b, const std::string& solid_at_a) {
+  for (int i = 0; i < 40 && b - a > 1e-7; ++i) {
+    const double m = 0.5 * (a + b);
+    if (solubility_at_pH(c, lib, m, cond).limiting_solid == solid_at_a) a = m;
+    else b = m;
+  }
+  return 0.5 * (a + b);
+}
+
+InputFile hash_file(const std::string& role, const std::string& path) {
+  const std::string text = read_text_file(path);
+  return InputFile{role, path, sha256_hex(text), static_cast<std::uint64_t>(text.size())};
+}
+
+// ---------------------------------------------------------------------------------------------
+// Formatting helpers (writers)
+
+std::string esc(const std::string& s) { return xml_escape(s); }
+
+// "H2A2+" -> "H₂A²⁺" for display.
+std::string pretty_species(const std::string& label) {
+  static const char* const kSub[10] = {"\u2080", "\u2081", "\u2082", "\u2083", "\u2084",
+                                       "\u2085", "\u2086", "\u2087", "\u2088", "\u2089"};
+  static const char* const kSup[10] = {"\u2070", "\u00B9", "\u00B2", "\u00B3", "\u2074",
+                                       "\u2075", "\u2076", "\u2077", "\u2078", "\u2079"};
+  std::string out;
+  const std::size_t a = label.find('A');
+  for (std::size_t i = 0; i < label.size(); ++i) {
+    const char ch = label[i];
+    if (ch >= '0' && ch <= '9') out += (a != std::string::npos && i > a) ? kSup[ch - '0'] : kSub[ch - '0'];
+    else if (ch == '+' && i > a) out += "\u207A";
+    else if (ch == '-' && i > a) out += "\u207B";
+    else out += ch;
+  }
+  return out;
+}
+
+std::string form_label(const std::string& form) { return form == "free" ? "free form" : form; }
+
+std::string mg_per_mL(double mol_per_L, double molar_mass) { return sig(mol_per_L * molar_mass, 3); }
+
+bool numeric_cell(const std::string& s) {
+  if (s.empty()) return false;
+  if (s == "n/a") return true;
+  char* end = nullptr;
+  std::strtod(s.c_str(), &end);
+  return end && *end == '\0';
+}
+
+void write_table_html(const ReportTable& t, std::ostream& out, const std::string& csv_folder,
+                      const std::vector<std::size_t>* rows = nullptr, const std::string& note = "") {
+  out << "<div class=\"table-wrap\"><table data-csv=\"" << esc(t.file) << "\">\n<caption>" << esc(t.caption);
+  if (!csv_folder.empty()) {
+    out << " <a class=\"csv-link\" href=\"" << esc(csv_folder + "/" + t.file) << "\">CSV: " << esc(t.file) << "</a>";
+  }
+  if (!note.empty()) out << " <span class=\"note\">" << esc(note) << "</span>";
+  out << "</caption>\n<thead><tr>";
+  for (const std::string& h : t.header) out << "<th scope=\"col\">" << esc(h) << "</th>";
+  out << "</tr></thead>\n<tbody>\n";
+  auto row = [&](const std::vector<std::string>& r) {
+    out << "<tr>";
+    for (std::size_t i = 0; i < r.size(); ++i) {
+      const bool num = i > 0 && numeric_cell(r[i]);
+      if (i == 0) out << "<th scope=\"row\">" << esc(r[i]) << "</th>";
+      else out << "<td" << (num ? " class=\"num\"" : "") << ">" << esc(r[i]) << "</td>";
+    }
+    out << "</tr>\n";
+  };
+  if (rows) {
+    for (std::size_t i : *rows) row(t.rows[i]);
+  } else {
+    for (const auto& r : t.rows) row(r);
+  }
+  out << "</tbody></table></div>\n";
+}
+
+const ReportTable* find_table(const std::vector<ReportTable>& tables, const std::string& file) {
+  for (const ReportTable& t : tables) {
+    if (t.file == file) return &t;
+  }
+  return nullptr;
+}
+
+// Salt runs along the profile: contiguous pH ranges where a salt limits.
+struct Run {
+  std::string solid;
+  double from, to;
+};
+std::vector<Run> salt_runs(const std::vector<SolubilityAtPh>& profile) {
+  std::vector<Run> runs;
+  for (std::size_t i = 0; i < profile.size(); ++i) {
+    const std::string& s = profile[i].limiting_solid;
+    if (s == "free" || s == "none") continue;
+    const double lo = i > 0 ? 0.5 * (profile[i - 1].pH + profile[i].pH) : profile[i].pH;
+    const double hi = i + 1 < profile.size() ? 0.5 * (profile[i].pH + profile[i + 1].pH) : profile[i].pH;
+    if (!runs.empty() && runs.back().solid == s && std::fabs(runs.back().to - lo) < 1e-9) runs.back().to = hi;
+    else runs.push_back({s, lo, hi});
+  }
+  return runs;
+}
+
+const char* kCss = R"css(
+:root { --ink: #1a1a1a; --muted: #555; --rule: #c8c8c8; --accent: #0072b2; --warn-bg: #fff4cc; --warn-ink: #5c4400; }
+* { box-sizing: border-box; }
+html { background: #f3f3f1; }
+body { margin: 0 auto; max-width: 1000px; padding: 0 28px 40px; background: #ffffff; color: var(--ink);
+       font-family: sans-serif; font-size: 15px; line-height: 1.45; }
+header.report-head { border-bottom: 4px solid var(--accent); padding: 26px 0 14px; }
+header.report-head h1 { font-size: 27px; margin: 0 0 4px; }
+header.report-head p { margin: 0; color: var(--muted); }
+h2 { font-size: 20px; margin: 34px 0 10px; padding-bottom: 4px; border-bottom: 1px solid var(--rule); }
+h2 .num { color: var(--accent); margin-right: 8px; }
+h3 { font-size: 16px; margin: 20px 0 6px; }
+section { break-inside: auto; }
+.key-numbers { display: grid; grid-template-columns: repeat(3, 1fr); gap: 12px; margin: 18px 0 8px; }
+.key { border: 1px solid var(--rule); border-top: 5px solid var(--accent); padding: 10px 12px 12px; border-radius: 3px; }
+.key.lead { border-top-color: #d55e00; }
+.key .label { font-size: 12px; text-transform: uppercase; letter-spacing: 0.06em; color: var(--muted); font-weight: bold; }
+.key .value { font-size: 23px; font-weight: bold; margin: 2px 0; }
+.key .detail { font-size: 13px; color: var(--ink); }
+.key .where { font-size: 12px; color: var(--muted); margin-top: 4px; }
+.caution { display: flex; gap: 14px; align-items: flex-start; background: var(--warn-bg); color: var(--warn-ink);
+           border: 2px solid #8a6d00; border-radius: 4px; padding: 12px 16px; margin: 16px 0; }
+.caution .sign { flex: 0 0 34px; height: 34px; border-radius: 50%; background: #8a6d00; color: #ffffff;
+                 font-weight: bold; font-size: 22px; text-align: center; line-height: 34px; }
+.caution p { margin: 0; }
+.caution strong { color: #3d2d00; }
+nav.contents { font-size: 14px; margin: 10px 0; }
+nav.contents ol { margin: 4px 0; padding-left: 22px; columns: 2; }
+figure { margin: 14px 0 18px; break-inside: avoid; }
+figure svg { width: 100%; height: auto; display: block; }
+figcaption { font-size: 13.5px; color: var(--muted); margin-top: 4px; }
+figcaption strong { color: var(--ink); }
+.table-wrap { overflow-x: auto; margin: 10px 0 16px; }
+table { border-collapse: collapse; font-size: 13.5px; min-width: 50%; }
+caption { text-align: left; font-weight: bold; padding: 4px 0 6px; caption-side: top; }
+caption .csv-link { font-weight: normal; font-size: 12px; margin-left: 8px; }
+caption .note { display: block; font-weight: normal; font-size: 12.5px; color: var(--muted); }
+th, td { padding: 4px 10px; border-bottom: 1px solid #e2e2e2; text-align: left; vertical-align: top; }
+thead th { border-bottom: 2px solid var(--ink); background: #f4f6f8; }
+tbody tr:nth-child(even) { background: #fafafa; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; }
+tr.lead th, tr.lead td { background: #fde9dc; font-weight: bold; }
+.muted { color: var(--muted); }
+.absent { border: 1px dashed var(--rule); padding: 8px 12px; color: var(--muted); font-size: 14px; }
+ul.warnings li { color: #7a3a00; }
+ol.refs li { margin-bottom: 3px; }
+dl.trace { display: grid; grid-template-columns: max-content 1fr; gap: 3px 16px; font-size: 13.5px; }
+dl.trace dt { font-weight: bold; }
+dl.trace dd { margin: 0; }
+code, .hash { font-family: monospace; font-size: 12.5px; word-break: break-all; }
+footer { margin-top: 36px; border-top: 1px solid var(--rule); padding-top: 8px; font-size: 12.5px; color: var(--muted); }
+@media (max-width: 760px) { .key-numbers { grid-template-columns: 1fr; } nav.contents ol { columns: 1; } }
+@media print {
+  @page { size: A4; margin: 14mm 14mm 16mm; }
+  html, body { background: #ffffff; }
+  body { max-width: none; padding: 0; font-size: 10pt; }
+  * { -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+  nav.contents, .csv-link { display: none; }
+  h2 { break-after: avoid; }
+  figure, .key-numbers, .caution, table { break-inside: avoid; }
+  .table-wrap { overflow: visible; }
+  .key-numbers { grid-template-columns: repeat(3, 1fr); }
+}
+)css";
+
+}  // namespace
+
+// ---------------------------------------------------------------------------------------------
+// Request and analysis
+
+bool ReportRequest::is_valid(std::string* error) const {
+  auto bad = [&](const std::string& m) {
+    if (error) *error = "ReportRequest::" + m;
+    return false;
+  };
+  if (!(dose_mol_per_L >= 0.0) || !std::isfinite(dose_mol_per_L)) return bad("dose_mol_per_L must be >= 0");
+  if (target_pH && !(*target_pH >= 0.0 && *target_pH <= 14.0)) return bad("target_pH must lie in 0-14");
+  if (!(tolerance_pH > 0.0)) return bad("tolerance_pH = " + sig(tolerance_pH) + ", must be > 0");
+  if (!(profile_step_pH > 0.0)) return bad("profile_step_pH = " + sig(profile_step_pH) + ", must be > 0");
+  if (!(profile_to_pH > profile_from_pH)) return bad("profile_to_pH must be above profile_from_pH");
+  if ((profile_to_pH - profile_from_pH) / profile_step_pH > 10000) return bad("profile has more than 10000 points");
+  if (!(temperature_C >= -10.0 && temperature_C <= 100.0)) return bad("temperature_C must lie in -10..100");
+  return true;
+}
+
+std::string report_date_utc() {
+  std::time_t t = std::time(nullptr);
+  if (const char* e = std::getenv("SOURCE_DATE_EPOCH"); e && *e) {
+    const std::string s = e;
+    if (s.find_first_not_of("0123456789") != std::string::npos || s.size() > 15) {
+      throw InputError(SourceLocation{"SOURCE_DATE_EPOCH", 0, 0},
+                       "expected a number of seconds since 1970-01-01 UTC, got \"" + s + "\"");
+    }
+    t = static_cast<std::time_t>(std::stoll(s));
+  }
+  std::tm tm{};
+  gmtime_r(&t, &tm);
+  char buf[32];
+  std::strftime(buf, sizeof buf, "%Y-%m-%d", &tm);
+  return buf;
+}
+
+ReportData analyse_report(const Compound& compound, const Library& library, const ReportRequest& request,
+                          const std::string& compound_file, const std::vector<std::string>& library_files,
+                          const std::string& command_line) {
+  std::string why;
+  if (!request.is_valid(&why)) throw InputError(why);
+  ReportData d;
+  d.compound = compound;
+  d.request = request;
+  d.free_molar_mass_g_per_mol = compound.molar_mass_g_per_mol;
+  d.form_molar_mass_g_per_mol = form_molar_mass(compound, request.form, library);
+  for (const Salt& s : compound.salts) d.salt_ksp_at_run_temperature.push_back(salt_ksp_at(s, request.temperature_C));
+
+  // Provenance.
+  Provenance& p = d.provenance;
+  p.library_id = library.id;
+  p.library_version = library.version;
+  p.date_utc = report_date_utc();
+  p.command_line = command_line;
+  if (!compound_file.empty()) p.inputs.push_back(hash_file("compound", compound_file));
+  const std::string builtin = builtin_library_xml();
+  p.inputs.push_back(InputFile{"library", "<built-in> compounds/library.xml", sha256_hex(builtin),
+                               static_cast<std::uint64_t>(builtin.size())});
+  for (const std::string& f : library_files) p.inputs.push_back(hash_file("library", f));
+
+  // pH-solubility profile in water, pH held by HCl or NaOH.
+  ProfileConditions cond;
+  cond.temperature_C = request.temperature_C;
+  cond.activity = request.activity;
+  const int n = static_cast<int>(std::floor((request.profile_to_pH - request.profile_from_pH) / request.profile_step_pH + 1e-9));
+  d.profile.reserve(static_cast<std::size_t>(n) + 1);
+  for (int i = 0; i <= n; ++i) {
+    const double pH = request.profile_from_pH + i * request.profile_step_pH;
+    d.profile.push_back(solubility_at_pH(compound, library, pH, cond));
+  }
+  // pHmax: where a salt-limited stretch meets a free-form-limited one.
+  for (std::size_t i = 1; i < d.profile.size(); ++i) {
+    const std::string& a = d.profile[i - 1].limiting_solid;
+    const std::string& b = d.profile[i].limiting_solid;
+    if (a == b) continue;
+    const bool a_salt = a != "free" && a != "none", b_salt = b != "free" && b != "none";
+    if ((a_salt && b == "free") || (b_salt && a == "free")) {
+      const double x = refine_switch(compound, library, cond, d.profile[i - 1].pH, d.profile[i].pH, a);
+      d.pHmax.push_back(PhMaxPoint{a_salt ? a : b, x});
+    }
+  }
+
+  // The dose in water alone.
+  if (request.dose_mol_per_L > 0.0) {
+    Mixture m;
+    m.temperature_C = request.temperature_C;
+    m.activity = request.activity;
+    add_drug(m, library, compound, request.dose_mol_per_L, request.form);
+    MixResult r = analyse_mix(m, {compound.id + " " + request.dose_text});
+    if (r.equilibrium.usable()) d.dose_in_water = std::move(r);
+    else d.warnings.push_back("the dose in water did not converge: " + r.equilibrium.message);
+  }
+  for (const SolubilityAtPh& s : d.profile) {
+    if (s.capped) {
+      d.warnings.push_back("solubility above " + sig(kSolubilityCap_mol_per_L, 2) +
+                           " mol/L is shown at that cap (no solid limits there)");
+      break;
+    }
+  }
+  return d;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Tables
+
+std::vector<ReportTable> report_tables(const ReportData& d) {
+  std::vector<ReportTable> tables;
+  const Compound& c = d.compound;
+  const double T = d.request.temperature_C;
+  const double mm = d.free_molar_mass_g_per_mol;
+
+  ReportTable pk{"pka.csv", "Ionization constants", {"group", "type", "pKa", "at (°C)", "dH (kJ/mol)",
+                                                     "dCp (J/K/mol)", "sd (pKa units)", "pKa at " + fixed(T, 1) + " °C"}, {}};
+  for (std::size_t i = 0; i < c.system.pkas.size(); ++i) {
+    const Pka& k = c.system.pkas[i];
+    pk.rows.push_back({"pKa" + std::to_string(i + 1), k.type == GroupType::kAcid ? "acid" : "base", fixed(k.value, 2),
+                       fixed(k.ref_temperature_C, 1), fixed(k.dH_kJ_per_mol, 1), fixed(k.dCp_J_per_K_mol, 1),
+                       k.sd > 0 ? fixed(k.sd, 2) : "", fixed(k.at(T), 3)});
+  }
+  tables.push_back(pk);
+
+  ReportTable props{"compound.csv", "Compound and free form", {"quantity", "value", "unit"}, {}};
+  props.rows.push_back({"id", c.id, ""});
+  props.rows.push_back({"name", c.name, ""});
+  props.rows.push_back({"molar mass, free form", fixed(mm, 2), "g/mol"});
+  props.rows.push_back({"net charge of the most protonated form", std::to_string(c.system.z0()), ""});
+  if (c.has_intrinsic_solubility) {
+    props.rows.push_back({"intrinsic solubility S0", sig(c.s0_mol_per_L, 4), "mol/L"});
+    props.rows.push_back({"intrinsic solubility S0", sig(c.s0_mol_per_L * mm, 4), "mg/mL"});
+    props.rows.push_back({"S0 measured at", fixed(c.s0_ref_temperature_C, 1), "°C"});
+    props.rows.push_back({"enthalpy of solution", c.s0_dH_kJ_per_mol ? fixed(*c.s0_dH_kJ_per_mol, 1) : "not given", "kJ/mol"});
+    props.rows.push_back({"S0 at " + fixed(T, 1) + " °C", sig(c.s0_at(T), 4), "mol/L"});
+    if (c.s0_log_sd > 0) props.rows.push_back({"uncertainty of log10 S0", fixed(c.s0_log_sd, 2), "log10 units"});
+  }
+  tables.push_back(props);
+
+  if (!c.salts.empty()) {
+    ReportTable salts{"salts.csv", "Salt forms (1:1)", {"salt", "counterion", "molar mass (g/mol)", "solubility in water (given)",
+                                                        "Ksp (mol²/L²)", "Ksp source", "at (°C)", "dH of dissolution (kJ/mol)",
+                                                        "Ksp at " + fixed(T, 1) + " °C (mol²/L²)"}, {}};
+    for (std::size_t i = 0; i < c.salts.size(); ++i) {
+      const Salt& s = c.salts[i];
+      const bool derived = s.solubility_in_water_mol_per_L.has_value() && !s.solubility_in_water_text.empty();
+      salts.rows.push_back({s.id, s.counterion, s.molar_mass_g_per_mol > 0 ? fixed(s.molar_mass_g_per_mol, 2) : "",
+                            s.solubility_in_water_text, sig(s.ksp.value_or(NAN), 4),
+                            derived ? "derived from the solubility in water" : "given",
+                            fixed(s.ref_temperature_C, 1), fixed(s.dH_kJ_per_mol, 1),
+                            sig(d.salt_ksp_at_run_temperature[i], 4)});
+    }
+    tables.push_back(salts);
+  }
+
+  ReportTable prof{"profile.csv", "pH-solubility profile in water at " + fixed(T, 1) + " °C (pH held by HCl or NaOH)",
+                   {"pH", "solubility (mol/L)", "solubility (mg/mL)", "Henderson-Hasselbalch, ideal (mol/L)",
+                    "limiting solid", "ionic strength (mol/L)"}, {}};
+  const int nsp = static_cast<int>(c.system.pkas.size()) + 1;
+  for (int j = 0; j < nsp; ++j) prof.header.push_back("fraction " + c.system.species_label(j));
+  for (const SolubilityAtPh& s : d.profile) {
+    std::vector<std::string> r = {fixed(s.pH, 2), sig(s.solubility_mol_per_L, 4), sig(s.solubility_mol_per_L * mm, 4),
+                                  sig(s.ideal_solubility_mol_per_L, 4), s.limiting_solid, sig(s.ionic_strength_mol_per_L, 4)};
+    for (int j = 0; j < nsp; ++j) r.push_back(j < static_cast<int>(s.fractions.size()) ? fixed(s.fractions[j], 4) : "");
+    prof.rows.push_back(std::move(r));
+  }
+  tables.push_back(prof);
+
+  ReportTable pm{"phmax.csv", "pHmax in water at " + fixed(T, 1) + " °C", {"salt", "pHmax"}, {}};
+  for (const PhMaxPoint& x : d.pHmax) pm.rows.push_back({x.salt, fixed(x.pH, 2)});
+  tables.push_back(pm);
+
+  if (d.dose_in_water) {
+    const Equilibrium& e = d.dose_in_water->equilibrium;
+    ReportTable w{"dose-in-water.csv", "The dose in water alone at " + fixed(T, 1) + " °C", {"quantity", "value", "unit"}, {}};
+    w.rows.push_back({"dose as given", d.request.dose_text + " " + form_label(d.request.form), ""});
+    w.rows.push_back({"dose", sig(d.request.dose_mol_per_L, 4), "mol/L"});
+    w.rows.push_back({"dose as free form", sig(d.request.dose_mol_per_L * mm, 4), "mg/mL"});
+    w.rows.push_back({"pH", fixed(e.pH, 2), ""});
+    if (e.drug) {
+      w.rows.push_back({"dissolved", sig(e.drug->dissolved_mol_per_L, 4), "mol/L"});
+      w.rows.push_back({"dissolved as free form", sig(e.drug->dissolved_mg_per_mL, 4), "mg/mL"});
+      w.rows.push_back({"solid remaining", e.drug->solid, ""});
+      w.rows.push_back({"saturation ratio (whole dose dissolved)", sig(e.drug->saturation_ratio, 4), ""});
+    }
+    w.rows.push_back({"ionic strength", sig(e.ionic_strength_mol_per_L, 4), "mol/L"});
+    w.rows.push_back({"osmolarity, ideal", fixed(e.osmolarity_mOsm_per_L, 1), "mOsm/L"});
+    tables.push_back(w);
+  }
+  return tables;
+}
+
+std::string table_csv(const ReportTable& t) {
+  std::ostringstream out;
+  write_csv_row(out, t.header);
+  for (const auto& r : t.rows) write_csv_row(out, r);
+  return out.str();
+}
+
+// ---------------------------------------------------------------------------------------------
+// HTML
+
+namespace {
+
+struct Section {
+  std::string id;
+  std::string title;
+};
+
+svg::Chart profile_chart(const ReportData& d) {
+  const Compound& c = d.compound;
+  const double mm = d.free_molar_mass_g_per_mol;
+  svg::Chart ch;
+  ch.id = "chart-profile";
+  ch.title = "pH-solubility of " + c.name + " in water at " + fixed(d.request.temperature_C, 1) + " °C";
+  ch.x = {"pH", d.request.profile_from_pH, d.request.profile_to_pH, svg::Scale::kLinear, 1.0, 0};
+  double lo = 1e300, hi = 0;
+  svg::Series model{"model (Davies activities, salt limits)", {}, {}, svg::SeriesKind::kLine, 0, 3.0, true};
+  svg::Series ideal{"Henderson-Hasselbalch, ideal (no salt limit)", {}, {}, svg::SeriesKind::kLine, 6, 2.0};
+  for (const SolubilityAtPh& s : d.profile) {
+    model.x.push_back(s.pH);
+    model.y.push_back(s.solubility_mol_per_L);
+    ideal.x.push_back(s.pH);
+    ideal.y.push_back(s.ideal_solubility_mol_per_L);
+    if (s.solubility_mol_per_L > 0) {
+      lo = std::min(lo, s.solubility_mol_per_L);
+      hi = std::max(hi, s.solubility_mol_per_L);
+    }
+  }
+  ch.series.push_back(model);
+  ch.series.push_back(ideal);
+  if (!c.measured.empty()) {
+    svg::Series meas{"measured (compound file)", {}, {}, svg::SeriesKind::kMarkers, 1};
+    for (const MeasuredPoint& m : c.measured) {
+      meas.x.push_back(m.pH);
+      meas.y.push_back(m.solubility_mol_per_L);
+      lo = std::min(lo, m.solubility_mol_per_L);
+      hi = std::max(hi, m.solubility_mol_per_L);
+    }
+    ch.series.push_back(meas);
+  }
+  const double dose = d.request.dose_mol_per_L;
+  if (dose > 0) {
+    lo = std::min(lo, dose);
+    hi = std::max(hi, dose);
+  }
+  if (!(hi > 0)) {
+    lo = 1e-6;
+    hi = 1;
+  }
+  const double ylo = std::pow(10.0, std::floor(std::log10(lo) - 0.3));
+  const double yhi = std::min(std::pow(10.0, std::ceil(std::log10(hi) + 0.3)), 100.0);
+  ch.y = {"solubility (mol/L)", ylo, std::max(yhi, ylo * 100), svg::Scale::kLog10};
+  ch.y2 = svg::SecondaryAxis{"solubility (mg/mL, as free form)", mm};
+  int tint = 0;
+  std::map<std::string, int> tints;
+  for (const Run& r : salt_runs(d.profile)) {
+    if (!tints.count(r.solid)) tints[r.solid] = tint++;
+    ch.bands.push_back(svg::Band{svg::Band::Orientation::kVertical, r.from, r.to, r.solid + " limits", tints[r.solid]});
+  }
+  for (const PhMaxPoint& p : d.pHmax) {
+    ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, p.pH, "pHmax " + fixed(p.pH, 2) + " (" + p.salt + ")",
+                                    1, true, false});
+  }
+  if (d.request.target_pH) {
+    ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, *d.request.target_pH,
+                                    "target pH " + fixed(*d.request.target_pH, 2), 2, false, false});
+  }
+  if (dose > 0) {
+    ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kHorizontal, dose,
+                                    "dose " + d.request.dose_text + " (" + form_label(d.request.form) + ") = " +
+                                        mg_per_mL(dose, mm) + " mg/mL free form",
+                                    7, true, true});
+  }
+  std::ostringstream desc;
+  desc << "Log-scale chart of the solubility of " << c.name << " against pH from " << fixed(d.request.profile_from_pH, 1)
+       << " to " << fixed(d.request.profile_to_pH, 1) << ". The model solubility ranges from " << sig(lo, 3) << " to "
+       << sig(hi, 3) << " mol/L.";
+  for (const PhMaxPoint& p : d.pHmax) desc << " pHmax of the " << p.salt << " is " << fixed(p.pH, 2) << ".";
+  if (dose > 0) desc << " The dose, " << sig(dose, 3) << " mol/L, is drawn as a horizontal line.";
+  ch.description = desc.str();
+  return ch;
+}
+
+svg::Chart species_chart(const ReportData& d) {
+  const Compound& c = d.compound;
+  svg::Chart ch;
+  ch.id = "chart-species";
+  ch.title = "Species of " + c.name + " against pH at " + fixed(d.request.temperature_C, 1) + " °C";
+  ch.x = {"pH", d.request.profile_from_pH, d.request.profile_to_pH, svg::Scale::kLinear, 1.0, 0};
+  ch.y = {"fraction of dissolved drug", 0.0, 1.0, svg::Scale::kLinear, 0.2, 1};
+  ch.plot_height = 260;
+  const int nsp = static_cast<int>(c.system.pkas.size()) + 1;
+  const int neutral = c.system.neutral_index();
+  for (int j = 0; j < nsp; ++j) {
+    const int z = c.system.charge_of(j);
+    std::string name = pretty_species(c.system.species_label(j)) + " (charge " + (z > 0 ? "+" : "") + std::to_string(z) +
+                       (j == neutral ? ", neutral form" : "") + ")";
+    svg::Series s{name, {}, {}, svg::SeriesKind::kLine, j, 2.5};
+    for (const SolubilityAtPh& p : d.profile) {
+      s.x.push_back(p.pH);
+      s.y.push_back(j < static_cast<int>(p.fractions.size()) ? p.fractions[j] : NAN);
+    }
+    ch.series.push_back(s);
+  }
+  for (std::size_t i = 0; i < c.system.pkas.size(); ++i) {
+    ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, c.system.pkas[i].at(d.request.temperature_C),
+                                    "pKa" + std::to_string(i + 1) + " " + fixed(c.system.pkas[i].at(d.request.temperature_C), 2),
+                                    6, true, false});
+  }
+  ch.description = "Fractions of the " + std::to_string(nsp) + " protonation states of " + c.name +
+                   " in its saturated solution against pH; curves cross at the pKa values.";
+  return ch;
+}
+
+void key(std::ostream& out, const std::string& cls, const std::string& label, const std::string& value,
+         const std::string& detail, const std::string& where) {
+  out << "<div class=\"key" << (cls.empty() ? "" : " " + cls) << "\"><div class=\"label\">" << esc(label)
+      << "</div><div class=\"value\">" << esc(value) << "</div><div class=\"detail\">" << esc(detail) << "</div>";
+  if (!where.empty()) out << "<div class=\"where\">" << esc(where) << "</div>";
+  out << "</div>\n";
+}
+
+}  // namespace
+
+void write_report_html(const ReportData& d, const std::string& csv_folder, std::ostream& out) {
+  const Compound& c = d.compound;
+  const double T = d.request.temperature_C;
+  const double mm = d.free_molar_mass_g_per_mol;
+  const std::vector<ReportTable> tables = report_tables(d);
+
+  std::vector<Section> sections = {{"summary", "Summary"}, {"compound", "Compound data"},
+                                   {"profile", "pH-solubility"}, {"species", "Species distribution"}};
+  if (d.dose_in_water) sections.push_back({"dose-in-water", "The dose in water"});
+  sections.push_back({"methods", "Methods, assumptions and references"});
+  sections.push_back({"traceability", "Traceability"});
+  auto number = [&](const std::string& id) {
+    for (std::size_t i = 0; i < sections.size(); ++i) {
+      if (sections[i].id == id) return "section " + std::to_string(i + 1);
+    }
+    return std::string("below");
+  };
+  auto heading = [&](const std::string& id) {
+    for (std::size_t i = 0; i < sections.size(); ++i) {
+      if (sections[i].id == id) {
+        out << "<h2><span class=\"num\">" << i + 1 << "</span>" << esc(sections[i].title) << "</h2>\n";
+        return;
+      }
+    }
+  };
+
+  out << "<!DOCTYPE html>\n<html xmlns=\"http://www.w3.org/1999/xhtml\" lang=\"en\" xml:lang=\"en\">\n<head>\n"
+      << "<meta charset=\"utf-8\"/>\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n"
+      << "<meta name=\"generator\" content=\"pkarta " << esc(d.provenance.tool_version) << "\"/>\n"
+      << "<title>Preformulation report: " << esc(c.name) << " (" << esc(c.id) << ")</title>\n<style>" << kCss
+      << "</style>\n</head>\n<body>\n";
+
+  out << "<header class=\"report-head\"><h1>Preformulation report: " << esc(c.name) << "</h1>\n<p>Compound id <code>"
+      << esc(c.id) << "</code> · " << fixed(T, 1) << " °C · " << esc(d.provenance.date_utc) << " · pkarta "
+      << esc(d.provenance.tool_version) << "</p></header>\n";
+
+  // Summary: the key numbers first, each saying where to find it.
+  out << "<section id=\"summary\">\n";
+  heading("summary");
+  out << "<div class=\"key-numbers\">\n";
+  if (d.request.dose_mol_per_L > 0) {
+    key(out, "lead", "Dose", d.request.dose_text + " " + form_label(d.request.form),
+        sig(d.request.dose_mol_per_L, 3) + " mol/L = " + mg_per_mL(d.request.dose_mol_per_L, mm) + " mg/mL as free form",
+        "Bold dashed black line across the pH-solubility chart (" + number("profile") + ").");
+  } else {
+    key(out, "", "Dose", "not given", "Give --dose to draw the dose line and judge the dose in water.", "");
+  }
+  if (!d.pHmax.empty()) {
+    std::string v, det;
+    for (std::size_t i = 0; i < d.pHmax.size(); ++i) {
+      v += (i ? " / " : "") + fixed(d.pHmax[i].pH, 2);
+      det += (i ? "; " : "") + d.pHmax[i].salt;
+    }
+    key(out, "lead", "pHmax", v, det + " in water, pH held by HCl or NaOH",
+        "Vermillion dashed vertical line on the pH-solubility chart (" + number("profile") + ").");
+  } else {
+    key(out, "", "pHmax", "none", "No salt limits the solubility in water with HCl or NaOH over the pH range shown.", "");
+  }
+  if (c.has_intrinsic_solubility) {
+    key(out, "", "Intrinsic solubility", sig(c.s0_at(T) * mm, 3) + " mg/mL",
+        sig(c.s0_at(T), 3) + " mol/L, free form at " + fixed(T, 1) + " °C", "Compound data (" + number("compound") + ").");
+  }
+  if (d.dose_in_water && d.dose_in_water->equilibrium.drug) {
+    const Equilibrium& e = d.dose_in_water->equilibrium;
+    const bool solid = e.drug->solid != "none";
+    key(out, solid ? "lead" : "", "Dose in water alone", "pH " + fixed(e.pH, 2),
+        solid ? "Not all dissolves: " + e.drug->solid + " remains (" + sig(e.drug->dissolved_mg_per_mL, 3) +
+                    " mg/mL dissolved)"
+              : "All of the dose dissolves (saturation ratio " + sig(e.drug->saturation_ratio, 3) + ")",
+        "The dose in water (" + number("dose-in-water") + ").");
+  }
+  out << "</div>\n";
+  out << "</section>\n";
+
+  // Caution.
+  out << "<div class=\"caution\" id=\"caution\" role=\"note\"><div class=\"sign\" aria-hidden=\"true\">!</div><p><strong>"
+         "Caution.</strong> "
+      << esc(std::string(caution_text()).substr(std::string("Caution: ").size())) << "</p></div>\n";
+  if (!d.warnings.empty()) {
+    out << "<ul class=\"warnings\">";
+    for (const std::string& w : d.warnings) out << "<li>" << esc(w) << "</li>";
+    out << "</ul>\n";
+  }
+
+  out << "<nav class=\"contents\" aria-label=\"contents\"><strong>Contents</strong><ol>";
+  for (const Section& s : sections) out << "<li><a href=\"#" << s.id << "\">" << esc(s.title) << "</a></li>";
+  out << "</ol></nav>\n";
+
+  // Compound data.
+  out << "<section id=\"compound\">\n";
+  heading("compound");
+  if (!c.description.empty()) out << "<p>" << esc(c.description) << "</p>\n";
+  for (const char* f : {"compound.csv", "pka.csv", "salts.csv"}) {
+    if (const ReportTable* t = find_table(tables, f)) write_table_html(*t, out, csv_folder);
+  }
+  out << "<p class=\"muted\">A salt given by its solubility in water has its Ksp (activity product) derived from the salt "
+         "dissolved in pure water at the pH it sets itself, at the salt's temperature.</p>\n";
+  out << "</section>\n";
+
+  // Profile.
+  out << "<section id=\"profile\">\n";
+  heading("profile");
+  out << "<figure>\n";
+  svg::write_svg(profile_chart(d), out);
+  out << "<figcaption><strong>How to read it.</strong> Solubility on a log scale: mol/L on the left axis, mg/mL of free "
+         "form on the right. The thick blue line is the model; the grey dotted line the ideal Henderson-Hasselbalch "
+         "curve without salt limits. Shaded pH ranges are limited by a salt (its name is written in the band); "
+         "elsewhere the free form limits. Where the dose line lies above the blue line, the dose does not dissolve at "
+         "that pH.";
+  if (!c.measured.empty()) out << " Squares are the shake-flask points of the compound file.";
+  out << "</figcaption>\n</figure>\n";
+  if (const ReportTable* t = find_table(tables, "phmax.csv")) {
+    if (!t->rows.empty()) write_table_html(*t, out, csv_folder);
+  }
+  {
+    std::vector<std::string> cannot;
+    for (const Salt& s : c.salts) {
+      if (s.counterion != "Cl-" && s.counterion != "Na+") cannot.push_back(s.id + " (" + s.counterion + ")");
+    }
+    if (!cannot.empty()) {
+      out << "<p class=\"muted\">Salts whose counterion is not in this medium cannot limit here: ";
+      for (std::size_t i = 0; i < cannot.size(); ++i) out << (i ? ", " : "") << esc(cannot[i]);
+      out << ".</p>\n";
+    }
+  }
+  if (const ReportTable* t = find_table(tables, "profile.csv")) {
+    std::vector<std::size_t> rows;
+    for (std::size_t i = 0; i < d.profile.size(); ++i) {
+      const double x = d.profile[i].pH * 2.0;
+      if (std::fabs(x - std::round(x)) < 1e-6) rows.push_back(i);
+    }
+    write_table_html(*t, out, csv_folder, &rows,
+                     "Every 0.5 pH shown; the CSV holds every " + fixed(d.request.profile_step_pH, 2) + " pH.");
+  }
+  out << "</section>\n";
+
+  // Species.
+  out << "<section id=\"species\">\n";
+  heading("species");
+  out << "<figure>\n";
+  svg::write_svg(species_chart(d), out);
+  out << "<figcaption><strong>How to read it.</strong> Share of each protonation state of the dissolved drug; the "
+         "grey dashed vertical lines mark the pKa values at "
+      << fixed(T, 1)
+      << " °C. The fractions are in the profile CSV.</figcaption>\n</figure>\n";
+  out << "</section>\n";
+
+  if (d.dose_in_water) {
+    out << "<section id=\"dose-in-water\">\n";
+    heading("dose-in-water");
+    out << "<p>The dose dissolved in water with nothing else (no buffer, no pH adjustment), at " << fixed(T, 1)
+        << " °C: the pH it sets itself and what stays undissolved.</p>\n";
+    if (const ReportTable* t = find_table(tables, "dose-in-water.csv")) write_table_html(*t, out, csv_folder);
+    out << "</section>\n";
+  }
+
+  // Methods.
+  out << "<section id=\"methods\">\n";
+  heading("methods");
+  out << "<ul>\n"
+         "<li>Species fractions from the macroscopic pKa values (Henderson-Hasselbalch form [1]) with "
+         "thermodynamic constants corrected to the ionic strength by the Davies equation [2], solved "
+         "self-consistently with the pH. Above 0.5 mol/L ionic strength the Davies equation is outside its range.</li>\n"
+         "<li>Temperature: pKa, Ksp and S0 by the van 't Hoff equation with constant heat capacity of ionization [3]; "
+         "buffer constants from the compilation of Goldberg, Kishore and Lennen [3] as named in the library. "
+         "Water: pKw after Harned and Robinson [6], density after Kell [7], dielectric constant after Malmberg and "
+         "Maryott [8].</li>\n"
+         "<li>Solids: the free form (net-neutral species) saturates at S0; a 1:1 salt at a(drug ion) a(X) = Ksp. "
+         "pHmax is where the free-form and salt curves cross in the medium [9].</li>\n"
+         "<li>Profile: at each pH the free form is in excess in water, the pH held by HCl or NaOH; a salt "
+         "precipitates where its ion product would exceed Ksp, its counterion coming from the titrant.</li>\n"
+         "<li>Buffer capacity as d(strong base)/d(pH) of the closed system; its ideal limit is van Slyke's [4].</li>\n"
+         "<li>Solubility classification follows ICH M9 [5]: highest dose in 250 mL over pH 1.2-6.8 at 37 °C.</li>\n"
+         "<li>Activity model: "
+      << (d.request.activity == ActivityModel::kDavies ? "Davies" : "ideal (activity coefficients 1)")
+      << ". pH means -log10 a(H+). Closed systems: no CO2 exchange with air. Not modelled: aggregation, micelles, "
+         "complexation, polymorphs and hydrates of the drug, cosolvents, ion pairing, kinetics.</li>\n</ul>\n"
+         "<ol class=\"refs\">\n"
+         "<li>Henderson LJ (1908) Am. J. Physiol. 21, 173; Hasselbalch KA (1916) Biochem. Z. 78, 112.</li>\n"
+         "<li>Davies CW (1962) Ion Association. Butterworths, London.</li>\n"
+         "<li>Goldberg RN, Kishore N, Lennen RM (2002) Thermodynamic quantities for the ionization reactions of "
+         "buffers. J. Phys. Chem. Ref. Data 31, 231.</li>\n"
+         "<li>van Slyke DD (1922) On the measurement of buffer values. J. Biol. Chem. 52, 525.</li>\n"
+         "<li>ICH M9 (2019) Biopharmaceutics classification system-based biowaivers.</li>\n"
+         "<li>Harned HS, Robinson RA (1940) Trans. Faraday Soc. 36, 973.</li>\n"
+         "<li>Kell GS (1975) J. Chem. Eng. Data 20, 97.</li>\n"
+         "<li>Malmberg CG, Maryott AA (1956) J. Res. Natl. Bur. Stand. 56, 1.</li>\n"
+         "<li>Kramer SF, Flynn GL (1972) Solubility of organic hydrochlorides. J. Pharm. Sci. 61, 1896.</li>\n"
+         "</ol>\n</section>\n";
+
+  // Traceability.
+  out << "<section id=\"traceability\">\n";
+  heading("traceability");
+  const Provenance& p = d.provenance;
+  out << "<dl class=\"trace\">\n<dt>tool</dt><dd>pkarta " << esc(p.tool_version) << "</dd>\n<dt>library</dt><dd>"
+      << esc(p.library_id) << " version " << esc(p.library_version) << "</dd>\n<dt>date (UTC)</dt><dd>"
+      << esc(p.date_utc) << "</dd>\n<dt>temperature</dt><dd>" << fixed(T, 1) << " °C</dd>\n<dt>activity model</dt><dd>"
+      << (d.request.activity == ActivityModel::kDavies ? "Davies" : "ideal") << "</dd>\n<dt>profile</dt><dd>pH "
+      << fixed(d.request.profile_from_pH, 2) << " to " << fixed(d.request.profile_to_pH, 2) << " step "
+      << fixed(d.request.profile_step_pH, 2) << ", water, HCl or NaOH</dd>\n";
+  if (!p.command_line.empty()) out << "<dt>command</dt><dd><code>" << esc(p.command_line) << "</code></dd>\n";
+  out << "</dl>\n<div class=\"table-wrap\"><table class=\"inputs\">\n<caption>Input files</caption>\n<thead><tr><th "
+         "scope=\"col\">role</th><th scope=\"col\">file</th><th scope=\"col\">bytes</th><th "
+         "scope=\"col\">SHA-256</th></tr></thead>\n<tbody>\n";
+  for (const InputFile& f : p.inputs) {
+    out << "<tr><th scope=\"row\">" << esc(f.role) << "</th><td>" << esc(f.path) << "</td><td class=\"num\">" << f.bytes
+        << "</td><td class=\"hash\">" << esc(f.sha256) << "</td></tr>\n";
+  }
+  out << "</tbody></table></div>\n</section>\n";
+  out << "<footer>Written by pkarta " << esc(p.tool_version) << ". " << esc(caution_text()) << "</footer>\n";
+  out << "</body>\n</html>\n";
+}
+
+std::vector<std::string> write_report_files(const ReportData& data, const std::string& html_path,
+                                            const std::vector<std::string>& inputs_to_protect) {
+  const fs::path html(html_path);
+  const std::string stem = html.stem().string();
+  const fs::path folder = html.parent_path() / stem;
+  refuse_to_overwrite_inputs(html_path, inputs_to_protect);
+  // The HTML's folder must exist (a mistyped folder is not created); the CSV folder is made.
+  if (html.has_parent_path() && !fs::is_directory(html.parent_path())) {
+    throw std::system_error(ENOENT, std::generic_category(), "cannot write " + html_path);
+  }
+  std::error_code ec;
+  fs::create_directories(folder, ec);
+  if (ec) throw std::system_error(ec, "cannot create folder " + folder.string());
+  std::vector<std::string> written;
+  for (const ReportTable& t : report_tables(data)) {
+    const std::string path = (folder / t.file).string();
+    write_file_atomically(path, table_csv(t), inputs_to_protect);
+    written.push_back(path);
+  }
+  std::ostringstream out;
+  write_report_html(data, stem, out);
+  write_file_atomically(html_path, out.str(), inputs_to_protect);
+  written.push_back(html_path);
+  return written;
+}
+
+}  // namespace pkarta
