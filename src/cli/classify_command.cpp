@@ -1,12 +1,108 @@
-// Placeholder until the classify analysis lands.
+// `pkarta classify`: solubility classification over pH 1.2-6.8 at 37 °C (ICH M9, 2019).
+#include <iostream>
+
 #include "cli_common.h"
 #include "commands.h"
+#include "pkarta/classify.h"
+#include "pkarta/profile.h"
 
 namespace pkarta::cli {
 
-int run_classify(const Args&) {
-  error("the 'classify' command is not available in this build");
-  return kExitRefused;
+namespace {
+// A number > 0 from an option value; errors name the option.
+double positive_option(const std::string& option, const std::string& text, const std::string& what) {
+  double v;
+  try {
+    v = parse_number(text, "value");
+  } catch (const InputError& e) {
+    throw InputError(SourceLocation{option, 0, 0}, e.message());
+  }
+  if (!(v > 0)) throw InputError(SourceLocation{option, 0, 0}, what + " " + text + " must be > 0");
+  return v;
+}
+}  // namespace
+
+int run_classify(const Args& args) {
+  return guarded([&] {
+    CommonOptions common;
+    std::string compound_file, dose, volume = "250", temp = "37", form = "free", acid = "HCl", base = "NaOH",
+                step = "0.01";
+    bool ideal = false, no_media = false;
+    po::options_description desc("classify options");
+    desc.add_options()
+        ("compound", po::value(&compound_file), "compound XML file (required)")
+        ("dose-mg", po::value(&dose), "highest single therapeutic dose, mg of the form given (required)")
+        ("form", po::value(&form)->default_value("free"), "form the dose is expressed in: free or a salt id")
+        ("volume-mL", po::value(&volume)->default_value("250"), "volume of medium, mL (ICH M9: 250)")
+        ("temp", po::value(&temp)->default_value("37"), "temperature, °C (ICH M9: 37 ± 1)")
+        ("step", po::value(&step)->default_value("0.01"), "scan step over pH 1.2-6.8 (at most 0.1)")
+        ("acid", po::value(&acid)->default_value("HCl"), "strong acid holding the low pH of the scan")
+        ("base", po::value(&base)->default_value("NaOH"), "strong base holding the high pH of the scan")
+        ("ideal", po::bool_switch(&ideal), "activity coefficients 1 (no Davies correction)")
+        ("no-media", po::bool_switch(&no_media), "skip the dose in the pharmacopeial media");
+    add_common_options(desc, common);
+    parse(args, desc);
+    if (common.help) {
+      print_help(std::cout,
+                 "pkarta classify --compound F --dose-mg N [--form free|SALT] [--volume-mL 250] [--temp 37]",
+                 desc);
+      std::cout
+          << "ICH M9 (2019): highly soluble when the highest single therapeutic dose dissolves in\n"
+             "250 mL or less of aqueous media over pH 1.2-6.8 at 37 ± 1 °C. Convention: the whole\n"
+             "range is scanned (every 0.01 pH, minimum refined to 1e-6 pH) with the equilibrium\n"
+             "solubility in water, excess solid, pH held by HCl or NaOH; the dose number\n"
+             "D0 = (dose / 250 mL) / S is reported at pH 1.2, 4.5, 6.8, at each pKa in the range and at\n"
+             "the minimum; solubilities are in mg/mL of the form the dose is given in. The dose is also\n"
+             "dissolved in the library media hcl-1.2, acetate-4.5 and phosphate-6.8 (closed system) to\n"
+             "show the pH after the dose; those checks inform, the scan decides.\n";
+      return 0;
+    }
+    check_format(common.format);
+    if (compound_file.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "--compound FILE is required");
+    if (dose.empty()) {
+      throw InputError(SourceLocation{"--dose-mg", 0, 0}, "--dose-mg N is required (highest single dose, mg)");
+    }
+    ClassifyOptions o;
+    o.dose_mg = positive_option("--dose-mg", dose, "dose (mg)");
+    o.volume_mL = positive_option("--volume-mL", volume, "volume (mL)");
+    o.temperature_C = option_temperature("--temp", temp);
+    o.scan_step_pH = positive_option("--step", step, "step");
+    if (o.scan_step_pH > 0.1) {
+      throw InputError(SourceLocation{"--step", 0, 0}, "step " + step + " is above 0.1 pH: the scan would miss minima");
+    }
+    o.form = form;
+    o.acid_titrant = acid;
+    o.base_titrant = base;
+    o.activity = ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
+    o.check_media = !no_media;
+
+    const Library lib = load_libraries(common);
+    try {
+      titrant_strong_ion(lib, acid, -1);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--acid", 0, 0}, e.message());
+    }
+    try {
+      titrant_strong_ion(lib, base, +1);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--base", 0, 0}, e.message());
+    }
+    const Compound c = load_compound(compound_file, lib);
+    if (form != "free" && !c.salt(form)) {
+      std::string known = "free";
+      for (const Salt& s : c.salts) known += ", " + s.id;
+      throw InputError(SourceLocation{"--form", 0, 0},
+                       "compound '" + c.id + "' has no form '" + form + "' (forms: " + known + ")");
+    }
+    const ClassifyResult r = classify(c, lib, o);
+    if (common.format == "json") write_classify_json(r, std::cout);
+    else if (common.format == "csv") write_classify_csv(r, std::cout);
+    else write_classify_text(r, std::cout);
+    if (common.format != "text") {
+      for (const std::string& w : r.warnings) std::cerr << "pkarta: warning: " << w << "\n";
+    }
+    return 0;
+  });
 }
 
 }  // namespace pkarta::cli
