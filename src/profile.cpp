@@ -292,6 +292,14 @@ SolubilityAtPh SolubilityScanner::Impl::at(double pH) {
           salt_counterion = d;
         }
       }
+      // Each salt's ion product over Ksp in the state found (1 for the limiting one).
+      for (std::size_t k = 0; k < salts.size(); ++k) {
+        const SaltData& s = salts[k];
+        if (!s.usable) continue;
+        double x = s.x_med + (s.titrant_is_x && tau * s.zx > 0 ? std::fabs(tau) : 0.0);
+        if (s.id == solid) x += salt_counterion;
+        out.salt_saturation_at_free[k] = alpha[s.js] * dissolved * x * g1sq / s.ksp;
+      }
     }
     // Ionic strength of the saturated solution: medium + drug + titrant ion (+ salt counterion).
     const double tit_z = tau > 0 ? base_charge : -acid_charge;
@@ -630,7 +638,8 @@ void write_profile_text(const Profile& p, std::ostream& out, double row_interval
   if (p.medium_contents.empty()) out << "water";
   for (std::size_t i = 0; i < p.medium_contents.size(); ++i) out << (i ? ", " : "") << p.medium_contents[i];
   out << "\n  pH held by " << p.acid_titrant << " (" << p.acid_ion << ") or " << p.base_titrant << " ("
-      << p.base_ion << "); excess free form; activity: " << activity_text(p.activity)
+      << p.base_ion << "); excess " << (p.s0_mol_per_L > 0 ? "free form" : "salt (no net-neutral form)")
+      << "; activity: " << activity_text(p.activity)
       << "; pH = -log10 a(H+)\n";
   if (p.s0_mol_per_L > 0) {
     out << "  intrinsic solubility S0 at " << temp_text(p.temperature_C) << ": " << sig(p.s0_mol_per_L, 4)

@@ -342,6 +342,67 @@ TEST(ProfileSaltOnly, PermanentCationChlorideDissolvesAtRootKsp) {
   }
   const Profile p = compute_profile(c, lib(), ideal_water(), ProfileGrid{});
   EXPECT_TRUE(p.ph_max.empty());
+  EXPECT_TRUE(p.warnings.empty());
+  // With a bromide as well, each pH takes the less soluble salt, and the other one stays
+  // undersaturated in that solution even where the titrant brings its counterion.
+  const Compound two = compound_from(
+      "<compound id=\"q\" name=\"quaternary\" molar-mass=\"250\" permanent-charge=\"1\">"
+      "<pka value=\"4\" type=\"base\"/>"
+      "<salt id=\"chloride\" counterion=\"Cl-\" ksp=\"1e-2\"/><salt id=\"bromide\" counterion=\"Br-\" ksp=\"1e-3\"/>"
+      "</compound>");
+  ProfileConditions saline;  // 0.5 M NaCl, Davies: there the chloride is the less soluble salt
+  add_reagent(saline.medium, lib(), "NaCl", 0.5);
+  for (const ProfileConditions& cond : {ideal_water(), saline}) {
+    SolubilityScanner q(two, lib(), cond);
+    bool chloride_seen = false;
+    for (double pH = 0.0; pH <= 14.0; pH += 0.25) {
+      const SolubilityAtPh r = q.at(pH);
+      ASSERT_NE(r.limiting_solid, "none");
+      chloride_seen = chloride_seen || r.limiting_solid == "chloride";
+      for (std::size_t k = 0; k < 2; ++k) {
+        const double expected = two.salts[k].id == r.limiting_solid ? 1.0 : 0.0;
+        if (expected == 1.0) EXPECT_NEAR(r.salt_saturation_at_free[k], 1.0, 1e-9) << pH;
+        else EXPECT_LE(r.salt_saturation_at_free[k], 1.0 + 1e-9) << pH;
+      }
+    }
+    EXPECT_EQ(chloride_seen, !cond.medium.ions.empty());
+  }
+}
+
+// --- Agreement with the closed-system solver ------------------------------------------------
+// A profile point (pH, S, titrant) rebuilt as a closed mixture (DESIGN.md section 2): twice S
+// of free form, the titrant, plus the counterion that the precipitated salt took out of
+// solution; solve() must return the same pH, dissolved amount and solid. Checked inside the
+// Davies range (I <= 0.5 mol/L; beyond 1 mol/L the profile holds the coefficients at I = 1).
+
+TEST(ProfileConsistency, EachPointIsAClosedSystemEquilibrium) {
+  for (const char* file : {"demo-base", "demo-acid", "demo-ampholyte"}) {
+    const Compound c = compound_from(read_text_file(std::string(PKARTA_SOURCE_DIR) + "/compounds/" + file + ".xml"));
+    for (const char* medium : {"", "saline-0.9"}) {
+      ProfileConditions cond;
+      cond.temperature_C = 37.0;
+      if (*medium) add_medium(cond.medium, lib(), medium);
+      SolubilityScanner scanner(c, lib(), cond);
+      for (double pH = 1.5; pH <= 12.5; pH += 0.25) {
+        const SolubilityAtPh r = scanner.at(pH);
+        if (r.capped || r.ionic_strength_mol_per_L > 0.5) continue;
+        Mixture m = cond.medium;
+        m.temperature_C = cond.temperature_C;
+        const double dose = 2.0 * r.solubility_mol_per_L;
+        add_drug(m, lib(), c, dose, "free");
+        if (r.titrant_mol_per_L < 0) add_reagent(m, lib(), "HCl", -r.titrant_mol_per_L);
+        if (r.titrant_mol_per_L > 0) add_reagent(m, lib(), "NaOH", r.titrant_mol_per_L);
+        if (const Salt* salt = c.salt(r.limiting_solid)) {
+          add_reagent(m, lib(), salt->counterion == "Cl-" ? "HCl" : "NaOH", dose - r.solubility_mol_per_L);
+        }
+        const Equilibrium e = solve(m);
+        ASSERT_TRUE(e.usable()) << file << " " << medium << " pH " << pH << ": " << e.message;
+        EXPECT_NEAR(e.pH, pH, 1e-9) << file << " " << medium;
+        EXPECT_NEAR(e.drug->dissolved_mol_per_L / r.solubility_mol_per_L, 1.0, 1e-8) << file << " " << medium << " " << pH;
+        EXPECT_EQ(e.drug->solid, r.limiting_solid) << file << " " << medium << " pH " << pH;
+      }
+    }
+  }
 }
 
 // --- Profile bookkeeping --------------------------------------------------------------------

@@ -46,8 +46,8 @@ struct SolubilityAtPh {
   double titrant_mol_per_L = 0.0;           ///< > 0: base titrant added; < 0: acid titrant
                                             ///< (equivalents of charge per litre)
   /// For each compound salt (same order as compound.salts): ion product at free-form saturation
-  /// over Ksp (> 1: the salt limits). 0 when its counterion is absent, and for every salt of a
-  /// compound without a net-neutral form.
+  /// over Ksp (> 1: the salt limits); 0 when its counterion is absent. For a compound without a
+  /// net-neutral form: the ion product over Ksp in the state reported (1 for the limiting salt).
   std::vector<double> salt_saturation_at_free;
   bool capped = false;                      ///< solubility above kSolubilityCap_mol_per_L
 };
