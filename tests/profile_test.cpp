@@ -18,7 +18,7 @@ namespace {
 
 using namespace pkarta;
 
-constexpr double kClosedFormRel = 1e-9;  // the brief's bound for the ideal HH equations
+constexpr double kClosedFormRel = 1e-9;  // required accuracy of the ideal HH checks (relative)
 
 const Library& lib() {
   static const Library l = builtin_library();
