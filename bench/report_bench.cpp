@@ -27,7 +27,7 @@ struct DemoCase {
 };
 constexpr DemoCase kCases[] = {{"demo-base", "2mg/mL", "hydrochloride", 5.0},
                                {"demo-acid", "5mg/mL", "sodium", 7.4},
-                               {"demo-ampholyte", "0.5mg/mL", "hydrochloride", 3.0}};
+                               {"demo-ampholyte", "0.1mg/mL", "hydrochloride", 7.0}};
 
 std::size_t demo_reports(const Library& lib, const std::string& dir) {
   std::size_t bytes = 0;

@@ -27,7 +27,7 @@ void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::
 }
 
 void write_file_atomically(const std::string& path, std::string_view content,
-                           const std::vector<std::string>& inputs_to_protect) {
+                           const std::vector<std::string>& inputs_to_protect, bool durable) {
   refuse_to_overwrite_inputs(path, inputs_to_protect);
   const fs::path target(path);
   const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
@@ -58,7 +58,7 @@ void write_file_atomically(const std::string& path, std::string_view content,
     p += n;
     left -= static_cast<std::size_t>(n);
   }
-  if (::fsync(fd) != 0 && errno != EINVAL && errno != EROFS) {
+  if (durable && ::fsync(fd) != 0 && errno != EINVAL && errno != EROFS) {
     const int err = errno;
     ::close(fd);
     ::unlink(tmp.c_str());

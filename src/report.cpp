@@ -28,18 +28,6 @@ using svg::xml_escape;
 // ---------------------------------------------------------------------------------------------
 // Analysis helpers
 
-// Bisects the switch of the limiting solid between two profile points (a < b) whose limiting
-// solids differ; returns the pH where the solid named `salt` stops (or starts) limiting.
-double refine_switch(const Compound& c, const Library& lib, const ProfileConditions& cond, double a,
-                     double b, const std::string& solid_at_a) {
-  for (int i = 0; i < 40 && b - a > 1e-7; ++i) {
-    const double m = 0.5 * (a + b);
-    if (solubility_at_pH(c, lib, m, cond).limiting_solid == solid_at_a) a = m;
-    else b = m;
-  }
-  return 0.5 * (a + b);
-}
-
 InputFile hash_file(const std::string& role, const std::string& path) {
   const std::string text = read_text_file(path);
   return InputFile{role, path, sha256_hex(text), static_cast<std::uint64_t>(text.size())};
@@ -81,7 +69,8 @@ bool numeric_cell(const std::string& s) {
 }
 
 void write_table_html(const ReportTable& t, std::ostream& out, const std::string& csv_folder,
-                      const std::vector<std::size_t>* rows = nullptr, const std::string& note = "") {
+                      const std::vector<std::size_t>* rows = nullptr, const std::string& note = "",
+                      int lead_row = -1) {
   out << "<div class=\"table-wrap\"><table data-csv=\"" << esc(t.file) << "\">\n<caption>" << esc(t.caption);
   if (!csv_folder.empty()) {
     out << " <a class=\"csv-link\" href=\"" << esc(csv_folder + "/" + t.file) << "\">CSV: " << esc(t.file) << "</a>";
@@ -91,7 +80,8 @@ void write_table_html(const ReportTable& t, std::ostream& out, const std::string
   for (const std::string& h : t.header) out << "<th scope=\"col\">" << esc(h) << "</th>";
   out << "</tr></thead>\n<tbody>\n";
   auto row = [&](const std::vector<std::string>& r) {
-    out << "<tr>";
+    const bool lead = lead_row >= 0 && &r == &t.rows[static_cast<std::size_t>(lead_row)];
+    out << (lead ? "<tr class=\"lead\">" : "<tr>");
     for (std::size_t i = 0; i < r.size(); ++i) {
       const bool num = i > 0 && numeric_cell(r[i]);
       if (i == 0) out << "<th scope=\"row\">" << esc(r[i]) << "</th>";
@@ -119,7 +109,7 @@ struct Run {
   std::string solid;
   double from, to;
 };
-std::vector<Run> salt_runs(const std::vector<SolubilityAtPh>& profile) {
+std::vector<Run> salt_runs(const std::vector<ProfilePoint>& profile) {
   std::vector<Run> runs;
   for (std::size_t i = 0; i < profile.size(); ++i) {
     const std::string& s = profile[i].limiting_solid;
@@ -148,7 +138,7 @@ section { break-inside: auto; }
 .key-numbers { display: grid; grid-template-columns: repeat(3, 1fr); gap: 12px; margin: 18px 0 8px; }
 .key { border: 1px solid var(--rule); border-top: 5px solid var(--accent); padding: 10px 12px 12px; border-radius: 3px; }
 .key.lead { border-top-color: #d55e00; }
-.key .label { font-size: 12px; text-transform: uppercase; letter-spacing: 0.06em; color: var(--muted); font-weight: bold; }
+.key .label { font-size: 13px; letter-spacing: 0.02em; color: var(--muted); font-weight: bold; }
 .key .value { font-size: 23px; font-weight: bold; margin: 2px 0; }
 .key .detail { font-size: 13px; color: var(--ink); }
 .key .where { font-size: 12px; color: var(--muted); margin-top: 4px; }
@@ -172,7 +162,7 @@ caption .note { display: block; font-weight: normal; font-size: 12.5px; color: v
 th, td { padding: 4px 10px; border-bottom: 1px solid #e2e2e2; text-align: left; vertical-align: top; }
 thead th { border-bottom: 2px solid var(--ink); background: #f4f6f8; }
 tbody tr:nth-child(even) { background: #fafafa; }
-td.num { text-align: right; font-variant-numeric: tabular-nums; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 tr.lead th, tr.lead td { background: #fde9dc; font-weight: bold; }
 .muted { color: var(--muted); }
 .absent { border: 1px dashed var(--rule); padding: 8px 12px; color: var(--muted); font-size: 14px; }
@@ -258,25 +248,40 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
                                static_cast<std::uint64_t>(builtin.size())});
   for (const std::string& f : library_files) p.inputs.push_back(hash_file("library", f));
 
-  // pH-solubility profile in water, pH held by HCl or NaOH.
+  // pH-solubility profile in water, pH held by HCl or NaOH, with pHmax.
   ProfileConditions cond;
   cond.temperature_C = request.temperature_C;
   cond.activity = request.activity;
-  const int n = static_cast<int>(std::floor((request.profile_to_pH - request.profile_from_pH) / request.profile_step_pH + 1e-9));
-  d.profile.reserve(static_cast<std::size_t>(n) + 1);
-  for (int i = 0; i <= n; ++i) {
-    const double pH = request.profile_from_pH + i * request.profile_step_pH;
-    d.profile.push_back(solubility_at_pH(compound, library, pH, cond));
-  }
-  // pHmax: where a salt-limited stretch meets a free-form-limited one.
-  for (std::size_t i = 1; i < d.profile.size(); ++i) {
-    const std::string& a = d.profile[i - 1].limiting_solid;
-    const std::string& b = d.profile[i].limiting_solid;
-    if (a == b) continue;
-    const bool a_salt = a != "free" && a != "none", b_salt = b != "free" && b != "none";
-    if ((a_salt && b == "free") || (b_salt && a == "free")) {
-      const double x = refine_switch(compound, library, cond, d.profile[i - 1].pH, d.profile[i].pH, a);
-      d.pHmax.push_back(PhMaxPoint{a_salt ? a : b, x});
+  ProfileGrid grid;
+  grid.from_pH = request.profile_from_pH;
+  grid.to_pH = request.profile_to_pH;
+  grid.step_pH = request.profile_step_pH;
+  d.profile = compute_profile(compound, library, cond, grid);
+
+  // Buffer screen at the target pH, and the drift curves of its leading buffers.
+  if (request.target_pH && request.dose_mol_per_L > 0.0) {
+    ScreenOptions so;
+    so.target_pH = *request.target_pH;
+    so.tolerance_pH = request.tolerance_pH;
+    so.temperature_C = request.temperature_C;
+    so.buffers = request.buffers;
+    so.route = request.route;
+    so.activity = request.activity;
+    ScreenJob job{compound, request.dose_mol_per_L, request.form};
+    d.screen = screen(library, job, so);
+    for (const ScreenResult& r : d.screen->results) {
+      if (static_cast<int>(d.drift.size()) >= request.drift_buffers) break;
+      if (r.status != ScreenStatus::kOk && r.status != ScreenStatus::kNotAchievable) continue;
+      const Buffer& buffer = library.buffer(r.buffer);
+      DriftCurve curve{r.buffer, r.name, {}, {}, r.min_conc_mol_per_L};
+      const double top = buffer.max_conc_mol_per_L, bottom = std::min(1e-4, top / 100.0);
+      const int points = 25;
+      for (int i = 0; i < points; ++i) {
+        const double c = bottom * std::pow(top / bottom, static_cast<double>(i) / (points - 1));
+        curve.conc_mol_per_L.push_back(c);
+        curve.pH_after_drug.push_back(ph_after_drug(library, buffer, c, compound, request.dose_mol_per_L, request.form, so));
+      }
+      d.drift.push_back(std::move(curve));
     }
   }
 
@@ -290,12 +295,9 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     if (r.equilibrium.usable()) d.dose_in_water = std::move(r);
     else d.warnings.push_back("the dose in water did not converge: " + r.equilibrium.message);
   }
-  for (const SolubilityAtPh& s : d.profile) {
-    if (s.capped) {
-      d.warnings.push_back("solubility above " + sig(kSolubilityCap_mol_per_L, 2) +
-                           " mol/L is shown at that cap (no solid limits there)");
-      break;
-    }
+  for (const std::string& w : d.profile.warnings) d.warnings.push_back(w);
+  if (d.screen) {
+    for (const std::string& w : d.screen->warnings) d.warnings.push_back(w);
   }
   return d;
 }
@@ -355,7 +357,7 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                     "limiting solid", "ionic strength (mol/L)"}, {}};
   const int nsp = static_cast<int>(c.system.pkas.size()) + 1;
   for (int j = 0; j < nsp; ++j) prof.header.push_back("fraction " + c.system.species_label(j));
-  for (const SolubilityAtPh& s : d.profile) {
+  for (const ProfilePoint& s : d.profile.points) {
     std::vector<std::string> r = {fixed(s.pH, 2), sig(s.solubility_mol_per_L, 4), sig(s.solubility_mol_per_L * mm, 4),
                                   sig(s.ideal_solubility_mol_per_L, 4), s.limiting_solid, sig(s.ionic_strength_mol_per_L, 4)};
     for (int j = 0; j < nsp; ++j) r.push_back(j < static_cast<int>(s.fractions.size()) ? fixed(s.fractions[j], 4) : "");
@@ -363,8 +365,13 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
   }
   tables.push_back(prof);
 
-  ReportTable pm{"phmax.csv", "pHmax in water at " + fixed(T, 1) + " °C", {"salt", "pHmax"}, {}};
-  for (const PhMaxPoint& x : d.pHmax) pm.rows.push_back({x.salt, fixed(x.pH, 2)});
+  ReportTable pm{"phmax.csv", "pHmax in water at " + fixed(T, 1) + " °C",
+                 {"salt", "counterion", "pHmax", "solubility at pHmax (mol/L)", "solubility at pHmax (mg/mL)",
+                  "limiting solid changes there"}, {}};
+  for (const PhMax& x : d.profile.ph_max) {
+    pm.rows.push_back({x.salt, x.counterion, fixed(x.pH, 2), sig(x.solubility_mol_per_L, 4),
+                       sig(x.solubility_mol_per_L * mm, 4), x.on_profile ? "yes" : "no (a less soluble salt limits)"});
+  }
   tables.push_back(pm);
 
   if (d.dose_in_water) {
@@ -384,6 +391,42 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
     w.rows.push_back({"osmolarity, ideal", fixed(e.osmolarity_mOsm_per_L, 1), "mOsm/L"});
     tables.push_back(w);
   }
+
+  if (d.screen) {
+    const ScreenReport& sr = *d.screen;
+    ReportTable st{"screen.csv",
+                   "Buffer screen: target pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) + " after the dose, " +
+                       fixed(sr.temperature_C, 1) + " °C, " +
+                       (sr.route == "any" ? std::string("every buffer of the library") : "buffers the library lists for " + sr.route + " use"),
+                   {"buffer", "status", "min conc (mM)", "titrant", "titrant (mM)", "nearest pKa", "pH after dose",
+                    "capacity (mM per pH)", "osmolarity (mOsm/L)", "pH at " + fixed(sr.low_temperature_C, 0) + " °C",
+                    "pH at " + fixed(sr.high_temperature_C, 0) + " °C", "solid left"}, {}};
+    for (const ScreenResult& r : sr.results) {
+      const bool computed = r.status == ScreenStatus::kOk || r.status == ScreenStatus::kNotAchievable;
+      const double conc = r.min_conc_mol_per_L.value_or(r.conc_used_mol_per_L);
+      std::string conc_text = r.min_conc_mol_per_L ? sig(*r.min_conc_mol_per_L * 1e3, 3) : "";
+      if (r.status == ScreenStatus::kNotAchievable) conc_text = "> " + sig(r.max_conc_mol_per_L * 1e3, 3);
+      if (r.min_conc_at_lower_bound) conc_text = "< " + sig(conc * 1e3, 3);
+      st.rows.push_back({r.buffer, screen_status_name(r.status), computed ? conc_text : "", computed ? r.titrant : "",
+                         computed ? sig(r.titrant_mol_per_L * 1e3, 3) : "", fixed(r.nearest_pka, 2),
+                         computed ? fixed(r.pH_after_drug, 2) : "",
+                         computed ? sig(r.capacity_mol_per_L_per_pH * 1e3, 3) : "",
+                         computed ? fixed(r.osmolarity_mOsm_per_L, 1) : "", computed ? fixed(r.pH_at_5C, 2) : "",
+                         computed ? fixed(r.pH_at_40C, 2) : "", computed ? r.drug_solid : ""});
+    }
+    tables.push_back(st);
+  }
+  if (!d.drift.empty()) {
+    ReportTable dt{"drift.csv", "pH after the dose against buffer concentration (leading buffers)",
+                   {"buffer", "conc (mM)", "pH after dose", "drift from target (pH)"}, {}};
+    for (const DriftCurve& c : d.drift) {
+      for (std::size_t i = 0; i < c.conc_mol_per_L.size(); ++i) {
+        dt.rows.push_back({c.buffer, sig(c.conc_mol_per_L[i] * 1e3, 3), fixed(c.pH_after_drug[i], 3),
+                           fixed(c.pH_after_drug[i] - *d.request.target_pH, 3)});
+      }
+    }
+    tables.push_back(dt);
+  }
   return tables;
 }
 
@@ -398,6 +441,16 @@ std::string table_csv(const ReportTable& t) {
 // HTML
 
 namespace {
+
+// The caution text without its leading "Caution: ", first letter capitalised (the box has
+// its own heading).
+std::string caution_sentences() {
+  std::string s = caution_text();
+  const std::string prefix = "Caution: ";
+  if (s.rfind(prefix, 0) == 0) s = s.substr(prefix.size());
+  if (!s.empty() && s[0] >= 'a' && s[0] <= 'z') s[0] = static_cast<char>(s[0] - 'a' + 'A');
+  return s;
+}
 
 struct Section {
   std::string id;
@@ -414,7 +467,7 @@ svg::Chart profile_chart(const ReportData& d) {
   double lo = 1e300, hi = 0;
   svg::Series model{"model (Davies activities, salt limits)", {}, {}, svg::SeriesKind::kLine, 0, 3.0, true};
   svg::Series ideal{"Henderson-Hasselbalch, ideal (no salt limit)", {}, {}, svg::SeriesKind::kLine, 6, 2.0};
-  for (const SolubilityAtPh& s : d.profile) {
+  for (const ProfilePoint& s : d.profile.points) {
     model.x.push_back(s.pH);
     model.y.push_back(s.solubility_mol_per_L);
     ideal.x.push_back(s.pH);
@@ -451,11 +504,12 @@ svg::Chart profile_chart(const ReportData& d) {
   ch.y2 = svg::SecondaryAxis{"solubility (mg/mL, as free form)", mm};
   int tint = 0;
   std::map<std::string, int> tints;
-  for (const Run& r : salt_runs(d.profile)) {
+  for (const Run& r : salt_runs(d.profile.points)) {
     if (!tints.count(r.solid)) tints[r.solid] = tint++;
     ch.bands.push_back(svg::Band{svg::Band::Orientation::kVertical, r.from, r.to, r.solid + " limits", tints[r.solid]});
   }
-  for (const PhMaxPoint& p : d.pHmax) {
+  for (const PhMax& p : d.profile.ph_max) {
+    if (!p.on_profile) continue;
     ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, p.pH, "pHmax " + fixed(p.pH, 2) + " (" + p.salt + ")",
                                     1, true, false});
   }
@@ -473,7 +527,7 @@ svg::Chart profile_chart(const ReportData& d) {
   desc << "Log-scale chart of the solubility of " << c.name << " against pH from " << fixed(d.request.profile_from_pH, 1)
        << " to " << fixed(d.request.profile_to_pH, 1) << ". The model solubility ranges from " << sig(lo, 3) << " to "
        << sig(hi, 3) << " mol/L.";
-  for (const PhMaxPoint& p : d.pHmax) desc << " pHmax of the " << p.salt << " is " << fixed(p.pH, 2) << ".";
+  for (const PhMax& p : d.profile.ph_max) desc << " pHmax of the " << p.salt << " is " << fixed(p.pH, 2) << ".";
   if (dose > 0) desc << " The dose, " << sig(dose, 3) << " mol/L, is drawn as a horizontal line.";
   ch.description = desc.str();
   return ch;
@@ -494,7 +548,7 @@ svg::Chart species_chart(const ReportData& d) {
     std::string name = pretty_species(c.system.species_label(j)) + " (charge " + (z > 0 ? "+" : "") + std::to_string(z) +
                        (j == neutral ? ", neutral form" : "") + ")";
     svg::Series s{name, {}, {}, svg::SeriesKind::kLine, j, 2.5};
-    for (const SolubilityAtPh& p : d.profile) {
+    for (const ProfilePoint& p : d.profile.points) {
       s.x.push_back(p.pH);
       s.y.push_back(j < static_cast<int>(p.fractions.size()) ? p.fractions[j] : NAN);
     }
@@ -507,6 +561,56 @@ svg::Chart species_chart(const ReportData& d) {
   }
   ch.description = "Fractions of the " + std::to_string(nsp) + " protonation states of " + c.name +
                    " in its saturated solution against pH; curves cross at the pKa values.";
+  return ch;
+}
+
+const ScreenResult* leading_buffer(const ReportData& d) {
+  if (!d.screen) return nullptr;
+  for (const ScreenResult& r : d.screen->results) {
+    if (r.status == ScreenStatus::kOk) return &r;
+  }
+  return nullptr;
+}
+
+svg::Chart drift_chart(const ReportData& d) {
+  svg::Chart ch;
+  ch.id = "chart-drift";
+  const double target = *d.request.target_pH, tol = d.request.tolerance_pH;
+  ch.title = "pH after the dose against buffer strength (target pH " + fixed(target, 2) + ")";
+  double cmin = 1e300, cmax = 0, plo = target - 3 * tol, phi = target + 3 * tol;
+  for (const DriftCurve& c : d.drift) {
+    svg::Series s{c.name, {}, {}, svg::SeriesKind::kLineAndMarkers, -1, 2.25};
+    for (std::size_t i = 0; i < c.conc_mol_per_L.size(); ++i) {
+      s.x.push_back(c.conc_mol_per_L[i] * 1e3);
+      s.y.push_back(c.pH_after_drug[i]);
+      cmin = std::min(cmin, c.conc_mol_per_L[i] * 1e3);
+      cmax = std::max(cmax, c.conc_mol_per_L[i] * 1e3);
+      if (std::isfinite(c.pH_after_drug[i])) {
+        plo = std::min(plo, c.pH_after_drug[i]);
+        phi = std::max(phi, c.pH_after_drug[i]);
+      }
+    }
+    ch.series.push_back(s);
+  }
+  plo = std::max(plo, target - 2.0);
+  phi = std::min(phi, target + 2.0);
+  const double span = phi - plo;
+  const double step = span > 2.0 ? 0.5 : span > 1.0 ? 0.2 : span > 0.4 ? 0.1 : 0.05;
+  ch.x = {"buffer concentration (mM, log scale)", std::pow(10.0, std::floor(std::log10(cmin))),
+          std::pow(10.0, std::ceil(std::log10(cmax) - 1e-9)), svg::Scale::kLog10};
+  ch.y = {"pH after the dose", std::floor(plo / step) * step, std::ceil(phi / step) * step, svg::Scale::kLinear, step};
+  ch.plot_height = 280;
+  ch.bands.push_back(svg::Band{svg::Band::Orientation::kHorizontal, target - tol, target + tol,
+                               "target pH " + fixed(target, 2) + " ± " + fixed(tol, 2), 1, 0.30});
+  if (const ScreenResult* lead = leading_buffer(d)) {
+    if (lead->min_conc_mol_per_L) {
+      ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, *lead->min_conc_mol_per_L * 1e3,
+                                      lead->name + " needs " + sig(*lead->min_conc_mol_per_L * 1e3, 3) + " mM", 7, true,
+                                      true});
+    }
+  }
+  ch.description = "pH reached after adding the dose to each leading buffer prepared at the target pH, against the "
+                   "buffer concentration; the shaded band is the accepted tolerance.";
   return ch;
 }
 
@@ -529,6 +633,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   std::vector<Section> sections = {{"summary", "Summary"}, {"compound", "Compound data"},
                                    {"profile", "pH-solubility"}, {"species", "Species distribution"}};
   if (d.dose_in_water) sections.push_back({"dose-in-water", "The dose in water"});
+  if (d.screen) sections.push_back({"screen", "Buffer screen"});
   sections.push_back({"methods", "Methods, assumptions and references"});
   sections.push_back({"traceability", "Traceability"});
   auto number = [&](const std::string& id) {
@@ -567,16 +672,40 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   } else {
     key(out, "", "Dose", "not given", "Give --dose to draw the dose line and judge the dose in water.", "");
   }
-  if (!d.pHmax.empty()) {
+  if (!d.profile.ph_max.empty()) {
     std::string v, det;
-    for (std::size_t i = 0; i < d.pHmax.size(); ++i) {
-      v += (i ? " / " : "") + fixed(d.pHmax[i].pH, 2);
-      det += (i ? "; " : "") + d.pHmax[i].salt;
+    for (std::size_t i = 0; i < d.profile.ph_max.size(); ++i) {
+      v += (i ? " / " : "") + fixed(d.profile.ph_max[i].pH, 2);
+      det += (i ? "; " : "") + d.profile.ph_max[i].salt;
     }
     key(out, "lead", "pHmax", v, det + " in water, pH held by HCl or NaOH",
         "Vermillion dashed vertical line on the pH-solubility chart (" + number("profile") + ").");
   } else {
     key(out, "", "pHmax", "none", "No salt limits the solubility in water with HCl or NaOH over the pH range shown.", "");
+  }
+  if (d.screen) {
+    const ScreenReport& sr = *d.screen;
+    const ScreenResult* lead = leading_buffer(d);
+    if (lead && lead->min_conc_at_lower_bound) {
+      key(out, "lead", "Recommended buffer", lead->name + ", any strength",
+          "The dose with the titrant alone holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) +
+              "; choose the strength by other needs (capacity on storage, tonicity)",
+          "Highlighted first row of the buffer screen (" + number("screen") + ").");
+    } else if (lead) {
+      key(out, "lead", "Recommended buffer", lead->name + " " + sig(*lead->min_conc_mol_per_L * 1e3, 3) + " mM",
+          "Holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) + " with the dose: pH " +
+              fixed(lead->pH_after_drug, 2) + " (" + fixed(lead->pH_at_5C, 2) + " at " + fixed(sr.low_temperature_C, 0) +
+              " °C, " + fixed(lead->pH_at_40C, 2) + " at " + fixed(sr.high_temperature_C, 0) + " °C)",
+          "Highlighted first row of the buffer screen (" + number("screen") + ").");
+    } else {
+      key(out, "lead", "Recommended buffer", "none",
+          "No screened buffer holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) + " with this dose.",
+          "Buffer screen (" + number("screen") + ").");
+    }
+    key(out, "", "Solubility at target pH", sig(sr.solubility_at_target_mol_per_L * mm, 3) + " mg/mL",
+        sig(sr.solubility_at_target_mol_per_L, 3) + " mol/L in water at pH " + fixed(sr.target_pH, 2) +
+            (sr.solubility_at_target_mol_per_L >= sr.dose_mol_per_L ? ": the dose dissolves" : ": below the dose"),
+        "Green vertical line on the pH-solubility chart.");
   }
   if (c.has_intrinsic_solubility) {
     key(out, "", "Intrinsic solubility", sig(c.s0_at(T) * mm, 3) + " mg/mL",
@@ -597,7 +726,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   // Caution.
   out << "<div class=\"caution\" id=\"caution\" role=\"note\"><div class=\"sign\" aria-hidden=\"true\">!</div><p><strong>"
          "Caution.</strong> "
-      << esc(std::string(caution_text()).substr(std::string("Caution: ").size())) << "</p></div>\n";
+      << esc(caution_sentences()) << "</p></div>\n";
   if (!d.warnings.empty()) {
     out << "<ul class=\"warnings\">";
     for (const std::string& w : d.warnings) out << "<li>" << esc(w) << "</li>";
@@ -634,21 +763,15 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   if (const ReportTable* t = find_table(tables, "phmax.csv")) {
     if (!t->rows.empty()) write_table_html(*t, out, csv_folder);
   }
-  {
-    std::vector<std::string> cannot;
-    for (const Salt& s : c.salts) {
-      if (s.counterion != "Cl-" && s.counterion != "Na+") cannot.push_back(s.id + " (" + s.counterion + ")");
-    }
-    if (!cannot.empty()) {
-      out << "<p class=\"muted\">Salts whose counterion is not in this medium cannot limit here: ";
-      for (std::size_t i = 0; i < cannot.size(); ++i) out << (i ? ", " : "") << esc(cannot[i]);
-      out << ".</p>\n";
-    }
+  if (!d.profile.notes.empty()) {
+    out << "<ul class=\"notes\">";
+    for (const std::string& n : d.profile.notes) out << "<li>" << esc(n) << "</li>";
+    out << "</ul>\n";
   }
   if (const ReportTable* t = find_table(tables, "profile.csv")) {
     std::vector<std::size_t> rows;
-    for (std::size_t i = 0; i < d.profile.size(); ++i) {
-      const double x = d.profile[i].pH * 2.0;
+    for (std::size_t i = 0; i < d.profile.points.size(); ++i) {
+      const double x = d.profile.points[i].pH * 2.0;
       if (std::fabs(x - std::round(x)) < 1e-6) rows.push_back(i);
     }
     write_table_html(*t, out, csv_folder, &rows,
@@ -673,6 +796,53 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     out << "<p>The dose dissolved in water with nothing else (no buffer, no pH adjustment), at " << fixed(T, 1)
         << " °C: the pH it sets itself and what stays undissolved.</p>\n";
     if (const ReportTable* t = find_table(tables, "dose-in-water.csv")) write_table_html(*t, out, csv_folder);
+    out << "</section>\n";
+  }
+
+  if (d.screen) {
+    const ScreenReport& sr = *d.screen;
+    out << "<section id=\"screen\">\n";
+    heading("screen");
+    out << "<p>Each buffer is prepared alone at the target pH (its net-neutral form plus HCl or NaOH), then the dose is "
+           "added and the closed system equilibrated. The minimum concentration is the weakest buffer whose pH stays "
+           "within the tolerance; buffers are ranked by that concentration, then by their pH change between "
+        << fixed(sr.low_temperature_C, 0) << " and " << fixed(sr.high_temperature_C, 0) << " °C.</p>\n";
+    if (const ScreenResult* lead = leading_buffer(d)) {
+      out << "<p class=\"lead-buffer\"><strong>Leading buffer: " << esc(lead->name) << " at "
+          << (lead->min_conc_at_lower_bound ? "any strength (from " : "")
+          << esc(sig(*lead->min_conc_mol_per_L * 1e3, 3)) << " mM" << (lead->min_conc_at_lower_bound ? ")" : "")
+          << "</strong>, brought to pH " << fixed(sr.target_pH, 2)
+          << " with " << esc(lead->titrant.empty() ? std::string("no titrant") : lead->titrant) << "; pH after the dose "
+          << fixed(lead->pH_after_drug, 2) << ", osmolarity " << fixed(lead->osmolarity_mOsm_per_L, 1)
+          << " mOsm/L (ideal).</p>\n";
+    } else {
+      out << "<p class=\"lead-buffer\"><strong>No buffer holds the target with this dose.</strong></p>\n";
+    }
+    if (const ReportTable* t = find_table(tables, "screen.csv")) {
+      // Buffers with no pKa near the target are named below the table, not given a row each.
+      std::vector<std::size_t> rows;
+      std::vector<std::string> outside;
+      for (std::size_t i = 0; i < sr.results.size(); ++i) {
+        if (sr.results[i].status == ScreenStatus::kOutsideRange) outside.push_back(sr.results[i].name + " (pKa " + fixed(sr.results[i].nearest_pka, 2) + ")");
+        else rows.push_back(i);
+      }
+      write_table_html(*t, out, csv_folder, &rows,
+                       "Status: ok; not-achievable (even the maximum strength drifts too far); dose-not-soluble (the "
+                       "dose exceeds the solubility at the target pH).",
+                       leading_buffer(d) ? 0 : -1);
+      if (!outside.empty()) {
+        out << "<p class=\"muted\">Not screened further, no pKa within 1 of the target (outside-range; in the CSV): ";
+        for (std::size_t i = 0; i < outside.size(); ++i) out << (i ? ", " : "") << esc(outside[i]);
+        out << ".</p>\n";
+      }
+    }
+    if (!d.drift.empty()) {
+      out << "<figure>\n";
+      svg::write_svg(drift_chart(d), out);
+      out << "<figcaption><strong>How to read it.</strong> Each line is one leading buffer: the pH it reaches once the "
+             "dose is dissolved, against its concentration. Where a line enters the shaded band the buffer holds the "
+             "target; the black line marks the strength the leading buffer needs.</figcaption>\n</figure>\n";
+    }
     out << "</section>\n";
   }
 

@@ -33,7 +33,7 @@ TEST(AtomicFile, WritesAndReplacesWithoutLeavingTemporaries) {
   const std::string path = dir + "/out.html";
   pkarta::write_file_atomically(path, "first");
   EXPECT_EQ(slurp(path), "first");
-  pkarta::write_file_atomically(path, std::string(100000, 'x'));
+  pkarta::write_file_atomically(path, std::string(100000, 'x'), {}, /*durable=*/true);
   EXPECT_EQ(slurp(path), std::string(100000, 'x'));
   int files = 0;
   for (const auto& e : fs::directory_iterator(dir)) {

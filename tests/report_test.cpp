@@ -149,12 +149,12 @@ TEST(Report, IsWellFormedXhtmlWithEverySection) {
   ASSERT_TRUE(html);
   EXPECT_STREQ(html.attribute("xmlns").value(), "http://www.w3.org/1999/xhtml");
   EXPECT_EQ(fixture().html.rfind("<!DOCTYPE html>", 0), 0u);
-  for (const char* id : {"summary", "compound", "profile", "species", "dose-in-water", "methods", "traceability"}) {
+  for (const char* id : {"summary", "compound", "profile", "species", "dose-in-water", "screen", "methods", "traceability"}) {
     EXPECT_TRUE(html.select_node((std::string("//section[@id='") + id + "']").c_str())) << id;
   }
   // The contents links all lead somewhere.
   const auto links = html.select_nodes("//nav[@class='contents']//a");
-  EXPECT_EQ(links.size(), 7u);
+  EXPECT_EQ(links.size(), 8u);
   for (const auto& a : links) {
     const std::string target = std::string(a.node().attribute("href").value()).substr(1);
     EXPECT_TRUE(html.select_node(("//*[@id='" + target + "']").c_str())) << target;
@@ -190,11 +190,47 @@ TEST(Report, SummaryGivesDosePhmaxAndWhereToFindThem) {
         text_of(k.node().find_child_by_attribute("div", "class", "value"));
   }
   EXPECT_EQ(keys["Dose"], "2mg/mL hydrochloride");
-  ASSERT_EQ(fixture().data.pHmax.size(), 1u);
+  ASSERT_EQ(fixture().data.profile.ph_max.size(), 1u);
   // Demo base hydrochloride: pHmax about 6.2 in water (compound file comment).
-  EXPECT_NEAR(fixture().data.pHmax[0].pH, 6.2, 0.1);
-  EXPECT_EQ(keys["pHmax"], fixed(fixture().data.pHmax[0].pH, 2));
+  EXPECT_NEAR(fixture().data.profile.ph_max[0].pH, 6.2, 0.1);
+  EXPECT_EQ(keys["pHmax"], fixed(fixture().data.profile.ph_max[0].pH, 2));
   EXPECT_EQ(keys["Dose in water alone"].rfind("pH ", 0), 0u);
+  // The recommended buffer is the first ok result of the screen, at its minimum strength.
+  ASSERT_TRUE(fixture().data.screen);
+  const ScreenResult& lead = fixture().data.screen->results.at(0);
+  ASSERT_EQ(lead.status, ScreenStatus::kOk);
+  EXPECT_EQ(keys["Recommended buffer"], lead.name + " " + sig(*lead.min_conc_mol_per_L * 1e3, 3) + " mM");
+}
+
+TEST(Report, ScreenSectionHighlightsTheLeadingBufferAndDrawsTheDrift) {
+  pugi::xml_document doc;
+  const pugi::xml_node html = parse_html(fixture().html, doc);
+  const pugi::xml_node section = html.select_node("//section[@id='screen']").node();
+  ASSERT_TRUE(section);
+  const pugi::xml_node table = section.select_node(".//table[@data-csv='screen.csv']").node();
+  ASSERT_TRUE(table);
+  const ScreenReport& sr = *fixture().data.screen;
+  std::size_t screened = 0;
+  for (const ScreenResult& r : sr.results) screened += r.status != ScreenStatus::kOutsideRange;
+  EXPECT_EQ(table.select_nodes("tbody/tr").size(), screened);
+  const pugi::xml_node first = table.select_node("tbody/tr[1]").node();
+  EXPECT_STREQ(first.attribute("class").value(), "lead");
+  EXPECT_EQ(text_of(first.child("th")), sr.results[0].buffer);
+  EXPECT_EQ(table.select_nodes("tbody/tr[@class='lead']").size(), 1u);
+  // Drift chart: one series per leading buffer (at most three), both axes labelled, the
+  // tolerance band and the strength the leading buffer needs.
+  const pugi::xml_node chart = section.select_node(".//*[@id='chart-drift']").node();
+  ASSERT_TRUE(chart);
+  ASSERT_FALSE(fixture().data.drift.empty());
+  EXPECT_LE(fixture().data.drift.size(), 3u);
+  EXPECT_EQ(chart.select_nodes(".//g[@class='series']").size(), fixture().data.drift.size());
+  std::set<std::string> labels;
+  for (const auto& n : chart.select_nodes(".//text[@class='axis-label']")) labels.insert(n.node().child_value());
+  EXPECT_EQ(labels, (std::set<std::string>{"buffer concentration (mM, log scale)", "pH after the dose"}));
+  EXPECT_EQ(chart.select_nodes(".//g[@class='band']").size(), 1u);
+  const std::string needs = chart.select_node(".//g[@class='reference-line']").node().attribute("data-label").value();
+  EXPECT_EQ(needs, sr.results[0].name + " needs " + sig(*sr.results[0].min_conc_mol_per_L * 1e3, 3) + " mM");
+  EXPECT_EQ(fixture().data.drift[0].buffer, sr.results[0].buffer);
 }
 
 TEST(Report, ProfileChartHasItsSeriesAxesAndMarks) {
@@ -219,7 +255,7 @@ TEST(Report, ProfileChartHasItsSeriesAxesAndMarks) {
   std::vector<std::string> lines;
   for (const auto& n : chart.select_nodes(".//g[@class='reference-line']")) lines.push_back(n.node().attribute("data-label").value());
   ASSERT_EQ(lines.size(), 3u);
-  EXPECT_EQ(lines[0], "pHmax " + fixed(fixture().data.pHmax[0].pH, 2) + " (hydrochloride)");
+  EXPECT_EQ(lines[0], "pHmax " + fixed(fixture().data.profile.ph_max[0].pH, 2) + " (hydrochloride)");
   EXPECT_EQ(lines[1], "target pH 5.00");
   EXPECT_EQ(lines[2].rfind("dose 2mg/mL (hydrochloride)", 0), 0u) << lines[2];
   const auto bands = chart.select_nodes(".//g[@class='band']");
@@ -270,7 +306,7 @@ TEST(Report, HtmlTablesShowTheCsvNumbers) {
   ASSERT_EQ(prof.size(), 1u + 241u);
   EXPECT_EQ(prof[0][1], "solubility (mol/L)");
   for (std::size_t i = 1; i < prof.size(); i += 40) {
-    const SolubilityAtPh& s = fixture().data.profile[i - 1];
+    const SolubilityAtPh& s = fixture().data.profile.points[i - 1];
     EXPECT_NEAR(std::stod(prof[i][0]), s.pH, 1e-9);
     EXPECT_NEAR(std::stod(prof[i][1]) / s.solubility_mol_per_L, 1.0, 1e-3);
     EXPECT_NEAR(std::stod(prof[i][2]) / (s.solubility_mol_per_L * fixture().compound.molar_mass_g_per_mol), 1.0, 1e-3);

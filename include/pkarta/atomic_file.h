@@ -8,9 +8,12 @@
 
 namespace pkarta {
 
-/// Writes `content` to `path` through a temporary file in the same folder, flushed and then
+/// Writes `content` to `path` through a temporary file in the same folder, closed and then
 /// renamed over `path` (rename is atomic within one file system on POSIX), so `path` holds
-/// either its old content or the whole new one. The new file gets mode 0666 less the umask.
+/// either its old content or the whole new one, whatever interrupts the program. With
+/// `durable` the file is also fsync'ed before the rename, so the new content survives a power
+/// cut (this costs some milliseconds per file on ordinary disks). The new file gets mode 0666
+/// less the umask.
 ///
 /// Throws InputError naming `path` when it is the same file as one of `inputs_to_protect`
 /// ("refusing to overwrite the input file compounds/x.xml"), and std::system_error when the
@@ -20,7 +23,7 @@ namespace pkarta {
 ///
 /// Example: write_file_atomically("reports/demo.html", html, {"compounds/demo-base.xml"});
 void write_file_atomically(const std::string& path, std::string_view content,
-                           const std::vector<std::string>& inputs_to_protect = {});
+                           const std::vector<std::string>& inputs_to_protect = {}, bool durable = false);
 
 /// Throws InputError when `path` names an existing file that is one of `inputs`
 /// (same file after resolving links and relative paths).

@@ -23,6 +23,7 @@
 #include "pkarta/mix.h"
 #include "pkarta/model.h"
 #include "pkarta/profile.h"
+#include "pkarta/screen.h"
 
 namespace pkarta {
 
@@ -34,6 +35,8 @@ struct ReportRequest {
   std::optional<double> target_pH;        ///< for the buffer screen and recipe
   double tolerance_pH = 0.1;
   std::string route = "any";              ///< oral, parenteral, ophthalmic, topical, any
+  std::vector<std::string> buffers;       ///< buffers to screen; empty: every buffer of the library
+  int drift_buffers = 3;                  ///< leading buffers drawn on the drift chart
   double temperature_C = 25.0;            ///< profile, dose and screen temperature
   ActivityModel activity = ActivityModel::kDavies;
   double profile_from_pH = 1.0;
@@ -61,10 +64,13 @@ struct Provenance {
   std::string command_line;               ///< the options that made the report, in order
 };
 
-/// pHmax of one salt in the profile's medium: where the free-form and salt curves cross.
-struct PhMaxPoint {
-  std::string salt;
-  double pH = 0.0;
+/// pH after the dose against the buffer's concentration, for the drift chart.
+struct DriftCurve {
+  std::string buffer;                       ///< buffer id
+  std::string name;
+  std::vector<double> conc_mol_per_L;       ///< log-spaced up to the buffer's max-conc
+  std::vector<double> pH_after_drug;        ///< NaN where the equilibrium did not converge
+  std::optional<double> min_conc_mol_per_L; ///< from the screen
 };
 
 /// Everything a report shows. Built by analyse_report(); writers only read it.
@@ -76,9 +82,13 @@ struct ReportData {
   double form_molar_mass_g_per_mol = 0.0;
   /// Salts with the Ksp used at 25 °C reference and at the run temperature.
   std::vector<double> salt_ksp_at_run_temperature;
-  /// pH-solubility profile in water, pH held by HCl or NaOH (profile.h), at the run temperature.
-  std::vector<SolubilityAtPh> profile;
-  std::vector<PhMaxPoint> pHmax;
+  /// pH-solubility profile in water, pH held by HCl or NaOH (profile.h), at the run temperature,
+  /// with pHmax of each salt that can limit there.
+  Profile profile;
+  /// The buffer screen (screen.h), when a dose and a target pH were given.
+  std::optional<ScreenReport> screen;
+  /// pH drift against concentration for the leading buffers of the screen.
+  std::vector<DriftCurve> drift;
   /// The dose dissolved in water alone (no buffer): pH it sets, what stays solid.
   std::optional<MixResult> dose_in_water;
   std::vector<std::string> warnings;

@@ -25,13 +25,24 @@ struct DemoCase {
 constexpr DemoCase kDemoCases[] = {
     {"demo-base", "2mg/mL", "hydrochloride", "5.0", "parenteral"},
     {"demo-acid", "5mg/mL", "sodium", "7.4", "ophthalmic"},
-    {"demo-ampholyte", "0.5mg/mL", "hydrochloride", "3.0", "oral"},
+    {"demo-ampholyte", "0.1mg/mL", "hydrochloride", "7.0", "oral"},
 };
 
 std::string summary_line(const ReportData& d) {
   std::string s = d.compound.name + ":";
-  if (d.pHmax.empty()) s += " no salt limits in water;";
-  for (const PhMaxPoint& p : d.pHmax) s += " pHmax " + fixed(p.pH, 2) + " (" + p.salt + ");";
+  if (d.profile.ph_max.empty()) s += " no salt limits in water;";
+  for (const PhMax& p : d.profile.ph_max) s += " pHmax " + fixed(p.pH, 2) + " (" + p.salt + ");";
+  if (d.screen) {
+    const ScreenResult* lead = nullptr;
+    for (const ScreenResult& r : d.screen->results) {
+      if (r.status == ScreenStatus::kOk) {
+        lead = &r;
+        break;
+      }
+    }
+    s += lead ? " leading buffer " + lead->name + " " + sig(*lead->min_conc_mol_per_L * 1e3, 3) + " mM;"
+              : std::string(" no buffer holds the target;");
+  }
   if (d.dose_in_water && d.dose_in_water->equilibrium.drug) {
     const Equilibrium& e = d.dose_in_water->equilibrium;
     s += " dose " + d.request.dose_text + " in water: pH " + fixed(e.pH, 2) + ", " +
