@@ -1,12 +1,83 @@
-// Placeholder until the dilute analysis lands.
+// `pkarta dilute`: a formulation diluted into a medium at several ratios; precipitation risk.
+#include <iostream>
+#include <sstream>
+
 #include "cli_common.h"
 #include "commands.h"
+#include "pkarta/dilute.h"
 
 namespace pkarta::cli {
 
-int run_dilute(const Args&) {
-  error("the 'dilute' command is not available in this build");
-  return kExitRefused;
+namespace {
+
+std::vector<double> parse_ratios(const std::string& text) {
+  std::vector<double> out;
+  std::istringstream in(text);
+  std::string item;
+  while (std::getline(in, item, ',')) {
+    out.push_back(option_number("--ratios", item, 1.0, 1e9));
+  }
+  if (out.empty()) {
+    throw InputError(SourceLocation{"--ratios", 0, 0}, "no ratios given, e.g. --ratios 1,2,5,10,20,50,100");
+  }
+  return out;
+}
+
+}  // namespace
+
+int run_dilute(const Args& args) {
+  return guarded([&] {
+    CommonOptions common;
+    FormulationOptions f;
+    std::string into, ratios = "1,2,5,10,20,50,100", into_temp;
+    po::options_description desc("dilute options");
+    add_formulation_options(desc, f);
+    desc.add_options()
+        ("into", po::value(&into), "library medium diluted into (water, saline-0.9, dextrose-5, "
+                                   "plasma-7.4, sgf-1.2, sif-6.8, ...)")
+        ("ratios", po::value(&ratios)->default_value("1,2,5,10,20,50,100"),
+         "dilution ratios, total volume / formulation volume (>= 1; 10 = 1 volume + 9 of medium)")
+        ("into-temp", po::value(&into_temp), "temperature of the diluted mixture, °C (default: --temp)");
+    add_common_options(desc, common);
+    parse(args, desc);
+    if (common.help) {
+      print_help(std::cout,
+                 "pkarta dilute [--compound F --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
+                 "[--medium ID] [--temp C] --into MEDIUM [--ratios 1,2,5,10,20,50,100] [--into-temp C]",
+                 desc);
+      return 0;
+    }
+    check_format(common.format);
+    if (into.empty()) throw InputError(SourceLocation{"--into", 0, 0}, "dilute needs --into MEDIUM");
+    const Library lib = load_libraries(common);
+    try {
+      lib.medium(into);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--into", 0, 0}, e.message());
+    }
+    DilutionOptions options;
+    options.medium_id = into;
+    options.ratios = parse_ratios(ratios);
+    if (!into_temp.empty()) options.temperature_C = option_temperature("--into-temp", into_temp);
+    std::vector<std::string> inputs;
+    const Mixture m = build_formulation(f, lib, &inputs);
+    if (m.systems.empty() && m.ions.empty() && !m.drug) {
+      throw InputError(SourceLocation{"--add", 0, 0},
+                       "nothing to dilute: give --compound with --dose, --add REAGENT=AMOUNT or --medium");
+    }
+    const DilutionResult r = analyse_dilution(m, lib, options, inputs);
+    if (!r.usable()) {
+      error(r.message);
+      return static_cast<int>(kExitRefused);
+    }
+    if (common.format == "json") write_dilute_json(r, std::cout);
+    else if (common.format == "csv") write_dilute_csv(r, std::cout);
+    else write_dilute_text(r, std::cout);
+    if (common.format != "text") {
+      for (const std::string& w : r.warnings) std::cerr << "pkarta: warning: " << w << "\n";
+    }
+    return 0;
+  });
 }
 
 }  // namespace pkarta::cli
