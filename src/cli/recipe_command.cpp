@@ -1,12 +1,107 @@
-// Placeholder until the recipe analysis lands.
+// `pkarta recipe`: what to weigh and titrate to make a buffer.
+#include <iostream>
+
 #include "cli_common.h"
 #include "commands.h"
+#include "pkarta/error.h"
+#include "pkarta/recipe.h"
 
 namespace pkarta::cli {
 
-int run_recipe(const Args&) {
-  error("the 'recipe' command is not available in this build");
-  return kExitRefused;
+int run_recipe(const Args& args) {
+  return guarded([&] {
+    CommonOptions common;
+    std::string buffer, ph, conc, volume = "1L", temp = "25", reagents;
+    bool isotonic = false, titrant = false;
+    po::options_description desc("recipe options");
+    desc.add_options()
+        ("buffer", po::value(&buffer), "library buffer id (see pkarta library list)")
+        ("ph", po::value(&ph), "target pH, 0-14")
+        ("conc", po::value(&conc), "total buffer strength, e.g. 50mM, 0.05M or 0.05mol/kg")
+        ("volume", po::value(&volume)->default_value("1L"), "final volume, e.g. 1L or 500mL")
+        ("temp", po::value(&temp)->default_value("25"), "temperature the buffer is made up at, °C")
+        ("isotonic", po::bool_switch(&isotonic), "add NaCl to about 290 mOsm/kg (estimate; measure it)")
+        ("reagents", po::value(&reagents),
+         "ACID,BASE reagent ids to weigh (hydrates as wanted), or one id with --titrant")
+        ("titrant", po::bool_switch(&titrant), "one reagent plus 1 M HCl or NaOH instead of a pair");
+    add_common_options(desc, common);
+    parse(args, desc);
+    if (common.help) {
+      print_help(std::cout,
+                 "pkarta recipe --buffer ID --ph P --conc AMOUNT [--volume 1L] [--temp C] [--isotonic] "
+                 "[--reagents ACID,BASE] [--titrant]",
+                 desc);
+      return 0;
+    }
+    check_format(common.format);
+    if (buffer.empty()) throw InputError(SourceLocation{"--buffer", 0, 0}, "give the buffer (--buffer ID)");
+    if (ph.empty()) throw InputError(SourceLocation{"--ph", 0, 0}, "give the target pH (--ph P)");
+    if (conc.empty()) throw InputError(SourceLocation{"--conc", 0, 0}, "give the buffer strength (--conc, e.g. 50mM)");
+
+    RecipeOptions o;
+    o.buffer = buffer;
+    o.pH = option_number("--ph", ph, 0.0, 14.0);
+    o.temperature_C = option_temperature("--temp", temp);
+    const Amount c = option_amount("--conc", conc);
+    if (c.is_mass_based()) {
+      throw InputError(SourceLocation{"--conc", 0, 0},
+                       "give the buffer strength in M, mM, uM or mol/kg, not \"" + conc + "\"");
+    }
+    o.conc_mol_per_L = c.to_mol_per_L(0.0, o.temperature_C);
+    if (!(o.conc_mol_per_L > 0)) throw InputError(SourceLocation{"--conc", 0, 0}, "the buffer strength must be > 0");
+    if (o.conc_mol_per_L > 10) throw InputError(SourceLocation{"--conc", 0, 0}, "the buffer strength must be at most 10 M");
+    try {
+      o.volume_L = parse_volume_L(volume);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--volume", 0, 0}, e.message());
+    }
+    o.isotonic = isotonic;
+    o.use_titrant = titrant;
+    if (!reagents.empty()) {
+      std::string cur;
+      for (char ch : reagents + ",") {
+        if (ch == ',') {
+          if (!cur.empty()) o.reagents.push_back(cur);
+          cur.clear();
+        } else if (ch != ' ') {
+          cur += ch;
+        }
+      }
+      if (o.reagents.empty() || o.reagents.size() > 2) {
+        throw InputError(SourceLocation{"--reagents", 0, 0}, "expected ACID,BASE or one reagent id");
+      }
+      if (titrant && o.reagents.size() == 2) {
+        throw InputError(SourceLocation{"--reagents", 0, 0}, "--titrant takes one reagent, e.g. --reagents KH2PO4");
+      }
+    }
+
+    const Library lib = load_libraries(common);
+    try {
+      lib.buffer(buffer);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{"--buffer", 0, 0}, e.message());
+    }
+    for (const std::string& id : o.reagents) {
+      try {
+        lib.reagent(id);
+      } catch (const InputError& e) {
+        throw InputError(SourceLocation{"--reagents", 0, 0}, e.message());
+      }
+    }
+    Recipe r;
+    try {
+      r = make_recipe(lib, o);
+    } catch (const InputError& e) {
+      // The library names the field at fault; the command line names the option.
+      const std::string& field = e.where().file;
+      const std::string option = field == "pH" ? "--ph" : field.empty() ? "--buffer" : "--" + field;
+      throw InputError(SourceLocation{option, 0, 0}, e.message());
+    }
+    if (common.format == "json") write_recipe_json(r, std::cout);
+    else if (common.format == "csv") write_recipe_csv(r, std::cout);
+    else write_recipe_text(r, std::cout);
+    return 0;
+  });
 }
 
 }  // namespace pkarta::cli
