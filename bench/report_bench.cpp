@@ -24,10 +24,11 @@ struct DemoCase {
   const char* dose;
   const char* form;
   double target_pH;
+  double dose_mg;
 };
-constexpr DemoCase kCases[] = {{"demo-base", "2mg/mL", "hydrochloride", 5.0},
-                               {"demo-acid", "5mg/mL", "sodium", 7.4},
-                               {"demo-ampholyte", "0.1mg/mL", "hydrochloride", 7.0}};
+constexpr DemoCase kCases[] = {{"demo-base", "2mg/mL", "hydrochloride", 5.0, 100},
+                               {"demo-acid", "5mg/mL", "sodium", 7.4, 200},
+                               {"demo-ampholyte", "0.1mg/mL", "hydrochloride", 7.0, 50}};
 
 std::size_t demo_reports(const Library& lib, const std::string& dir) {
   std::size_t bytes = 0;
@@ -39,6 +40,7 @@ std::size_t demo_reports(const Library& lib, const std::string& dir) {
     req.form = c.form;
     req.dose_mol_per_L = dose_conc_mol_per_L(lib, compound, c.form, parse_amount(c.dose), 25.0);
     req.target_pH = c.target_pH;
+    req.classify_dose_mg = c.dose_mg;
     const ReportData d = analyse_report(compound, lib, req, file, {}, "pkarta report");
     std::ostringstream out;
     write_report_html(d, c.file, out);

@@ -258,6 +258,15 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
   grid.step_pH = request.profile_step_pH;
   d.profile = compute_profile(compound, library, cond, grid);
 
+  // Solubility classification at 37 °C (ICH M9).
+  if (request.classify_dose_mg) {
+    ClassifyOptions co;
+    co.dose_mg = *request.classify_dose_mg;
+    co.form = request.form;
+    co.activity = request.activity;
+    d.classification = classify(compound, library, co);
+  }
+
   // Buffer screen at the target pH, and the drift curves of its leading buffers.
   if (request.target_pH && request.dose_mol_per_L > 0.0) {
     ScreenOptions so;
@@ -296,6 +305,9 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     else d.warnings.push_back("the dose in water did not converge: " + r.equilibrium.message);
   }
   for (const std::string& w : d.profile.warnings) d.warnings.push_back(w);
+  if (d.classification) {
+    for (const std::string& w : d.classification->warnings) d.warnings.push_back("classification: " + w);
+  }
   if (d.screen) {
     for (const std::string& w : d.screen->warnings) d.warnings.push_back(w);
   }
@@ -390,6 +402,37 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
     w.rows.push_back({"ionic strength", sig(e.ionic_strength_mol_per_L, 4), "mol/L"});
     w.rows.push_back({"osmolarity, ideal", fixed(e.osmolarity_mOsm_per_L, 1), "mOsm/L"});
     tables.push_back(w);
+  }
+
+  if (d.classification) {
+    const ClassifyResult& cr = *d.classification;
+    ReportTable ct{"classification.csv",
+                   "Solubility over pH " + fixed(cr.from_pH, 1) + "-" + fixed(cr.to_pH, 1) + " at " + fixed(cr.temperature_C, 0) +
+                       " °C for " + sig(cr.dose_mg, 4) + " mg of " + form_label(cr.form) + " in " + fixed(cr.volume_mL, 0) + " mL",
+                   {"point", "pH", "solubility (mol/L)", "solubility (mg/mL, as dosed form)", "dose number D0", "limiting solid"}, {}};
+    for (const ClassifyPoint& p : cr.points) {
+      ct.rows.push_back({p.label, fixed(p.pH, 2), sig(p.solubility_mol_per_L, 4), sig(p.solubility_mg_per_mL, 4),
+                         sig(p.dose_number, 3), p.limiting_solid});
+    }
+    tables.push_back(ct);
+    ReportTable cs{"classification-summary.csv", "Solubility class after " + cr.guideline, {"quantity", "value", "unit"}, {}};
+    cs.rows.push_back({"verdict", cr.verdict, ""});
+    cs.rows.push_back({"highest single dose", sig(cr.dose_mg, 4), "mg of " + form_label(cr.form)});
+    cs.rows.push_back({"lowest solubility", sig(cr.min_solubility_mg_per_mL, 4), "mg/mL"});
+    cs.rows.push_back({"at pH", fixed(cr.min_at_pH, 2), ""});
+    cs.rows.push_back({"volume to dissolve the dose at the lowest solubility", sig(cr.dose_solubility_volume_mL, 4), "mL"});
+    cs.rows.push_back({"volume of the guideline", fixed(cr.volume_mL, 0), "mL"});
+    cs.rows.push_back({"temperature", fixed(cr.temperature_C, 1), "°C"});
+    tables.push_back(cs);
+    if (!cr.media.empty()) {
+      ReportTable cm{"classification-media.csv", "The dose in " + fixed(cr.volume_mL, 0) + " mL of pharmacopeial media (closed system)",
+                     {"medium", "nominal pH", "pH after the dose", "dissolved (%)", "solid left"}, {}};
+      for (const MediumCheck& m : cr.media) {
+        cm.rows.push_back({m.name, m.nominal_pH, m.usable ? fixed(m.pH_after, 2) : "n/a",
+                           m.usable ? fixed(100.0 * m.dissolved_fraction, 1) : "n/a", m.usable ? m.solid : ""});
+      }
+      tables.push_back(cm);
+    }
   }
 
   if (d.screen) {
@@ -633,6 +676,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   std::vector<Section> sections = {{"summary", "Summary"}, {"compound", "Compound data"},
                                    {"profile", "pH-solubility"}, {"species", "Species distribution"}};
   if (d.dose_in_water) sections.push_back({"dose-in-water", "The dose in water"});
+  if (d.classification) sections.push_back({"classification", "Solubility classification (ICH M9)"});
   if (d.screen) sections.push_back({"screen", "Buffer screen"});
   sections.push_back({"methods", "Methods, assumptions and references"});
   sections.push_back({"traceability", "Traceability"});
@@ -706,6 +750,13 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
         sig(sr.solubility_at_target_mol_per_L, 3) + " mol/L in water at pH " + fixed(sr.target_pH, 2) +
             (sr.solubility_at_target_mol_per_L >= sr.dose_mol_per_L ? ": the dose dissolves" : ": below the dose"),
         "Green vertical line on the pH-solubility chart.");
+  }
+  if (d.classification) {
+    const ClassifyResult& cr = *d.classification;
+    key(out, "", "Solubility class (ICH M9)", cr.verdict == "high" ? "highly soluble" : "not highly soluble",
+        sig(cr.dose_mg, 4) + " mg needs " + sig(cr.dose_solubility_volume_mL, 3) + " mL at the lowest solubility (pH " +
+            fixed(cr.min_at_pH, 2) + ", " + fixed(cr.temperature_C, 0) + " °C); the limit is " + fixed(cr.volume_mL, 0) + " mL",
+        "Classification (" + number("classification") + ").");
   }
   if (c.has_intrinsic_solubility) {
     key(out, "", "Intrinsic solubility", sig(c.s0_at(T) * mm, 3) + " mg/mL",
@@ -799,6 +850,27 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     out << "</section>\n";
   }
 
+  if (d.classification) {
+    const ClassifyResult& cr = *d.classification;
+    out << "<section id=\"classification\">\n";
+    heading("classification");
+    out << "<p class=\"lead-statement\"><strong>" << (cr.verdict == "high" ? "Highly soluble" : "Not highly soluble")
+        << "</strong> after " << esc(cr.guideline) << ": the highest dose, " << esc(sig(cr.dose_mg, 4)) << " mg of "
+        << esc(form_label(cr.form)) << ", needs " << esc(sig(cr.dose_solubility_volume_mL, 3))
+        << " mL at the lowest solubility over pH " << fixed(cr.from_pH, 1) << "-" << fixed(cr.to_pH, 1) << " (" << esc(sig(cr.min_solubility_mg_per_mL, 3))
+        << " mg/mL at pH " << fixed(cr.min_at_pH, 2) << "); the guideline allows " << fixed(cr.volume_mL, 0) << " mL.</p>\n";
+    for (const char* f : {"classification-summary.csv", "classification.csv", "classification-media.csv"}) {
+      if (const ReportTable* t = find_table(tables, f)) write_table_html(*t, out, csv_folder);
+    }
+    if (!cr.notes.empty() || !cr.convention.empty()) {
+      out << "<ul class=\"notes\">";
+      if (!cr.convention.empty()) out << "<li>" << esc(cr.convention) << "</li>";
+      for (const std::string& n : cr.notes) out << "<li>" << esc(n) << "</li>";
+      out << "</ul>\n";
+    }
+    out << "</section>\n";
+  }
+
   if (d.screen) {
     const ScreenReport& sr = *d.screen;
     out << "<section id=\"screen\">\n";
@@ -808,7 +880,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
            "within the tolerance; buffers are ranked by that concentration, then by their pH change between "
         << fixed(sr.low_temperature_C, 0) << " and " << fixed(sr.high_temperature_C, 0) << " °C.</p>\n";
     if (const ScreenResult* lead = leading_buffer(d)) {
-      out << "<p class=\"lead-buffer\"><strong>Leading buffer: " << esc(lead->name) << " at "
+      out << "<p class=\"lead-statement\"><strong>Leading buffer: " << esc(lead->name) << " at "
           << (lead->min_conc_at_lower_bound ? "any strength (from " : "")
           << esc(sig(*lead->min_conc_mol_per_L * 1e3, 3)) << " mM" << (lead->min_conc_at_lower_bound ? ")" : "")
           << "</strong>, brought to pH " << fixed(sr.target_pH, 2)
@@ -816,7 +888,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
           << fixed(lead->pH_after_drug, 2) << ", osmolarity " << fixed(lead->osmolarity_mOsm_per_L, 1)
           << " mOsm/L (ideal).</p>\n";
     } else {
-      out << "<p class=\"lead-buffer\"><strong>No buffer holds the target with this dose.</strong></p>\n";
+      out << "<p class=\"lead-statement\"><strong>No buffer holds the target with this dose.</strong></p>\n";
     }
     if (const ReportTable* t = find_table(tables, "screen.csv")) {
       // Buffers with no pKa near the target are named below the table, not given a row each.

@@ -116,6 +116,7 @@ Fixture demo_base_fixture() {
   req.form = "hydrochloride";
   req.dose_mol_per_L = dose_conc_mol_per_L(f.library, f.compound, req.form, parse_amount("2mg/mL"), 25.0);
   req.target_pH = 5.0;
+  req.classify_dose_mg = 100.0;
   f.data = analyse_report(f.compound, f.library, req, file, {}, "pkarta report --compound demo-base.xml");
   std::ostringstream out;
   write_report_html(f.data, "demo-base", out);
@@ -149,12 +150,13 @@ TEST(Report, IsWellFormedXhtmlWithEverySection) {
   ASSERT_TRUE(html);
   EXPECT_STREQ(html.attribute("xmlns").value(), "http://www.w3.org/1999/xhtml");
   EXPECT_EQ(fixture().html.rfind("<!DOCTYPE html>", 0), 0u);
-  for (const char* id : {"summary", "compound", "profile", "species", "dose-in-water", "screen", "methods", "traceability"}) {
+  for (const char* id : {"summary", "compound", "profile", "species", "dose-in-water", "classification", "screen", "methods",
+                         "traceability"}) {
     EXPECT_TRUE(html.select_node((std::string("//section[@id='") + id + "']").c_str())) << id;
   }
   // The contents links all lead somewhere.
   const auto links = html.select_nodes("//nav[@class='contents']//a");
-  EXPECT_EQ(links.size(), 8u);
+  EXPECT_EQ(links.size(), 9u);
   for (const auto& a : links) {
     const std::string target = std::string(a.node().attribute("href").value()).substr(1);
     EXPECT_TRUE(html.select_node(("//*[@id='" + target + "']").c_str())) << target;
@@ -200,6 +202,26 @@ TEST(Report, SummaryGivesDosePhmaxAndWhereToFindThem) {
   const ScreenResult& lead = fixture().data.screen->results.at(0);
   ASSERT_EQ(lead.status, ScreenStatus::kOk);
   EXPECT_EQ(keys["Recommended buffer"], lead.name + " " + sig(*lead.min_conc_mol_per_L * 1e3, 3) + " mM");
+}
+
+TEST(Report, ClassificationSectionGivesTheVerdictAndItsPoints) {
+  pugi::xml_document doc;
+  const pugi::xml_node html = parse_html(fixture().html, doc);
+  ASSERT_TRUE(fixture().data.classification);
+  const ClassifyResult& cr = *fixture().data.classification;
+  EXPECT_EQ(cr.temperature_C, 37.0);
+  EXPECT_EQ(cr.volume_mL, 250.0);
+  const pugi::xml_node section = html.select_node("//section[@id='classification']").node();
+  ASSERT_TRUE(section);
+  EXPECT_EQ(section.select_nodes(".//table[@data-csv='classification.csv']/tbody/tr").size(), cr.points.size());
+  const std::string lead = text_of(section.select_node(".//p[@class='lead-statement']").node());
+  EXPECT_EQ(lead.rfind(cr.verdict == "high" ? "Highly soluble" : "Not highly soluble", 0), 0u) << lead;
+  EXPECT_NE(lead.find("ICH M9"), std::string::npos) << lead;
+  std::string card;
+  for (const auto& k : html.select_nodes("//div[@class='key-numbers']/div")) {
+    if (text_of(k.node().first_child()) == "Solubility class (ICH M9)") card = text_of(k.node().child("div").next_sibling());
+  }
+  EXPECT_EQ(card, cr.verdict == "high" ? "highly soluble" : "not highly soluble");
 }
 
 TEST(Report, ScreenSectionHighlightsTheLeadingBufferAndDrawsTheDrift) {

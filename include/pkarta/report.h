@@ -19,6 +19,7 @@
 #include <string>
 #include <vector>
 
+#include "pkarta/classify.h"
 #include "pkarta/equilibrium.h"
 #include "pkarta/mix.h"
 #include "pkarta/model.h"
@@ -37,6 +38,9 @@ struct ReportRequest {
   std::string route = "any";              ///< oral, parenteral, ophthalmic, topical, any
   std::vector<std::string> buffers;       ///< buffers to screen; empty: every buffer of the library
   int drift_buffers = 3;                  ///< leading buffers drawn on the drift chart
+  /// Highest single therapeutic dose (mg of `form`) for the ICH M9 solubility class at 37 °C;
+  /// absent: no classification section.
+  std::optional<double> classify_dose_mg;
   double temperature_C = 25.0;            ///< profile, dose and screen temperature
   ActivityModel activity = ActivityModel::kDavies;
   double profile_from_pH = 1.0;
@@ -85,6 +89,8 @@ struct ReportData {
   /// pH-solubility profile in water, pH held by HCl or NaOH (profile.h), at the run temperature,
   /// with pHmax of each salt that can limit there.
   Profile profile;
+  /// Solubility classification after ICH M9 (classify.h), when a dose in mg was given.
+  std::optional<ClassifyResult> classification;
   /// The buffer screen (screen.h), when a dose and a target pH were given.
   std::optional<ScreenReport> screen;
   /// pH drift against concentration for the leading buffers of the screen.

@@ -21,17 +21,19 @@ struct DemoCase {
   const char* form;
   const char* target_ph;
   const char* route;
+  const char* dose_mg;  ///< highest single dose, for the ICH M9 class
 };
 constexpr DemoCase kDemoCases[] = {
-    {"demo-base", "2mg/mL", "hydrochloride", "5.0", "parenteral"},
-    {"demo-acid", "5mg/mL", "sodium", "7.4", "ophthalmic"},
-    {"demo-ampholyte", "0.1mg/mL", "hydrochloride", "7.0", "oral"},
+    {"demo-base", "2mg/mL", "hydrochloride", "5.0", "parenteral", "100"},
+    {"demo-acid", "5mg/mL", "sodium", "7.4", "ophthalmic", "200"},
+    {"demo-ampholyte", "0.1mg/mL", "hydrochloride", "7.0", "oral", "50"},
 };
 
 std::string summary_line(const ReportData& d) {
   std::string s = d.compound.name + ":";
   if (d.profile.ph_max.empty()) s += " no salt limits in water;";
   for (const PhMax& p : d.profile.ph_max) s += " pHmax " + fixed(p.pH, 2) + " (" + p.salt + ");";
+  if (d.classification) s += " ICH M9: " + std::string(d.classification->verdict == "high" ? "highly soluble;" : "not highly soluble;");
   if (d.screen) {
     const ScreenResult* lead = nullptr;
     for (const ScreenResult& r : d.screen->results) {
@@ -84,6 +86,7 @@ int run_demo(const Args& args) {
       r.form = dc.form;
       r.target_ph = dc.target_ph;
       r.route = dc.route;
+      r.dose_mg = dc.dose_mg;
       r.output = out_dir + "/" + dc.file + ".html";
       ReportData data;
       std::vector<std::string> written;

@@ -18,6 +18,7 @@ struct ReportOptions {
   std::string tolerance = "0.1";
   std::string route = "any";
   std::string temperature = "25";
+  std::string dose_mg;                ///< highest single dose for the ICH M9 class
   bool ideal = false;
   std::string output;
 };
