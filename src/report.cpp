@@ -207,6 +207,15 @@ bool ReportRequest::is_valid(std::string* error) const {
   return true;
 }
 
+double round_up_125(double x) {
+  if (!(x > 0) || !std::isfinite(x)) return x;
+  const double mag = std::pow(10.0, std::floor(std::log10(x)));
+  for (double m : {1.0, 2.0, 5.0, 10.0}) {
+    if (m * mag >= x * (1.0 - 1e-12)) return m * mag;
+  }
+  return 10.0 * mag;
+}
+
 std::string report_date_utc() {
   std::time_t t = std::time(nullptr);
   if (const char* e = std::getenv("SOURCE_DATE_EPOCH"); e && *e) {
@@ -291,6 +300,67 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
         curve.pH_after_drug.push_back(ph_after_drug(library, buffer, c, compound, request.dose_mol_per_L, request.form, so));
       }
       d.drift.push_back(std::move(curve));
+    }
+  }
+
+  // Recipe of the leading buffer, and the formulation diluted into a medium.
+  const ScreenResult* lead = nullptr;
+  if (d.screen) {
+    for (const ScreenResult& r : d.screen->results) {
+      if (r.status == ScreenStatus::kOk) {
+        lead = &r;
+        break;
+      }
+    }
+  }
+  if (lead && lead->min_conc_mol_per_L) {
+    const Buffer& buffer = library.buffer(lead->buffer);
+    RecipeOptions ro;
+    ro.buffer = lead->buffer;
+    ro.pH = *request.target_pH;
+    ro.conc_mol_per_L = std::min(round_up_125(std::max(*lead->min_conc_mol_per_L, 1e-3)), buffer.max_conc_mol_per_L);
+    ro.volume_L = request.recipe_volume_L;
+    ro.temperature_C = request.temperature_C;
+    ro.isotonic = request.route == "parenteral" || request.route == "ophthalmic";
+    ro.activity = request.activity;
+    d.recipe = make_recipe(library, ro);
+    std::string medium = request.dilution_medium;
+    if (medium.empty()) {
+      medium = request.route == "parenteral" ? "plasma-7.4" : request.route == "oral" ? "sif-6.8" : "saline-0.9";
+      if (!library.media.count(medium)) medium = "none";
+    }
+    if (medium != "none") {
+      Mixture formulation = recipe_mixture(library, *d.recipe, request.activity);
+      add_drug(formulation, library, compound, request.dose_mol_per_L, request.form);
+      DilutionOptions dl;
+      dl.medium_id = medium;
+      DilutionResult r = analyse_dilution(formulation, library, dl,
+                                          {d.recipe->buffer_name + " " + sig(d.recipe->conc_mol_per_L * 1e3, 3) + " mM",
+                                           compound.id + " " + request.dose_text});
+      if (r.usable()) d.dilution = std::move(r);
+      else d.warnings.push_back("dilution: " + r.message);
+    }
+  }
+
+  // Uncertainty band of the profile (Monte Carlo over the pKa and S0 uncertainties).
+  bool has_sd = compound.s0_log_sd > 0;
+  for (const Pka& k : compound.system.pkas) has_sd = has_sd || k.sd > 0;
+  if (request.uncertainty_samples > 0 && has_sd) {
+    std::vector<double> grid;
+    for (double x = request.profile_from_pH; x <= request.profile_to_pH + 1e-9; x += request.uncertainty_step_pH) grid.push_back(x);
+    MonteCarloRun run;
+    run.threads = 0;
+    d.uncertainty = profile_bands(compound, library, grid, cond, request.uncertainty_samples, request.uncertainty_seed, run);
+  }
+
+  // Fit of the constants to the measured points of the compound file.
+  if (request.fit_measured && !compound.measured.empty()) {
+    const std::vector<FitPoint> points = fit_points_from_compound(compound);
+    FitOptions fo;
+    fo.conditions = cond;
+    std::vector<FitParameter> params = default_fit_parameters(compound, library, points, fo);
+    if (!params.empty() && points.size() > params.size()) {
+      d.fit = fit_solubility(compound, library, points, params, fo);
     }
   }
 
@@ -459,6 +529,73 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
     }
     tables.push_back(st);
   }
+  if (d.recipe) {
+    const Recipe& r = *d.recipe;
+    ReportTable rt{"recipe.csv",
+                   "Recipe: " + r.buffer_name + " " + sig(r.conc_mol_per_L * 1e3, 3) + " mM, pH " + fixed(r.target_pH, 2) + ", " +
+                       sig(r.volume_L * 1e3, 4) + " mL at " + fixed(r.temperature_C, 1) + " °C",
+                   {"reagent", "role", "formula", "conc (mM)", "amount (mmol)", "mass (g)", "volume (mL)"}, {}};
+    for (const RecipeReagent& g : r.reagents) {
+      rt.rows.push_back({g.id, g.role, g.formula, sig(g.conc_mol_per_L * 1e3, 4), sig(g.amount_mol * 1e3, 4), fixed(g.mass_g, 4), ""});
+    }
+    if (r.titrant) {
+      rt.rows.push_back({r.titrant->id, "titrant " + sig(r.titrant->conc_mol_per_L, 3) + " mol/L", "", "",
+                         sig(r.titrant->amount_mol * 1e3, 4), "", fixed(r.titrant->volume_mL, 3)});
+    }
+    rt.rows.push_back({"water", "to volume", "H2O", "", "", "", sig(r.volume_L * 1e3, 4)});
+    tables.push_back(rt);
+    ReportTable rs{"recipe-solution.csv", "The buffer as made (computed)", {"quantity", "value", "unit"}, {}};
+    rs.rows.push_back({"pH", fixed(r.pH, 3), ""});
+    rs.rows.push_back({"ionic strength", sig(r.ionic_strength_mol_per_L, 4), "mol/L"});
+    rs.rows.push_back({"buffer capacity", sig(r.capacity_mol_per_L_per_pH * 1e3, 4), "mM per pH"});
+    rs.rows.push_back({"osmolarity, ideal", fixed(r.osmolarity_mOsm_per_L, 1), "mOsm/L"});
+    rs.rows.push_back({"osmolality estimate (to be measured)", fixed(r.osmolality_estimate_mOsm_per_kg, 1), "mOsm/kg"});
+    tables.push_back(rs);
+  }
+  if (d.dilution) {
+    const DilutionResult& dl = *d.dilution;
+    ReportTable t{"dilution.csv", "The formulation diluted into " + dl.medium_name + " at " + fixed(dl.temperature_C, 1) + " °C",
+                  {"dilution (total/formulation)", "pH", "drug (mg/mL)", "solubility (mg/mL)", "limiting solid",
+                   "supersaturation ratio", "precipitation risk", "pH at equilibrium", "dissolved at equilibrium (mg/mL)"}, {}};
+    for (const DilutionPoint& p : dl.points) {
+      t.rows.push_back({sig(p.ratio, 3), fixed(p.pH, 2), sig(p.drug_mg_per_mL, 4),
+                        std::isfinite(p.solubility_mol_per_L) ? sig(p.solubility_mol_per_L * mm, 4) : "no solid forms",
+                        p.limiting_solid, sig(p.supersaturation_ratio, 3), p.risk ? "yes" : "no", fixed(p.equilibrium_pH, 2),
+                        sig(p.equilibrium_dissolved_mol_per_L * mm, 4)});
+    }
+    tables.push_back(t);
+  }
+  if (d.uncertainty) {
+    const ProfileBands& b = *d.uncertainty;
+    ReportTable t{"uncertainty.csv",
+                  "Solubility band from the pKa and S0 uncertainties (" + std::to_string(b.samples) + " Monte Carlo samples, seed " +
+                      std::to_string(b.seed) + ")",
+                  {"pH", "nominal (mol/L)", "5th percentile (mol/L)", "median (mol/L)", "95th percentile (mol/L)",
+                   "95th/5th percentile"}, {}};
+    for (std::size_t i = 0; i < b.pH.size(); ++i) {
+      t.rows.push_back({fixed(b.pH[i], 2), sig(std::pow(10.0, b.nominal_log10_mol_per_L[i]), 4),
+                        sig(std::pow(10.0, b.p05_log10_mol_per_L[i]), 4), sig(std::pow(10.0, b.p50_log10_mol_per_L[i]), 4),
+                        sig(std::pow(10.0, b.p95_log10_mol_per_L[i]), 4),
+                        sig(std::pow(10.0, b.p95_log10_mol_per_L[i] - b.p05_log10_mol_per_L[i]), 3)});
+    }
+    tables.push_back(t);
+  }
+  if (d.fit) {
+    const FitResult& f = *d.fit;
+    ReportTable t{"fit.csv", "Constants fitted to the measured points (" + f.message + ")",
+                  {"parameter", "compound file", "estimate", "standard error"}, {}};
+    for (const FitParameter& p : f.parameters) {
+      t.rows.push_back({p.name, fixed(p.start, 3), fixed(p.estimate, 3), std::isfinite(p.std_error) ? fixed(p.std_error, 3) : "n/a"});
+    }
+    tables.push_back(t);
+    ReportTable r{"fit-residuals.csv", "Measured and fitted log10 solubility (mol/L)",
+                  {"pH", "temperature (°C)", "observed log10", "fitted log10", "residual", "limiting solid"}, {}};
+    for (const FitResidual& x : f.residuals) {
+      r.rows.push_back({fixed(x.pH, 2), fixed(x.temperature_C, 1), fixed(x.observed_log10, 3), fixed(x.fitted_log10, 3),
+                        fixed(x.observed_log10 - x.fitted_log10, 3), x.limiting_solid});
+    }
+    tables.push_back(r);
+  }
   if (!d.drift.empty()) {
     ReportTable dt{"drift.csv", "pH after the dose against buffer concentration (leading buffers)",
                    {"buffer", "conc (mM)", "pH after dose", "drift from target (pH)"}, {}};
@@ -531,6 +668,20 @@ svg::Chart profile_chart(const ReportData& d) {
       hi = std::max(hi, m.solubility_mol_per_L);
     }
     ch.series.push_back(meas);
+  }
+  if (d.uncertainty) {
+    const ProfileBands& b = *d.uncertainty;
+    svg::Series p05{"5th and 95th percentiles (Monte Carlo, " + std::to_string(b.samples) + " samples)", {}, {},
+                    svg::SeriesKind::kLine, 5, 1.5};
+    svg::Series p95{"", {}, {}, svg::SeriesKind::kLine, 5, 1.5};
+    for (std::size_t i = 0; i < b.pH.size(); ++i) {
+      p05.x.push_back(b.pH[i]);
+      p05.y.push_back(std::pow(10.0, b.p05_log10_mol_per_L[i]));
+      p95.x.push_back(b.pH[i]);
+      p95.y.push_back(std::pow(10.0, b.p95_log10_mol_per_L[i]));
+    }
+    ch.series.push_back(p05);
+    ch.series.push_back(p95);
   }
   const double dose = d.request.dose_mol_per_L;
   if (dose > 0) {
@@ -678,6 +829,10 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   if (d.dose_in_water) sections.push_back({"dose-in-water", "The dose in water"});
   if (d.classification) sections.push_back({"classification", "Solubility classification (ICH M9)"});
   if (d.screen) sections.push_back({"screen", "Buffer screen"});
+  if (d.recipe) sections.push_back({"recipe", "Recipe of the leading buffer"});
+  if (d.dilution) sections.push_back({"dilution", "Dilution"});
+  if (d.uncertainty) sections.push_back({"uncertainty", "Uncertainty"});
+  if (d.fit) sections.push_back({"fit", "Fit to the measured solubilities"});
   sections.push_back({"methods", "Methods, assumptions and references"});
   sections.push_back({"traceability", "Traceability"});
   auto number = [&](const std::string& id) {
@@ -751,6 +906,17 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
             (sr.solubility_at_target_mol_per_L >= sr.dose_mol_per_L ? ": the dose dissolves" : ": below the dose"),
         "Green vertical line on the pH-solubility chart.");
   }
+  if (d.dilution) {
+    const DilutionResult& dl = *d.dilution;
+    std::string first;
+    double worst = 0.0;
+    for (const DilutionPoint& p : dl.points) {
+      if (p.risk && first.empty()) first = "1:" + sig(p.ratio, 3);
+      worst = std::max(worst, p.supersaturation_ratio);
+    }
+    key(out, first.empty() ? "" : "lead", "Dilution into " + dl.medium_name, first.empty() ? "no precipitation risk" : "risk from " + first,
+        "Highest supersaturation ratio " + sig(worst, 3) + " (above 1: may precipitate)", "Dilution (" + number("dilution") + ").");
+  }
   if (d.classification) {
     const ClassifyResult& cr = *d.classification;
     key(out, "", "Solubility class (ICH M9)", cr.verdict == "high" ? "highly soluble" : "not highly soluble",
@@ -810,6 +976,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
          "elsewhere the free form limits. Where the dose line lies above the blue line, the dose does not dissolve at "
          "that pH.";
   if (!c.measured.empty()) out << " Squares are the shake-flask points of the compound file.";
+  if (d.uncertainty) out << " The thin sky-blue lines bound 90 % of the Monte Carlo samples (" << number("uncertainty") << ").";
   out << "</figcaption>\n</figure>\n";
   if (const ReportTable* t = find_table(tables, "phmax.csv")) {
     if (!t->rows.empty()) write_table_html(*t, out, csv_folder);
@@ -914,6 +1081,126 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
       out << "<figcaption><strong>How to read it.</strong> Each line is one leading buffer: the pH it reaches once the "
              "dose is dissolved, against its concentration. Where a line enters the shaded band the buffer holds the "
              "target; the black line marks the strength the leading buffer needs.</figcaption>\n</figure>\n";
+    }
+    out << "</section>\n";
+  }
+
+  if (d.recipe) {
+    const Recipe& r = *d.recipe;
+    out << "<section id=\"recipe\">\n";
+    heading("recipe");
+    out << "<p class=\"lead-statement\"><strong>" << esc(r.buffer_name) << " " << esc(sig(r.conc_mol_per_L * 1e3, 3))
+        << " mM, pH " << fixed(r.target_pH, 2) << "</strong>: the leading buffer at its minimum strength rounded up to "
+           "the 1-2-5 series"
+        << (r.isotonic ? ", made isotonic with sodium chloride (osmolality estimated, to be measured)" : "")
+        << ". The buffer alone, before the drug is added.</p>\n";
+    for (const char* f : {"recipe.csv", "recipe-solution.csv"}) {
+      if (const ReportTable* t = find_table(tables, f)) write_table_html(*t, out, csv_folder);
+    }
+    if (!r.notes.empty() || !r.warnings.empty() || !r.tonicity_method.empty()) {
+      out << "<ul class=\"notes\">";
+      if (!r.tonicity_method.empty()) out << "<li>" << esc(r.tonicity_method) << "</li>";
+      for (const std::string& n : r.notes) out << "<li>" << esc(n) << "</li>";
+      for (const std::string& n : r.warnings) out << "<li class=\"warning\">" << esc(n) << "</li>";
+      out << "</ul>\n";
+    }
+    out << "</section>\n";
+  }
+
+  if (d.dilution) {
+    const DilutionResult& dl = *d.dilution;
+    out << "<section id=\"dilution\">\n";
+    heading("dilution");
+    std::vector<std::string> risky;
+    for (const DilutionPoint& p : dl.points) {
+      if (p.risk) risky.push_back("1:" + sig(p.ratio, 3));
+    }
+    out << "<p class=\"lead-statement\"><strong>"
+        << (risky.empty() ? "No precipitation risk" : "Precipitation risk at " + esc(risky.front()) +
+                                                          (risky.size() > 1 ? " to " + esc(risky.back()) : std::string()))
+        << "</strong> when the formulation (recipe above with the dose) is diluted into " << esc(dl.medium_name)
+        << ": the supersaturation ratio is the drug concentration over the solubility of the least soluble solid, "
+           "with the whole dose dissolved.</p>\n";
+    svg::Chart ch;
+    ch.id = "chart-dilution";
+    ch.title = "Supersaturation on dilution into " + dl.medium_name;
+    double lo = 1.0, hi = 1.0, rmax = 1.0;
+    svg::Series ss{"supersaturation ratio", {}, {}, svg::SeriesKind::kLineAndMarkers, 0, 2.5};
+    for (const DilutionPoint& p : dl.points) {
+      ss.x.push_back(p.ratio);
+      ss.y.push_back(p.supersaturation_ratio);
+      rmax = std::max(rmax, p.ratio);
+      if (p.supersaturation_ratio > 0 && std::isfinite(p.supersaturation_ratio)) {
+        lo = std::min(lo, p.supersaturation_ratio);
+        hi = std::max(hi, p.supersaturation_ratio);
+      }
+    }
+    ch.series.push_back(ss);
+    ch.x = {"dilution (total volume / formulation volume, log scale)", 1.0, std::pow(10.0, std::ceil(std::log10(rmax) - 1e-9)),
+            svg::Scale::kLog10};
+    ch.y = {"supersaturation ratio (log scale)", std::pow(10.0, std::floor(std::log10(lo) - 0.2)),
+            std::pow(10.0, std::ceil(std::log10(hi) + 0.2)), svg::Scale::kLog10};
+    ch.plot_height = 240;
+    ch.bands.push_back(svg::Band{svg::Band::Orientation::kHorizontal, 1.0, ch.y.max, "precipitation possible", 2, 0.25});
+    ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kHorizontal, 1.0, "saturation (ratio 1)", 7, true, false});
+    ch.description = "Supersaturation ratio of the drug against the dilution ratio into " + dl.medium_name +
+                     "; above 1 the drug may precipitate.";
+    out << "<figure>\n";
+    svg::write_svg(ch, out);
+    out << "<figcaption><strong>How to read it.</strong> Points in the shaded area (ratio above 1) may precipitate "
+           "on dilution; the table gives the pH and what would remain dissolved at equilibrium.</figcaption>\n</figure>\n";
+    if (const ReportTable* t = find_table(tables, "dilution.csv")) write_table_html(*t, out, csv_folder);
+    if (!dl.notes.empty()) {
+      out << "<ul class=\"notes\">";
+      for (const std::string& n : dl.notes) out << "<li>" << esc(n) << "</li>";
+      out << "</ul>\n";
+    }
+    out << "</section>\n";
+  }
+
+  if (d.uncertainty) {
+    const ProfileBands& b = *d.uncertainty;
+    out << "<section id=\"uncertainty\">\n";
+    heading("uncertainty");
+    double widest = 0.0, at = 0.0;
+    for (std::size_t i = 0; i < b.pH.size(); ++i) {
+      const double w = b.p95_log10_mol_per_L[i] - b.p05_log10_mol_per_L[i];
+      if (w > widest) {
+        widest = w;
+        at = b.pH[i];
+      }
+    }
+    out << "<p>The pKa values and the intrinsic solubility are drawn " << b.samples
+        << " times from normal distributions with the standard uncertainties of the compound file (salt Ksp held); "
+           "the thin sky-blue lines on the pH-solubility chart are the 5th and 95th percentiles. The band is widest at pH "
+        << fixed(at, 2) << ", a factor " << esc(sig(std::pow(10.0, widest), 3)) << " between them.</p>\n";
+    if (const ReportTable* t = find_table(tables, "uncertainty.csv")) {
+      std::vector<std::size_t> rows;
+      for (std::size_t i = 0; i < b.pH.size(); ++i) {
+        if (std::fabs(b.pH[i] - std::round(b.pH[i])) < 1e-6) rows.push_back(i);
+      }
+      write_table_html(*t, out, csv_folder, &rows, "Every 1 pH shown; the CSV holds every " + fixed(d.request.uncertainty_step_pH, 2) + " pH.");
+    }
+    out << "</section>\n";
+  }
+
+  if (d.fit) {
+    const FitResult& f = *d.fit;
+    out << "<section id=\"fit\">\n";
+    heading("fit");
+    out << "<p>The constants are fitted to the shake-flask points of the compound file by weighted least squares in "
+           "log10 solubility (Levenberg-Marquardt); root-mean-square residual "
+        << esc(fixed(f.rms_log10, 3)) << " log10 units over " << f.residuals.size() << " points. "
+        << (f.usable() ? "The report's other sections use the constants as given in the file, not these estimates."
+                       : "The fit did not converge; its numbers are shown for inspection only.")
+        << "</p>\n";
+    for (const char* fn : {"fit.csv", "fit-residuals.csv"}) {
+      if (const ReportTable* t = find_table(tables, fn)) write_table_html(*t, out, csv_folder);
+    }
+    if (!f.warnings.empty()) {
+      out << "<ul class=\"notes\">";
+      for (const std::string& w : f.warnings) out << "<li>" << esc(w) << "</li>";
+      out << "</ul>\n";
     }
     out << "</section>\n";
   }

@@ -117,6 +117,7 @@ Fixture demo_base_fixture() {
   req.dose_mol_per_L = dose_conc_mol_per_L(f.library, f.compound, req.form, parse_amount("2mg/mL"), 25.0);
   req.target_pH = 5.0;
   req.classify_dose_mg = 100.0;
+  req.route = "parenteral";
   f.data = analyse_report(f.compound, f.library, req, file, {}, "pkarta report --compound demo-base.xml");
   std::ostringstream out;
   write_report_html(f.data, "demo-base", out);
@@ -150,13 +151,13 @@ TEST(Report, IsWellFormedXhtmlWithEverySection) {
   ASSERT_TRUE(html);
   EXPECT_STREQ(html.attribute("xmlns").value(), "http://www.w3.org/1999/xhtml");
   EXPECT_EQ(fixture().html.rfind("<!DOCTYPE html>", 0), 0u);
-  for (const char* id : {"summary", "compound", "profile", "species", "dose-in-water", "classification", "screen", "methods",
-                         "traceability"}) {
+  for (const char* id : {"summary", "compound", "profile", "species", "dose-in-water", "classification", "screen", "recipe",
+                         "dilution", "uncertainty", "fit", "methods", "traceability"}) {
     EXPECT_TRUE(html.select_node((std::string("//section[@id='") + id + "']").c_str())) << id;
   }
   // The contents links all lead somewhere.
   const auto links = html.select_nodes("//nav[@class='contents']//a");
-  EXPECT_EQ(links.size(), 9u);
+  EXPECT_EQ(links.size(), 13u);
   for (const auto& a : links) {
     const std::string target = std::string(a.node().attribute("href").value()).substr(1);
     EXPECT_TRUE(html.select_node(("//*[@id='" + target + "']").c_str())) << target;
@@ -224,6 +225,52 @@ TEST(Report, ClassificationSectionGivesTheVerdictAndItsPoints) {
   EXPECT_EQ(card, cr.verdict == "high" ? "highly soluble" : "not highly soluble");
 }
 
+TEST(Report, RecipeDilutionUncertaintyAndFitSections) {
+  pugi::xml_document doc;
+  const pugi::xml_node html = parse_html(fixture().html, doc);
+  const ReportData& d = fixture().data;
+  // Recipe of the leading buffer at its minimum strength rounded up to the 1-2-5 series,
+  // isotonic for the parenteral route.
+  ASSERT_TRUE(d.recipe && d.screen);
+  EXPECT_EQ(d.recipe->buffer, d.screen->results[0].buffer);
+  EXPECT_DOUBLE_EQ(d.recipe->conc_mol_per_L, round_up_125(*d.screen->results[0].min_conc_mol_per_L));
+  EXPECT_TRUE(d.recipe->isotonic);
+  EXPECT_NEAR(d.recipe->pH, 5.0, 0.01);
+  const pugi::xml_node recipe = html.select_node("//section[@id='recipe']//table[@data-csv='recipe.csv']").node();
+  ASSERT_TRUE(recipe);
+  EXPECT_EQ(recipe.select_nodes("tbody/tr").size(), d.recipe->reagents.size() + (d.recipe->titrant ? 1 : 0) + 1);
+  // Dilution into plasma for the parenteral route: chart with one series, log axes.
+  ASSERT_TRUE(d.dilution);
+  EXPECT_EQ(d.dilution->medium_id, "plasma-7.4");
+  const pugi::xml_node chart = html.select_node("//*[@id='chart-dilution']").node();
+  ASSERT_TRUE(chart);
+  EXPECT_EQ(chart.select_nodes(".//g[@class='series']").size(), 1u);
+  std::set<std::string> labels;
+  for (const auto& n : chart.select_nodes(".//text[@class='axis-label']")) labels.insert(n.node().child_value());
+  EXPECT_EQ(labels, (std::set<std::string>{"dilution (total volume / formulation volume, log scale)",
+                                           "supersaturation ratio (log scale)"}));
+  EXPECT_EQ(html.select_nodes("//table[@data-csv='dilution.csv']/tbody/tr").size(), d.dilution->points.size());
+  // Uncertainty: percentiles bracket the nominal profile.
+  ASSERT_TRUE(d.uncertainty);
+  EXPECT_EQ(d.uncertainty->samples, 200);
+  for (std::size_t i = 0; i < d.uncertainty->pH.size(); ++i) {
+    EXPECT_LE(d.uncertainty->p05_log10_mol_per_L[i], d.uncertainty->p95_log10_mol_per_L[i]);
+  }
+  EXPECT_TRUE(html.select_node("//section[@id='uncertainty']//table[@data-csv='uncertainty.csv']"));
+  // Fit to the 12 shake-flask points: one row per parameter, one per point.
+  ASSERT_TRUE(d.fit);
+  EXPECT_EQ(html.select_nodes("//table[@data-csv='fit.csv']/tbody/tr").size(), d.fit->parameters.size());
+  EXPECT_EQ(html.select_nodes("//table[@data-csv='fit-residuals.csv']/tbody/tr").size(), fixture().compound.measured.size());
+}
+
+TEST(Report, RoundUp125) {
+  EXPECT_DOUBLE_EQ(round_up_125(0.000656), 0.001);
+  EXPECT_DOUBLE_EQ(round_up_125(0.00415), 0.005);
+  EXPECT_DOUBLE_EQ(round_up_125(0.02), 0.02);
+  EXPECT_DOUBLE_EQ(round_up_125(0.0201), 0.05);
+  EXPECT_DOUBLE_EQ(round_up_125(0.06), 0.1);
+}
+
 TEST(Report, ScreenSectionHighlightsTheLeadingBufferAndDrawsTheDrift) {
   pugi::xml_document doc;
   const pugi::xml_node html = parse_html(fixture().html, doc);
@@ -262,8 +309,13 @@ TEST(Report, ProfileChartHasItsSeriesAxesAndMarks) {
   ASSERT_TRUE(chart);
   std::vector<std::string> series;
   for (const auto& s : chart.select_nodes(".//g[@class='series']")) series.push_back(s.node().attribute("data-series").value());
-  ASSERT_EQ(series.size(), 3u);
+  // Model, ideal curve, measured points, and the 5th and 95th percentiles of the Monte Carlo
+  // band (one legend entry for both).
+  ASSERT_EQ(series.size(), 5u);
+  EXPECT_EQ(series[0], "model (Davies activities, salt limits)");
   EXPECT_EQ(series[2], "measured (compound file)");
+  EXPECT_EQ(series[3].rfind("5th and 95th percentiles", 0), 0u);
+  EXPECT_EQ(chart.select_nodes(".//g[@class='legend-item']").size(), 4u);
   // Every measured point of the compound file is drawn.
   EXPECT_EQ(chart.select_nodes(".//g[@class='series'][3]/*").size(), fixture().compound.measured.size());
   std::set<std::string> labels;

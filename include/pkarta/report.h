@@ -20,11 +20,15 @@
 #include <vector>
 
 #include "pkarta/classify.h"
+#include "pkarta/dilute.h"
 #include "pkarta/equilibrium.h"
+#include "pkarta/fit.h"
 #include "pkarta/mix.h"
 #include "pkarta/model.h"
 #include "pkarta/profile.h"
+#include "pkarta/recipe.h"
 #include "pkarta/screen.h"
+#include "pkarta/uncertainty.h"
 
 namespace pkarta {
 
@@ -41,6 +45,16 @@ struct ReportRequest {
   /// Highest single therapeutic dose (mg of `form`) for the ICH M9 solubility class at 37 °C;
   /// absent: no classification section.
   std::optional<double> classify_dose_mg;
+  double recipe_volume_L = 1.0;           ///< volume of the leading buffer's recipe
+  /// Medium the formulation (leading buffer + dose) is diluted into; "" = by route
+  /// (parenteral: plasma-7.4, oral: sif-6.8, others: saline-0.9); "none" = no dilution.
+  std::string dilution_medium;
+  /// Monte Carlo samples for the uncertainty band of the profile (0 = none). Only pKa and S0
+  /// values with an sd in the compound file vary.
+  int uncertainty_samples = 200;
+  std::uint64_t uncertainty_seed = 20261201;
+  double uncertainty_step_pH = 0.25;      ///< grid of the band (coarser than the profile)
+  bool fit_measured = true;               ///< fit pKa/S0/Ksp to the file's measured points
   double temperature_C = 25.0;            ///< profile, dose and screen temperature
   ActivityModel activity = ActivityModel::kDavies;
   double profile_from_pH = 1.0;
@@ -95,6 +109,15 @@ struct ReportData {
   std::optional<ScreenReport> screen;
   /// pH drift against concentration for the leading buffers of the screen.
   std::vector<DriftCurve> drift;
+  /// Bench recipe of the leading buffer at the target pH, at its minimum strength rounded up
+  /// to the 1-2-5 series (isotonic with NaCl for parenteral and ophthalmic routes).
+  std::optional<Recipe> recipe;
+  /// The formulation (recipe + dose) diluted into a medium.
+  std::optional<DilutionResult> dilution;
+  /// Monte Carlo band of the profile from the compound's pKa and S0 uncertainties.
+  std::optional<ProfileBands> uncertainty;
+  /// Fit of the compound's constants to its measured points (when it has enough of them).
+  std::optional<FitResult> fit;
   /// The dose dissolved in water alone (no buffer): pH it sets, what stays solid.
   std::optional<MixResult> dose_in_water;
   std::vector<std::string> warnings;
@@ -106,6 +129,9 @@ struct ReportData {
 ReportData analyse_report(const Compound& compound, const Library& library, const ReportRequest& request,
                           const std::string& compound_file, const std::vector<std::string>& library_files,
                           const std::string& command_line);
+
+/// The smallest value of the 1-2-5 series (..., 1, 2, 5, 10, ...) at or above `x` (> 0).
+double round_up_125(double x);
 
 /// The date for reports: SOURCE_DATE_EPOCH (seconds since 1970, UTC) when set and valid, else
 /// the current UTC date; "YYYY-MM-DD". Throws InputError when SOURCE_DATE_EPOCH is set but not
