@@ -58,6 +58,12 @@ std::string pretty_species(const std::string& label) {
 
 std::string form_label(const std::string& form) { return form == "free" ? "free form" : form; }
 
+// "1:10", "1:2.5": a dilution ratio.
+std::string ratio_text(double ratio) {
+  if (std::fabs(ratio - std::round(ratio)) < 1e-9) return "1:" + fixed(ratio, 0);
+  return "1:" + sig(ratio, 3);
+}
+
 std::string mg_per_mL(double mol_per_L, double molar_mass) { return sig(mol_per_L * molar_mass, 3); }
 
 bool numeric_cell(const std::string& s) {
@@ -323,6 +329,18 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     ro.temperature_C = request.temperature_C;
     ro.isotonic = request.route == "parenteral" || request.route == "ophthalmic";
     ro.activity = request.activity;
+    // Sodium chloride would bring the counterion of a Cl- or Na+ salt (common-ion effect):
+    // make such a recipe isotonic with dextrose when the library has it.
+    if (ro.isotonic && library.reagents.count("dextrose")) {
+      for (const Salt& salt : compound.salts) {
+        if (salt.counterion == "Cl-" || salt.counterion == "Na+") {
+          ro.tonicity_reagent = "dextrose";
+          d.recipe_tonicity_note = "Made isotonic with dextrose, not sodium chloride: NaCl brings " + salt.counterion +
+                                   ", the counterion of the " + salt.id + ", whose solubility it would lower (common-ion effect).";
+          break;
+        }
+      }
+    }
     d.recipe = make_recipe(library, ro);
     std::string medium = request.dilution_medium;
     if (medium.empty()) {
@@ -911,10 +929,10 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     std::string first;
     double worst = 0.0;
     for (const DilutionPoint& p : dl.points) {
-      if (p.risk && first.empty()) first = "1:" + sig(p.ratio, 3);
+      if (p.risk && first.empty()) first = ratio_text(p.ratio);
       worst = std::max(worst, p.supersaturation_ratio);
     }
-    key(out, first.empty() ? "" : "lead", "Dilution into " + dl.medium_name, first.empty() ? "no precipitation risk" : "risk from " + first,
+    key(out, first.empty() ? "" : "lead", "Dilution into " + dl.medium_name, first.empty() ? "no precipitation risk" : first == "1:1" ? "risk undiluted" : "risk from " + first,
         "Highest supersaturation ratio " + sig(worst, 3) + " (above 1: may precipitate)", "Dilution (" + number("dilution") + ").");
   }
   if (d.classification) {
@@ -1092,13 +1110,16 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     out << "<p class=\"lead-statement\"><strong>" << esc(r.buffer_name) << " " << esc(sig(r.conc_mol_per_L * 1e3, 3))
         << " mM, pH " << fixed(r.target_pH, 2) << "</strong>: the leading buffer at its minimum strength rounded up to "
            "the 1-2-5 series"
-        << (r.isotonic ? ", made isotonic with sodium chloride (osmolality estimated, to be measured)" : "")
+        << (r.isotonic ? std::string(", made isotonic with ") + (d.recipe_tonicity_note.empty() ? "sodium chloride" : "dextrose") +
+                             " (osmolality estimated, to be measured)"
+                       : std::string())
         << ". The buffer alone, before the drug is added.</p>\n";
     for (const char* f : {"recipe.csv", "recipe-solution.csv"}) {
       if (const ReportTable* t = find_table(tables, f)) write_table_html(*t, out, csv_folder);
     }
     if (!r.notes.empty() || !r.warnings.empty() || !r.tonicity_method.empty()) {
       out << "<ul class=\"notes\">";
+      if (!d.recipe_tonicity_note.empty()) out << "<li>" << esc(d.recipe_tonicity_note) << "</li>";
       if (!r.tonicity_method.empty()) out << "<li>" << esc(r.tonicity_method) << "</li>";
       for (const std::string& n : r.notes) out << "<li>" << esc(n) << "</li>";
       for (const std::string& n : r.warnings) out << "<li class=\"warning\">" << esc(n) << "</li>";
@@ -1113,7 +1134,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     heading("dilution");
     std::vector<std::string> risky;
     for (const DilutionPoint& p : dl.points) {
-      if (p.risk) risky.push_back("1:" + sig(p.ratio, 3));
+      if (p.risk) risky.push_back(ratio_text(p.ratio));
     }
     out << "<p class=\"lead-statement\"><strong>"
         << (risky.empty() ? "No precipitation risk" : "Precipitation risk at " + esc(risky.front()) +

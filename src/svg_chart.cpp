@@ -288,6 +288,7 @@ void write_svg(const Chart& c, std::ostream& out) {
   }
 
   // Bands (under everything else).
+  std::ostringstream band_labels;
   out << "<g class=\"bands\" clip-path=\"url(#" << id << "-clip)\">\n";
   for (const Band& b : c.bands) {
     const bool vertical = b.orientation == Band::Orientation::kVertical;
@@ -307,10 +308,13 @@ void write_svg(const Chart& c, std::ostream& out) {
     std::snprintf(opacity, sizeof opacity, "%.2f", std::clamp(b.opacity, 0.0, 1.0));
     out << " fill=\"" << band_colour(b.style) << "\" fill-opacity=\"" << opacity << "\"/>";
     if (!b.label.empty()) {
+      // Labels are written after the grid (below), so no grid line crosses them.
       const double tx = vertical ? lo + 5.0 : x0 + 6.0;
       const double ty = vertical ? y0 - 8.0 : lo + 15.0;
-      out << "<text x=\"" << num(tx) << "\" y=\"" << num(ty) << "\" fill=\"#333333\" font-size=\"12.0\">"
-          << xml_escape(b.label) << "</text>";
+      band_labels << "<text x=\"" << num(tx) << "\" y=\"" << num(ty)
+                  << "\" fill=\"#333333\" font-size=\"12.0\" stroke=\"#ffffff\" stroke-width=\"3\" "
+                     "stroke-linejoin=\"round\" paint-order=\"stroke\">"
+                  << xml_escape(b.label) << "</text>";
     }
     out << "</g>\n";
   }
@@ -331,6 +335,9 @@ void write_svg(const Chart& c, std::ostream& out) {
   }
   out << "</g>\n";
 
+  if (!band_labels.str().empty()) {
+    out << "<g class=\"band-labels\" clip-path=\"url(#" << id << "-clip)\">" << band_labels.str() << "</g>\n";
+  }
   out << "<g class=\"axis x-axis\" fill=\"#1A1A1A\">";
   out << "<line x1=\"" << num(x0) << "\" y1=\"" << num(y0) << "\" x2=\"" << num(x1) << "\" y2=\"" << num(y0)
       << "\" stroke=\"#1A1A1A\" stroke-width=\"1.2\"/>";

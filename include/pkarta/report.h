@@ -112,6 +112,7 @@ struct ReportData {
   /// Bench recipe of the leading buffer at the target pH, at its minimum strength rounded up
   /// to the 1-2-5 series (isotonic with NaCl for parenteral and ophthalmic routes).
   std::optional<Recipe> recipe;
+  std::string recipe_tonicity_note;       ///< why the tonicity reagent was chosen ("" = NaCl, default)
   /// The formulation (recipe + dose) diluted into a medium.
   std::optional<DilutionResult> dilution;
   /// Monte Carlo band of the profile from the compound's pKa and S0 uncertainties.
