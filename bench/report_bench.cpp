@@ -25,12 +25,13 @@ struct DemoCase {
   const char* form;
   double target_pH;
   double dose_mg;
+  const char* route;
 };
-constexpr DemoCase kCases[] = {{"demo-base", "2mg/mL", "hydrochloride", 5.0, 100},
-                               {"demo-acid", "5mg/mL", "sodium", 7.4, 200},
-                               {"demo-ampholyte", "0.1mg/mL", "hydrochloride", 7.0, 50}};
+constexpr DemoCase kCases[] = {{"demo-base", "2mg/mL", "hydrochloride", 5.0, 100, "parenteral"},
+                               {"demo-acid", "5mg/mL", "sodium", 7.4, 200, "ophthalmic"},
+                               {"demo-ampholyte", "0.1mg/mL", "hydrochloride", 7.0, 50, "oral"}};
 
-std::size_t demo_reports(const Library& lib, const std::string& dir) {
+std::size_t demo_reports(const Library& lib, const std::string& dir, int uncertainty_samples = 100) {
   std::size_t bytes = 0;
   for (const DemoCase& c : kCases) {
     const std::string file = dir + "/" + c.file + ".xml";
@@ -41,6 +42,8 @@ std::size_t demo_reports(const Library& lib, const std::string& dir) {
     req.dose_mol_per_L = dose_conc_mol_per_L(lib, compound, c.form, parse_amount(c.dose), 25.0);
     req.target_pH = c.target_pH;
     req.classify_dose_mg = c.dose_mg;
+    req.route = c.route;
+    req.uncertainty_samples = uncertainty_samples;
     const ReportData d = analyse_report(compound, lib, req, file, {}, "pkarta report");
     std::ostringstream out;
     write_report_html(d, c.file, out);
@@ -68,6 +71,14 @@ void BM_demo_report_three_compounds(benchmark::State& state) {
   state.counters["output_kB"] = static_cast<double>(bytes) / 1000.0;
 }
 BENCHMARK(BM_demo_report_three_compounds)->Unit(benchmark::kMillisecond)->UseRealTime();
+
+// The same without the Monte Carlo band (what the other analyses cost).
+void BM_demo_report_without_uncertainty(benchmark::State& state) {
+  const Library lib = builtin_library();
+  const std::string dir = compounds_dir();
+  for (auto _ : state) benchmark::DoNotOptimize(demo_reports(lib, dir, 0));
+}
+BENCHMARK(BM_demo_report_without_uncertainty)->Unit(benchmark::kMillisecond)->UseRealTime();
 
 void BM_svg_chart_241_points(benchmark::State& state) {
   svg::Chart c;

@@ -252,7 +252,7 @@ TEST(Report, RecipeDilutionUncertaintyAndFitSections) {
   EXPECT_EQ(html.select_nodes("//table[@data-csv='dilution.csv']/tbody/tr").size(), d.dilution->points.size());
   // Uncertainty: percentiles bracket the nominal profile.
   ASSERT_TRUE(d.uncertainty);
-  EXPECT_EQ(d.uncertainty->samples, 200);
+  EXPECT_EQ(d.uncertainty->samples, 100);
   for (std::size_t i = 0; i < d.uncertainty->pH.size(); ++i) {
     EXPECT_LE(d.uncertainty->p05_log10_mol_per_L[i], d.uncertainty->p95_log10_mol_per_L[i]);
   }

@@ -51,7 +51,7 @@ struct ReportRequest {
   std::string dilution_medium;
   /// Monte Carlo samples for the uncertainty band of the profile (0 = none). Only pKa and S0
   /// values with an sd in the compound file vary.
-  int uncertainty_samples = 200;
+  int uncertainty_samples = 100;
   std::uint64_t uncertainty_seed = 20261201;
   double uncertainty_step_pH = 0.25;      ///< grid of the band (coarser than the profile)
   bool fit_measured = true;               ///< fit pKa/S0/Ksp to the file's measured points
