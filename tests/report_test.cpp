@@ -504,6 +504,9 @@ TEST(ReportCli, WritesTheReportAndRefusesBadOutputs) {
   r = shell(bin + " report --compound compounds/demo-acid.xml --dose 1mg/mL --form mesylate -o " + dir + "/x.html");
   EXPECT_EQ(r.code, 2);
   EXPECT_NE(r.err.find("mesylate"), std::string::npos) << r.err;
+  r = shell(bin + " report --compound compounds/demo-acid.xml --dose 1mg/mL --target-ph 7 --into seawater -o " + dir + "/x.html");
+  EXPECT_EQ(r.code, 2);
+  EXPECT_NE(r.err.find("--into: unknown medium \"seawater\""), std::string::npos) << r.err;
   r = shell(bin + " report --compound compounds/demo-acid.xml -o " + dir + "/no/such/dir/x.html");
   EXPECT_NE(r.code, 0);
   EXPECT_NE(r.err.find("cannot"), std::string::npos) << r.err;

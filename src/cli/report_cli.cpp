@@ -14,6 +14,7 @@ void add_report_options(po::options_description& desc, ReportOptions& r) {
       ("target-ph", po::value(&r.target_ph), "pH the formulation must hold (buffer screen and recipe)")
       ("tolerance", po::value(&r.tolerance)->default_value("0.1"), "allowed pH drift after the dose")
       ("dose-mg", po::value(&r.dose_mg), "highest single dose in mg of the form, for the ICH M9 solubility class at 37 °C")
+      ("into", po::value(&r.into), "medium the formulation is diluted into (default by route; none: no dilution)")
       ("route", po::value(&r.route)->default_value("any"), "oral, parenteral, ophthalmic, topical or any")
       ("temp", po::value(&r.temperature)->default_value("25"), "temperature, °C")
       ("ideal", po::bool_switch(&r.ideal), "activity coefficients 1 (no Davies correction)")
@@ -28,6 +29,7 @@ std::string report_arguments(const ReportOptions& r) {
   if (r.tolerance != "0.1") s += " --tolerance " + r.tolerance;
   if (r.route != "any") s += " --route " + r.route;
   if (!r.dose_mg.empty()) s += " --dose-mg " + r.dose_mg;
+  if (!r.into.empty()) s += " --into " + r.into;
   s += " --temp " + r.temperature;
   if (r.ideal) s += " --ideal";
   return s;
@@ -47,6 +49,12 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
                      "unknown route \"" + r.route + "\", expected oral, parenteral, ophthalmic, topical or any");
   }
   req.route = r.route;
+  if (!r.into.empty() && r.into != "none" && !library.media.count(r.into)) {
+    std::string known;
+    for (const auto& m : library.media) known += (known.empty() ? "" : ", ") + m.first;
+    throw InputError(SourceLocation{"--into", 0, 0}, "unknown medium \"" + r.into + "\" (media: " + known + ")");
+  }
+  req.dilution_medium = r.into;
   if (!r.dose_mg.empty()) req.classify_dose_mg = option_number("--dose-mg", r.dose_mg, 1e-6, 1e7);
   const Compound compound = load_compound(r.compound_file, library);
   if (!r.dose.empty()) {

@@ -19,6 +19,7 @@ struct ReportOptions {
   std::string route = "any";
   std::string temperature = "25";
   std::string dose_mg;                ///< highest single dose for the ICH M9 class
+  std::string into;                   ///< dilution medium ("" = by route, "none" = no dilution)
   bool ideal = false;
   std::string output;
 };
