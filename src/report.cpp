@@ -336,7 +336,10 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
         if (salt.counterion == "Cl-" || salt.counterion == "Na+") {
           ro.tonicity_reagent = "dextrose";
           d.recipe_tonicity_note = "Made isotonic with dextrose, not sodium chloride: NaCl brings " + salt.counterion +
-                                   ", the counterion of the " + salt.id + ", whose solubility it would lower (common-ion effect).";
+                                   ", the counterion of the " + salt.id + ", whose solubility it would lower (common-ion effect). "
+                                   "Dextrose is added until the osmolality estimate (osmotic coefficient " +
+                                   fixed(kOsmoticCoefficient, 2) + ") reaches " + fixed(kIsotonicTarget_mOsm_per_kg, 0) +
+                                   " mOsm/kg; the osmolality must be measured.";
           break;
         }
       }
@@ -720,14 +723,15 @@ svg::Chart profile_chart(const ReportData& d) {
     if (!tints.count(r.solid)) tints[r.solid] = tint++;
     ch.bands.push_back(svg::Band{svg::Band::Orientation::kVertical, r.from, r.to, r.solid + " limits", tints[r.solid]});
   }
+  // The target first, so a pHmax line at the same pH is drawn over it.
+  if (d.request.target_pH) {
+    ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, *d.request.target_pH,
+                                    "target pH " + fixed(*d.request.target_pH, 2), 2, false, false});
+  }
   for (const PhMax& p : d.profile.ph_max) {
     if (!p.on_profile) continue;
     ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, p.pH, "pHmax " + fixed(p.pH, 2) + " (" + p.salt + ")",
                                     1, true, false});
-  }
-  if (d.request.target_pH) {
-    ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, *d.request.target_pH,
-                                    "target pH " + fixed(*d.request.target_pH, 2), 2, false, false});
   }
   if (dose > 0) {
     ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kHorizontal, dose,
@@ -1120,7 +1124,8 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     if (!r.notes.empty() || !r.warnings.empty() || !r.tonicity_method.empty()) {
       out << "<ul class=\"notes\">";
       if (!d.recipe_tonicity_note.empty()) out << "<li>" << esc(d.recipe_tonicity_note) << "</li>";
-      if (!r.tonicity_method.empty()) out << "<li>" << esc(r.tonicity_method) << "</li>";
+      // The recipe's own sentence names NaCl; with another tonicity reagent the note above says it.
+      if (!r.tonicity_method.empty() && d.recipe_tonicity_note.empty()) out << "<li>" << esc(r.tonicity_method) << "</li>";
       for (const std::string& n : r.notes) out << "<li>" << esc(n) << "</li>";
       for (const std::string& n : r.warnings) out << "<li class=\"warning\">" << esc(n) << "</li>";
       out << "</ul>\n";

@@ -329,8 +329,8 @@ TEST(Report, ProfileChartHasItsSeriesAxesAndMarks) {
   std::vector<std::string> lines;
   for (const auto& n : chart.select_nodes(".//g[@class='reference-line']")) lines.push_back(n.node().attribute("data-label").value());
   ASSERT_EQ(lines.size(), 3u);
-  EXPECT_EQ(lines[0], "pHmax " + fixed(fixture().data.profile.ph_max[0].pH, 2) + " (hydrochloride)");
-  EXPECT_EQ(lines[1], "target pH 5.00");
+  EXPECT_EQ(lines[0], "target pH 5.00");
+  EXPECT_EQ(lines[1], "pHmax " + fixed(fixture().data.profile.ph_max[0].pH, 2) + " (hydrochloride)");
   EXPECT_EQ(lines[2].rfind("dose 2mg/mL (hydrochloride)", 0), 0u) << lines[2];
   const auto bands = chart.select_nodes(".//g[@class='band']");
   ASSERT_EQ(bands.size(), 1u);
