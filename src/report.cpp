@@ -177,7 +177,8 @@ ol.refs li { margin-bottom: 3px; }
 dl.trace { display: grid; grid-template-columns: max-content 1fr; gap: 3px 16px; font-size: 13.5px; }
 dl.trace dt { font-weight: bold; }
 dl.trace dd { margin: 0; }
-code, .hash { font-family: monospace; font-size: 12.5px; word-break: break-all; }
+code, .hash { font-family: monospace; font-size: 12.5px; overflow-wrap: anywhere; }
+.hash { word-break: break-all; }
 footer { margin-top: 36px; border-top: 1px solid var(--rule); padding-top: 8px; font-size: 12.5px; color: var(--muted); }
 @media (max-width: 760px) { .key-numbers { grid-template-columns: 1fr; } nav.contents ol { columns: 1; } }
 @media print {
@@ -293,6 +294,11 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     so.activity = request.activity;
     ScreenJob job{compound, request.dose_mol_per_L, request.form};
     d.screen = screen(library, job, so);
+    for (const ScreenResult& r : d.screen->results) {
+      if (r.status == ScreenStatus::kOutsideRange) continue;
+      const AcidBaseSystem& sys = library.system(library.buffer(r.buffer).system);
+      d.provenance.buffer_sources.emplace_back(r.buffer, sys.source.empty() ? std::string("not given") : sys.source);
+    }
     for (const ScreenResult& r : d.screen->results) {
       if (static_cast<int>(d.drift.size()) >= request.drift_buffers) break;
       if (r.status != ScreenStatus::kOk && r.status != ScreenStatus::kNotAchievable) continue;
@@ -1276,6 +1282,13 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
       << fixed(d.request.profile_from_pH, 2) << " to " << fixed(d.request.profile_to_pH, 2) << " step "
       << fixed(d.request.profile_step_pH, 2) << ", water, HCl or NaOH</dd>\n";
   if (!p.command_line.empty()) out << "<dt>command</dt><dd><code>" << esc(p.command_line) << "</code></dd>\n";
+  if (!p.buffer_sources.empty()) {
+    out << "<dt>buffer data</dt><dd>";
+    for (std::size_t i = 0; i < p.buffer_sources.size(); ++i) {
+      out << (i ? "; " : "") << "<strong>" << esc(p.buffer_sources[i].first) << "</strong>: " << esc(p.buffer_sources[i].second);
+    }
+    out << "</dd>\n";
+  }
   out << "</dl>\n<div class=\"table-wrap\"><table class=\"inputs\">\n<caption>Input files</caption>\n<thead><tr><th "
          "scope=\"col\">role</th><th scope=\"col\">file</th><th scope=\"col\">bytes</th><th "
          "scope=\"col\">SHA-256</th></tr></thead>\n<tbody>\n";

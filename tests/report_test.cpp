@@ -400,6 +400,10 @@ TEST(Report, TraceabilityNamesVersionDateInputsAndDigests) {
   EXPECT_NE(text.find(digest), std::string::npos);
   EXPECT_NE(text.find(sha256_hex(builtin_library_xml())), std::string::npos);
   EXPECT_NE(text.find(builtin_library().version), std::string::npos);
+  // The data source of the leading buffer's system, as the library gives it.
+  const Library lib = builtin_library();
+  const std::string& lead = fixture().data.screen->results[0].buffer;
+  EXPECT_NE(text.find(lib.system(lib.buffer(lead).system).source), std::string::npos) << lead;
   // References named in the methods.
   const std::string methods = text_of(html.select_node("//section[@id='methods']").node());
   for (const char* ref : {"Henderson", "Davies CW (1962)", "Goldberg RN, Kishore N, Lennen RM (2002)", "van Slyke DD (1922)",

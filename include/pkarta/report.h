@@ -80,6 +80,9 @@ struct Provenance {
   std::vector<InputFile> inputs;          ///< the built-in library is listed with its digest too
   std::string date_utc;                   ///< "2026-12-01" (from SOURCE_DATE_EPOCH when set)
   std::string command_line;               ///< the options that made the report, in order
+  /// Data sources of the buffer systems the report's results rest on (screened buffers that
+  /// were computed), as the library names them: (buffer id, source).
+  std::vector<std::pair<std::string, std::string>> buffer_sources;
 };
 
 /// pH after the dose against the buffer's concentration, for the drift chart.
