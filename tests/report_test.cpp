@@ -494,13 +494,15 @@ TEST(ReportCli, WritesTheReportAndRefusesBadOutputs) {
   ASSERT_EQ(r.code, 0) << r.err;
   EXPECT_TRUE(fs::exists(dir + "/acid.html"));
   EXPECT_TRUE(fs::exists(dir + "/acid/profile.csv"));
-  // The input file as output: exit 2, a clear message, the input unchanged.
-  fs::copy_file(source("compounds/demo-acid.xml"), dir + "/acid.xml");
-  const std::string before = slurp(dir + "/acid.xml");
-  r = shell(bin + " report --compound " + dir + "/acid.xml -o " + dir + "/acid.xml");
+  // The input file as output: exit 2, a clear message, the input unchanged (the compound file
+  // is named .html here, so only the input check can refuse it).
+  fs::copy_file(source("compounds/demo-acid.xml"), dir + "/acid-input.html");
+  const std::string before = slurp(dir + "/acid-input.html");
+  r = shell(bin + " report --compound " + dir + "/acid-input.html -o " + dir + "/acid-input.html");
   EXPECT_EQ(r.code, 2);
   EXPECT_NE(r.err.find("refusing to overwrite the input file"), std::string::npos) << r.err;
-  EXPECT_EQ(slurp(dir + "/acid.xml"), before);
+  EXPECT_EQ(slurp(dir + "/acid-input.html"), before);
+  EXPECT_FALSE(fs::exists(dir + "/acid-input"));
   // No output given, an unknown form, a missing folder.
   r = shell(bin + " report --compound compounds/demo-acid.xml");
   EXPECT_EQ(r.code, 2);
@@ -511,6 +513,10 @@ TEST(ReportCli, WritesTheReportAndRefusesBadOutputs) {
   r = shell(bin + " report --compound compounds/demo-acid.xml --dose 1mg/mL --target-ph 7 --into seawater -o " + dir + "/x.html");
   EXPECT_EQ(r.code, 2);
   EXPECT_NE(r.err.find("--into: unknown medium \"seawater\""), std::string::npos) << r.err;
+  r = shell(bin + " report --compound compounds/demo-acid.xml -o " + dir + "/report");
+  EXPECT_EQ(r.code, 2);
+  EXPECT_NE(r.err.find("ending in .html"), std::string::npos) << r.err;
+  EXPECT_FALSE(fs::exists(dir + "/report"));
   r = shell(bin + " report --compound compounds/demo-acid.xml -o " + dir + "/no/such/dir/x.html");
   EXPECT_NE(r.code, 0);
   EXPECT_NE(r.err.find("cannot"), std::string::npos) << r.err;

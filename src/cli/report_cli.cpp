@@ -37,6 +37,14 @@ std::string report_arguments(const ReportOptions& r) {
 
 std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions& common, const Library& library,
                                      const std::string& command_line, ReportData* data_out) {
+  const auto ends_with = [&](const std::string& suffix) {
+    return r.output.size() > suffix.size() && r.output.compare(r.output.size() - suffix.size(), suffix.size(), suffix) == 0;
+  };
+  if (!ends_with(".html") && !ends_with(".htm")) {
+    throw InputError(SourceLocation{"--output", 0, 0},
+                     "expected an HTML file name ending in .html (its tables go to the folder of the same name), got \"" +
+                         r.output + "\"");
+  }
   ReportRequest req;
   req.temperature_C = option_temperature("--temp", r.temperature);
   req.activity = r.ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
