@@ -141,11 +141,12 @@ void EquilibriumModel::set_ionic_strength(double I) {
   update_effective_constants();
 }
 
-double EquilibriumModel::gamma(int z) const {
-  if (z < -kGammaOffset || z > kGammaOffset) {
-    return ideal_ ? 1.0 : std::pow(10.0, -a_davies_ * z * z * davies_bracket(ionic_strength_));
+double EquilibriumModel::gamma(int charge) const {
+  if (charge < -kGammaOffset || charge > kGammaOffset) {
+    return ideal_ ? 1.0
+                  : std::pow(10.0, -a_davies_ * charge * charge * davies_bracket(ionic_strength_));
   }
-  return gamma_[z + kGammaOffset];
+  return gamma_[charge + kGammaOffset];
 }
 
 void EquilibriumModel::update_effective_constants() {
@@ -237,8 +238,12 @@ EquilibriumModel::Partition EquilibriumModel::partition(const double* alpha, dou
     const double c = dose * x - kq;
     if (!(c > 0)) continue;
     const double disc = (dose - x) * (dose - x) + 4.0 * kq;
-    const double precip = 2.0 * c / ((dose + x) + std::sqrt(disc));  // smaller root, stable form
-    const double d = dose - precip;
+    const double sq = std::sqrt(disc);
+    const double precip = 2.0 * c / ((dose + x) + sq);  // smaller root, stable form
+    // The dissolved drug solves d^2 + (x - dose) d - kq = 0; its stable form keeps it positive
+    // where nearly all the dose precipitates (dose - precip would cancel to below zero).
+    const double b = x - dose;
+    const double d = b > 0 ? 2.0 * kq / (b + sq) : 0.5 * (sq - b);
     if (free_possible && an * d > s0_ * (1.0 + kEps)) continue;
     if (!salts_ok(d, static_cast<int>(k), s.ion, x - precip)) continue;
     p.phase = 2;
@@ -483,6 +488,12 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
       r.message = "no equilibrium with the solids the model covers (the free form and at most one "
                   "salt): more than one salt of '" + mixture.drug->compound.id +
                   "' would precipitate in this mixture";
+    } else if (mixture.activity == ActivityModel::kDavies && s.ionic_strength_mol_per_L > 0.5) {
+      r.termination = Termination::kNumericalFailure;
+      r.message = "the activity corrections diverge: at ionic strength " +
+                  std::to_string(s.ionic_strength_mol_per_L).substr(0, 5) +
+                  " mol/L the Davies equation is far outside its range (0.5 mol/L); the mixture "
+                  "is too concentrated for the model";
     }
     return r;
   }
@@ -525,7 +536,8 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
   }
   for (std::size_t t = 0; t < mixture.ions.size(); ++t) {
     const IonAmount& i = mixture.ions[t];
-    const double c = i.conc_mol_per_L - (static_cast<int>(t) == precip_ion ? p.salt_solid : 0.0);
+    // Clamped: a counterion precipitated to exhaustion may round to just below zero.
+    const double c = std::max(0.0, i.conc_mol_per_L - (static_cast<int>(t) == precip_ion ? p.salt_solid : 0.0));
     r.species.push_back({i.id, "", i.charge, c, model.gamma(i.charge)});
   }
   const double h = std::pow(10.0, -s.pH);
@@ -571,9 +583,17 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     Mixture all = mixture;
     all.drug->allow_solids = false;
     EquilibriumModel m2(all);
-    const StateSummary s2 = p.phase == 0 ? s : m2.solve(options, s.pH);
-    if (p.phase != 0) m2.set_ionic_strength(s2.ionic_strength_mol_per_L);
-    EquilibriumModel& mm = p.phase == 0 ? model : m2;
+    StateSummary s2 = p.phase == 0 ? s : m2.solve(options, s.pH);
+    // When the fully dissolved state itself cannot be solved (e.g. its activity corrections
+    // diverge), estimate the ratio at the equilibrium state instead, and say so.
+    const bool dissolved_state = p.phase != 0 && s2.converged;
+    if (p.phase != 0 && !s2.converged) {
+      s2 = s;
+      r.warnings.push_back("the saturation ratio is estimated at the equilibrium pH: the state "
+                           "with the whole dose dissolved could not be solved");
+    }
+    if (dissolved_state) m2.set_ionic_strength(s2.ionic_strength_mol_per_L);
+    EquilibriumModel& mm = dissolved_state ? m2 : model;
     mm.fractions(-1, s2.pH, alpha);
     double sat = 0.0;
     const double s0 = d.compound.s0_at(mixture.temperature_C);

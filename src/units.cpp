@@ -1,5 +1,6 @@
 #include "pkarta/units.h"
 
+#include <cctype>
 #include <charconv>
 #include <cmath>
 
@@ -9,6 +10,8 @@
 namespace pkarta {
 
 namespace {
+constexpr double kMaxAmountValue = 1e9;
+
 std::string_view trim(std::string_view s) {
   while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
   while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
@@ -54,6 +57,10 @@ Amount parse_amount(std::string_view text) {
   Amount a;
   a.value = parse_number(num, "amount");
   if (a.value < 0) throw InputError("amount \"" + std::string(text) + "\" is negative");
+  // Beyond 1e9 in any accepted unit no amount is physical, and mol/L could overflow.
+  if (a.value > kMaxAmountValue) {
+    throw InputError("amount \"" + std::string(text) + "\" is too large (at most 1e9 in any unit)");
+  }
   if (unit.empty()) {
     throw InputError("amount \"" + std::string(text) +
                      "\" has no unit; expected one of M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v");

@@ -3,6 +3,7 @@
 #include <pugixml.hpp>
 
 #include <algorithm>
+#include <cctype>
 #include <cerrno>
 #include <cmath>
 #include <cstring>
@@ -199,6 +200,23 @@ void check_ascending(Reader& r, const std::vector<Pka>& pkas, const std::vector<
   }
 }
 
+// The 'unit' attribute alone (the value is in 'value'): parsed as the amount "1 UNIT", so the
+// unit text must not start like a number ("e3M" or "0mM" would silently read as M or mM).
+Amount unit_attribute(Reader& r, const pugi::xml_node& n) {
+  const std::string unit = r.required(n, "unit");
+  const std::size_t first = unit.find_first_not_of(" \t");
+  const char c = first == std::string::npos ? ' ' : unit[first];
+  if (std::isdigit(static_cast<unsigned char>(c)) || c == '.' || c == '+' || c == '-' || c == 'e' ||
+      c == 'E') {
+    r.fail(n, "attribute 'unit' is \"" + unit + "\", expected a unit alone such as mg/mL, ug/mL or mM");
+  }
+  try {
+    return parse_amount("1" + unit);
+  } catch (const InputError& e) {
+    r.fail(n, "attribute 'unit': " + e.message());
+  }
+}
+
 double formula_mass(Reader& r, const pugi::xml_node& n, const std::string& formula) {
   try {
     return molar_mass_g_per_mol(formula);
@@ -366,7 +384,13 @@ Library parse_library(const std::string& text, const std::string& name, const Li
         const std::string id = r.required(c, "reagent");
         if (!has_reagent(id)) r.fail(c, "unknown reagent '" + id + "'");
         const Amount a = r.amount(c, "amount");
-        m.reagents_mol_per_L.emplace_back(id, a.to_mol_per_L(reagent_mass(id), 25.0));
+        const double conc = a.to_mol_per_L(reagent_mass(id), 25.0);
+        if (!(conc <= 10.0)) {  // mol/L: the range the model covers
+          std::ostringstream ss;
+          ss << "attribute 'amount' of <add> is " << conc << " mol/L, beyond the 10 mol/L the model covers";
+          r.fail(c, ss.str());
+        }
+        m.reagents_mol_per_L.emplace_back(id, conc);
       }
       lib.media[m.id] = m;
     } else if (tag != "ion" && tag != "system" && tag != "reagent") {
@@ -418,12 +442,7 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
       r.check_attributes(n, {"value", "unit", "temperature", "dH", "log-sd", "source"});
       const double v = r.number(n, "value");
       if (!(v > 0)) r.fail(n, "intrinsic solubility must be > 0, got " + r.required(n, "value"));
-      Amount a;
-      try {
-        a = parse_amount("1" + r.required(n, "unit"));
-      } catch (const InputError& e) {
-        r.fail(n, "attribute 'unit': " + e.message());
-      }
+      Amount a = unit_attribute(r, n);
       a.value = v;
       c.s0_ref_temperature_C = r.temperature(n, "temperature", 25.0);
       c.s0_mol_per_L = a.to_mol_per_L(c.molar_mass_g_per_mol, c.s0_ref_temperature_C);
@@ -496,12 +515,7 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         m.pH = r.in_range(p, "pH", r.number(p, "pH"), -1.0, 15.0);
         const double v = r.number(p, "value");
         if (!(v > 0)) r.fail(p, "measured solubility must be > 0, got " + r.required(p, "value"));
-        Amount a;
-        try {
-          a = parse_amount("1" + r.required(p, "unit"));
-        } catch (const InputError& e) {
-          r.fail(p, "attribute 'unit': " + e.message());
-        }
+        Amount a = unit_attribute(r, p);
         a.value = v;
         m.temperature_C = r.temperature(p, "temperature", 25.0);
         m.solubility_mol_per_L = a.to_mol_per_L(c.molar_mass_g_per_mol, m.temperature_C);

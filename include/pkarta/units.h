@@ -23,7 +23,7 @@ struct Amount {
 };
 
 /// Parses "25mM", "0.025 M", "0.025mol/kg", "10mg/mL", "1.5g/L", "5ug/mL", "0.9%w/v".
-/// The number is read locale-independently and must be finite and >= 0.
+/// The number is read locale-independently and must be finite, >= 0 and at most 1e9.
 /// Throws InputError (without location; callers add it) naming the problem.
 Amount parse_amount(std::string_view text);
 

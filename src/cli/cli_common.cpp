@@ -3,6 +3,7 @@
 #include <iostream>
 
 #include "pkarta/error.h"
+#include "pkarta/format.h"
 #include "pkarta/mixture_builder.h"
 #include "pkarta/xml_input.h"
 
@@ -100,6 +101,20 @@ void add_formulation_options(po::options_description& desc, FormulationOptions& 
       ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)");
 }
 
+namespace {
+// The model covers totals up to 10 mol/L (the pH bracket of the solver); more of one
+// reagent than that is a typing error, not a solution.
+constexpr double kMaxConcMolPerL = 10.0;
+
+void check_concentration(const std::string& option, const std::string& what, const std::string& text,
+                         double conc_mol_per_L) {
+  if (!(conc_mol_per_L <= kMaxConcMolPerL)) {
+    throw InputError(SourceLocation{option, 0, 0}, what + " at " + text + " is " + sig(conc_mol_per_L, 3) +
+                     " mol/L, beyond the 10 mol/L the model covers");
+  }
+}
+}  // namespace
+
 Mixture build_formulation(const FormulationOptions& f, const Library& library,
                           std::vector<std::string>* inputs, Compound* compound_out) {
   Mixture m;
@@ -119,6 +134,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
     const Amount amount = option_amount("--add", amount_text);
     try {
       const double c = reagent_conc_mol_per_L(library, id, amount, m.temperature_C);
+      check_concentration("--add", id, amount_text, c);
       add_reagent(m, library, id, c);
     } catch (const InputError& e) {
       throw InputError(SourceLocation{"--add", 0, 0}, e.message());
@@ -138,6 +154,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
                                       e.where().line, e.where().column},
                        e.message());
     }
+    check_concentration("--dose", "the dose of " + c.id, f.dose, conc);
     if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + f.dose);
     if (compound_out) *compound_out = c;
   } else if (!f.dose.empty()) {
