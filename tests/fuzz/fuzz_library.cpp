@@ -1,0 +1,21 @@
+// Fuzz target: the library XML loader (parse_library), alone and over the built-in library.
+// The checks are in fuzz_checks.h; a failed check aborts, so libFuzzer
+// saves the input; keep it under tests/fuzz/regressions/library/ (replayed by fuzz_regressions_test).
+#include <cstddef>
+#include <cstdint>
+#include <cstdio>
+#include <cstdlib>
+#include <string_view>
+
+#include "fuzz_checks.h"
+
+extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
+  static const pkarta::Library builtin = pkarta::builtin_library();
+  const std::string_view text(reinterpret_cast<const char*>(data), size);
+  const std::string problem = pkarta::fuzz::check_library(text, builtin);
+  if (!problem.empty()) {
+    std::fprintf(stderr, "fuzz_library: %s\n", problem.c_str());
+    std::abort();
+  }
+  return 0;
+}
