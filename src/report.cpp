@@ -910,6 +910,10 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   } else {
     key(out, "", "pHmax", "none", "No salt limits the solubility in water with HCl or NaOH over the pH range shown.", "");
   }
+  if (!d.screen) {
+    key(out, "", "Recommended buffer", "not screened",
+        "Give a dose (--dose) and a target pH (--target-ph) to screen the buffers of the library.", "");
+  }
   if (d.screen) {
     const ScreenReport& sr = *d.screen;
     const ScreenResult* lead = leading_buffer(d);

@@ -471,6 +471,35 @@ TEST(Report, MarkupInTheCompoundIsEscapedEverywhere) {
   EXPECT_EQ(q["id"], evil_id);
 }
 
+TEST(Report, WithoutDoseOrTargetOnlyTheirSectionsAreLeftOut) {
+  const Library lib = builtin_library();
+  const std::string file = source("compounds/demo-ampholyte.xml");
+  const Compound c = load_compound_file(file, lib, nullptr);
+  ReportRequest req;
+  req.uncertainty_samples = 0;
+  const ReportData d = analyse_report(c, lib, req, file, {}, "");
+  EXPECT_FALSE(d.dose_in_water || d.screen || d.recipe || d.dilution || d.classification || d.uncertainty);
+  std::ostringstream out;
+  write_report_html(d, "", out);
+  pugi::xml_document doc;
+  const pugi::xml_node html = parse_html(out.str(), doc);
+  std::vector<std::string> ids;
+  for (const auto& n : html.select_nodes("//section")) ids.push_back(n.node().attribute("id").value());
+  EXPECT_EQ(ids, (std::vector<std::string>{"summary", "compound", "profile", "species", "fit", "methods", "traceability"}));
+  // No CSV links without a folder; the summary says what to give for the missing parts.
+  EXPECT_EQ(html.select_nodes("//a[@class='csv-link']").size(), 0u);
+  std::map<std::string, std::string> keys;
+  for (const auto& k : html.select_nodes("//div[@class='key-numbers']/div")) {
+    keys[text_of(k.node().first_child())] = text_of(k.node().first_child().next_sibling());
+  }
+  EXPECT_EQ(keys["Dose"], "not given");
+  EXPECT_EQ(keys["Recommended buffer"], "not screened");
+  // The profile chart has no dose line without a dose.
+  for (const auto& n : html.select_nodes("//*[@id='chart-profile']//g[@class='reference-line']")) {
+    EXPECT_EQ(std::string(n.node().attribute("data-label").value()).find("dose"), std::string::npos);
+  }
+}
+
 TEST(Report, WritesCsvFolderAndRefusesToOverwriteInputs) {
   const std::string dir = fresh_dir("files");
   const std::string html = dir + "/r.html";
