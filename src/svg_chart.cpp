@@ -481,10 +481,38 @@ void write_svg(const Chart& c, std::ostream& out) {
         rows_spans[row].push_back({a, b});
         ty = y1 + 15.0 + 17.0 * static_cast<double>(row);
       } else {
-        tx = x1 - 6.0;
-        ty = p - 6.0;
-        anchor = "end";
-        if (ty < y1 + 12.0) ty = p + 16.0;
+        // Of four places (right or left end, above or below the line), take the one whose box
+        // covers the fewest data points, so the label hides as little of the data as it can.
+        struct Place {
+          double x, y;
+          const char* anchor;
+        };
+        const Place places[4] = {{x1 - 6.0, p - 6.0, "end"}, {x0 + 6.0, p - 6.0, "start"},
+                                 {x1 - 6.0, p + 16.0, "end"}, {x0 + 6.0, p + 16.0, "start"}};
+        int best = -1;
+        std::size_t best_count = 0;
+        for (int k = 0; k < 4; ++k) {
+          const Place& pl = places[k];
+          if (pl.y - 13.0 < y1 || pl.y + 3.0 > y0) continue;
+          const double bx0 = std::string(pl.anchor) == "end" ? pl.x - w : pl.x, bx1 = bx0 + w;
+          std::size_t count = 0;
+          for (const Series& sr : c.series) {
+            const std::size_t n = std::min(sr.x.size(), sr.y.size());
+            for (std::size_t q = 0; q < n; ++q) {
+              if (!mx.valid(sr.x[q]) || !my.valid(sr.y[q])) continue;
+              const double qx = mx(sr.x[q]), qy = my(sr.y[q]);
+              count += qx >= bx0 - 4.0 && qx <= bx1 + 4.0 && qy >= pl.y - 15.0 && qy <= pl.y + 5.0;
+            }
+          }
+          if (best < 0 || count < best_count) {
+            best = k;
+            best_count = count;
+          }
+        }
+        if (best < 0) best = 0;
+        tx = places[best].x;
+        ty = places[best].y;
+        anchor = places[best].anchor;
       }
       out << "<text x=\"" << num(tx) << "\" y=\"" << num(ty) << "\" text-anchor=\"" << anchor << "\" fill=\""
           << colour << "\"" << (l.emphasised ? " font-weight=\"bold\"" : "")
