@@ -146,6 +146,36 @@ TEST(SvgChart, EscapesMarkupEverywhere) {
   EXPECT_EQ(count(svg, "//script"), 0u);
 }
 
+TEST(SvgChart, HorizontalLineLabelAvoidsTheData) {
+  // Points just above the line at the right end: the label moves away from them.
+  Chart c;
+  c.id = "place";
+  c.x = {"x", 0, 10};
+  c.y = {"y", 0, 10};
+  Series s{"data", {}, {}, SeriesKind::kMarkers};
+  for (double x = 5.0; x <= 10.0; x += 0.25) {
+    s.x.push_back(x);
+    s.y.push_back(5.3);
+  }
+  c.series.push_back(s);
+  c.lines.push_back(RefLine{RefLine::Orientation::kHorizontal, 5.0, "limit"});
+  pugi::xml_document doc;
+  const pugi::xml_node svg = parse(render_svg(c), doc);
+  const pugi::xml_node text = svg.select_node("//g[@class='reference-line']/text").node();
+  ASSERT_TRUE(text);
+  // The plot spans x 78..736 px: a label at the left end starts near 84 px.
+  EXPECT_STREQ(text.attribute("text-anchor").value(), "start");
+  EXPECT_LT(text.attribute("x").as_double(), 100.0);
+  // Without data the label sits at the right end, above the line.
+  c.series.clear();
+  pugi::xml_document doc2;
+  const pugi::xml_node svg2 = parse(render_svg(c), doc2);
+  const pugi::xml_node text2 = svg2.select_node("//g[@class='reference-line']/text").node();
+  EXPECT_STREQ(text2.attribute("text-anchor").value(), "end");
+  EXPECT_LT(text2.attribute("y").as_double(),
+            svg2.select_node("//g[@class='reference-line']/line").node().attribute("y1").as_double());
+}
+
 TEST(SvgChart, SameChartSameBytes) {
   EXPECT_EQ(render_svg(sample_chart()), render_svg(sample_chart()));
 }
