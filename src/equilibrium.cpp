@@ -410,15 +410,25 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
     // Fixed point I = I(pH(I)), accelerated by the secant method on g(I) = I(pH(I)) - I.
     double i_prev = ionic_strength_, g_prev = ev.ionic_strength - ionic_strength_;
     double i_cur = ev.ionic_strength;
+    // Bracket of the root of g: g(i_lo) > 0 > g(i_hi). Where I(pH(I)) falls steeply (many
+    // highly charged species) the fixed point oscillates; steps then stay in the bracket and,
+    // after 100 steps, bisect it.
+    double i_lo = 0.0, i_hi = std::numeric_limits<double>::infinity();
     converged = false;
     for (int k = 0; k < options.max_ionic_strength_iterations; ++k) {
       set_ionic_strength(i_cur);
       x = inner(x);
-      if (!ok) break;
-      if (!std::isfinite(ev.ionic_strength)) {  // activity coefficients overflow
+      if (!std::isfinite(ev.ionic_strength) || !std::isfinite(ev.charge)) {
+        // The activity coefficients overflow at this I: step back towards i_lo.
         diverged = true;
-        break;
+        i_hi = std::min(i_hi, i_cur);
+        if (!(i_hi - i_lo > 1e-12 * i_hi)) break;
+        i_cur = 0.5 * (i_lo + i_hi);
+        x = pH_guess;
+        continue;
       }
+      diverged = false;
+      if (!ok) break;
       const double g = ev.ionic_strength - i_cur;
       // Where solids pin the pH (free form and salt together), I(pH) is as uncertain as the
       // charge balance itself: accept a change of I within a few times the charge residual.
@@ -429,9 +439,15 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
       double i_next = ev.ionic_strength;
       if (k < 50 && g != g_prev) {
         const double sec = i_cur - g * (i_cur - i_prev) / (g - g_prev);
-        if (sec > 0 && std::fabs(sec - i_cur) <= 2.0 * std::fabs(g)) i_next = sec;
+        // Where I(pH(I)) rises almost as fast as I the plain step is tiny and the secant step
+        // many times longer; it is still bounded, and kept in the bracket below.
+        if (sec > 0 && std::fabs(sec - i_cur) <= 1000.0 * std::fabs(g)) i_next = sec;
       } else if (k >= 50) {
         i_next = 0.5 * (i_cur + ev.ionic_strength);
+      }
+      if (g > 0) i_lo = std::max(i_lo, i_cur); else i_hi = std::min(i_hi, i_cur);
+      if (std::isfinite(i_hi) && (k >= 100 || !(i_next > i_lo && i_next < i_hi))) {
+        i_next = 0.5 * (i_lo + i_hi);
       }
       i_prev = i_cur;
       g_prev = g;

@@ -94,7 +94,7 @@ double Amount::to_mol_per_L(double molar_mass_g_per_mol, double temperature_C) c
     case AmountUnit::kMillimolar: return value * 1e-3;
     case AmountUnit::kMicromolar: return value * 1e-6;
     case AmountUnit::kMolal: return value * water_density_kg_per_L(temperature_C);
-    case AmountUnit::kMgPerMl: return value / molar_mass_g_per_mol;          // mg/mL = g/L
+    case AmountUnit::kMgPerMl:  // mg/mL = g/L
     case AmountUnit::kGPerL: return value / molar_mass_g_per_mol;
     case AmountUnit::kUgPerMl: return value * 1e-3 / molar_mass_g_per_mol;
     case AmountUnit::kPercentWv: return value * 10.0 / molar_mass_g_per_mol;  // g/100 mL
