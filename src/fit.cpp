@@ -13,7 +13,6 @@
 #include <limits>
 #include <cstring>
 #include <map>
-#include <regex>
 #include <sstream>
 
 #include "pkarta/format.h"
@@ -676,6 +675,11 @@ FitResult fit_solubility(const Compound& compound, const Library& library,
   }
   r.parameters = parameters;
   apply(r.fitted, parameters, x);
+  for (const FitParameter& p : parameters) {
+    if (p.kind != FitParameter::Kind::kLog10Ksp) continue;
+    r.fitted.salts[p.index].solubility_in_water_mol_per_L.reset();  // now given by its Ksp
+    r.fitted.salts[p.index].solubility_in_water_text.clear();
+  }
 
   // What the data do not determine.
   if (r.degrees_of_freedom == 0) {
@@ -789,16 +793,45 @@ TagSpan tag_span(const std::string& text, const pugi::xml_node& n, const std::st
   throw InputError(SourceLocation{file, 0, 0}, std::string("unterminated <") + n.name() + "> tag");
 }
 
+// One attribute of a start tag's text: [space, value_end + 1) covers it with its leading
+// whitespace; the value lies in [value_begin, value_end).
+struct TagAttribute {
+  std::string name;
+  std::size_t space = 0;
+  std::size_t value_begin = 0;
+  std::size_t value_end = 0;
+};
+
+std::vector<TagAttribute> tag_attributes(const std::string& tag) {
+  std::vector<TagAttribute> out;
+  std::size_t i = 1;  // past '<'
+  while (i < tag.size() && !std::isspace(static_cast<unsigned char>(tag[i])) && tag[i] != '/' && tag[i] != '>') ++i;
+  while (i < tag.size()) {
+    const std::size_t space = i;
+    while (i < tag.size() && std::isspace(static_cast<unsigned char>(tag[i]))) ++i;
+    if (i >= tag.size() || tag[i] == '/' || tag[i] == '>') break;
+    TagAttribute a;
+    a.space = space;
+    while (i < tag.size() && tag[i] != '=' && !std::isspace(static_cast<unsigned char>(tag[i]))) a.name += tag[i++];
+    while (i < tag.size() && (tag[i] == '=' || std::isspace(static_cast<unsigned char>(tag[i])))) ++i;
+    if (i >= tag.size() || (tag[i] != '"' && tag[i] != '\'')) break;  // not well-formed: pugixml would have refused
+    const char quote = tag[i++];
+    a.value_begin = i;
+    while (i < tag.size() && tag[i] != quote) ++i;
+    a.value_end = i;
+    ++i;
+    out.push_back(a);
+  }
+  return out;
+}
+
 // Sets (or adds) attribute `name` in a start tag's text, keeping its quotes and the layout.
 void set_tag_attribute(std::string& tag, const std::string& name, const std::string& value) {
-  const std::regex re("(\\s" + std::regex_replace(name, std::regex("-"), "\\-") +
-                      "\\s*=\\s*)(\"[^\"]*\"|'[^']*')");
-  std::smatch m;
-  if (std::regex_search(tag, m, re)) {
-    const char q = m.str(2)[0];
-    tag.replace(static_cast<std::size_t>(m.position(2)), static_cast<std::size_t>(m.length(2)),
-                std::string(1, q) + value + q);
-    return;
+  for (const TagAttribute& a : tag_attributes(tag)) {
+    if (a.name == name) {
+      tag.replace(a.value_begin, a.value_end - a.value_begin, value);
+      return;
+    }
   }
   std::size_t at = tag.size() - 1;  // before '>'
   if (at > 0 && tag[at - 1] == '/') --at;
@@ -807,9 +840,12 @@ void set_tag_attribute(std::string& tag, const std::string& name, const std::str
 }
 
 void remove_tag_attribute(std::string& tag, const std::string& name) {
-  const std::regex re("\\s+" + std::regex_replace(name, std::regex("-"), "\\-") +
-                      "\\s*=\\s*(\"[^\"]*\"|'[^']*')");
-  tag = std::regex_replace(tag, re, "", std::regex_constants::format_first_only);
+  for (const TagAttribute& a : tag_attributes(tag)) {
+    if (a.name == name) {
+      tag.erase(a.space, a.value_end + 1 - a.space);
+      return;
+    }
+  }
 }
 
 }  // namespace

@@ -485,6 +485,7 @@ TEST(FitCli, JsonKeysAndFittedFileKeepsTheRest) {
   ASSERT_EQ(fitted.salts.size(), 1u);
   EXPECT_NEAR(std::log10(*fitted.salts[0].ksp), param(direct, "log10_Ksp:sodium").estimate, 1e-3);
   EXPECT_FALSE(fitted.salts[0].solubility_in_water_mol_per_L.has_value());
+  EXPECT_FALSE(direct.fitted.salts[0].solubility_in_water_mol_per_L.has_value());
   // Every line of the original outside the edited elements is kept byte for byte.
   std::istringstream orig(slurp(std::string(PKARTA_SOURCE_DIR) + "/compounds/demo-acid.xml"));
   for (std::string line; std::getline(orig, line);) {
