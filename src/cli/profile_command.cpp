@@ -4,7 +4,13 @@
 
 #include "cli_common.h"
 #include "commands.h"
+#include <cmath>
+
+#include <nlohmann/json.hpp>
+
 #include "pkarta/profile.h"
+#include "pkarta/uncertainty.h"
+#include "progress_bar.h"
 
 namespace pkarta::cli {
 
@@ -37,6 +43,7 @@ int run_profile(const Args& args) {
     CommonOptions common;
     FormulationOptions f;
     std::string from = "1", to = "13", step = "0.05", points, acid = "HCl", base = "NaOH";
+    std::string uncertainty = "0", seed = "1";
     po::options_description desc("profile options");
     desc.add_options()
         ("compound", po::value(&f.compound_file), "compound XML file (required)")
@@ -52,7 +59,10 @@ int run_profile(const Args& args) {
         ("base", po::value(&base)->default_value("NaOH"),
          "strong base holding the high pH (NaOH, KOH); its cation can form a salt")
         ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C")
-        ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)");
+        ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)")
+        ("uncertainty", po::value(&uncertainty)->default_value("0"),
+         "Monte Carlo samples over the pKa sd and S0 log-sd of the compound file: 5/50/95 % bands")
+        ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
     add_common_options(desc, common);
     const po::variables_map vm = parse(args, desc);
     if (common.help) {
@@ -122,13 +132,49 @@ int run_profile(const Args& args) {
     cond.activity = cond.medium.activity;
     const Compound c = load_compound(compound_file, lib);
 
+    const double samples_value = option_number("--uncertainty", uncertainty, 0, 1e6);
+    const int samples = static_cast<int>(samples_value);
+    if (samples != samples_value) {
+      throw InputError(SourceLocation{"--uncertainty", 0, 0}, "expected a whole number of samples");
+    }
+    const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
+
     const Profile p = compute_profile(c, lib, cond, grid, contents);
+    ProfileBands bands;
+    if (samples > 0) {
+      std::vector<double> ph;
+      for (const auto& pt : p.points) ph.push_back(pt.pH);
+      MonteCarloRun run;
+      run.progress = ProgressBar("uncertainty");
+      bands = profile_bands(c, lib, ph, cond, samples, static_cast<std::uint64_t>(seed_value), run);
+    }
     if (common.format == "json") {
-      write_profile_json(p, std::cout);
+      if (samples > 0) {
+        std::ostringstream raw;
+        write_profile_json(p, raw);
+        nlohmann::ordered_json j = nlohmann::ordered_json::parse(raw.str());
+        for (std::size_t i = 0; i < j["points"].size() && i < bands.pH.size(); ++i) {
+          j["points"][i]["solubility_p05_mol_per_L"] = std::pow(10.0, bands.p05_log10_mol_per_L[i]);
+          j["points"][i]["solubility_p50_mol_per_L"] = std::pow(10.0, bands.p50_log10_mol_per_L[i]);
+          j["points"][i]["solubility_p95_mol_per_L"] = std::pow(10.0, bands.p95_log10_mol_per_L[i]);
+        }
+        j["uncertainty"] = {{"samples", samples}, {"seed", static_cast<std::uint64_t>(seed_value)}};
+        std::cout << j.dump(2) << "\n";
+      } else {
+        write_profile_json(p, std::cout);
+      }
     } else if (common.format == "csv") {
       write_profile_csv(p, std::cout);
+      if (samples > 0) {
+        std::cout << "\r\n";
+        write_profile_bands_csv(bands, std::cout);
+      }
     } else {
       write_profile_text(p, std::cout, explicit_grid || vm.count("points") ? 0.0 : 0.5);
+      if (samples > 0) {
+        std::cout << "\n";
+        write_profile_bands_text(bands, std::cout);
+      }
     }
     if (common.format != "text") {
       for (const std::string& w : p.warnings) std::cerr << "pkarta: warning: " << w << "\n";

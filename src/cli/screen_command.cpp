@@ -11,7 +11,15 @@
 #include "commands.h"
 #include "pkarta/error.h"
 #include "pkarta/mixture_builder.h"
+#include "pkarta/format.h"
 #include "pkarta/screen.h"
+#include "pkarta/uncertainty.h"
+#include "progress_bar.h"
+
+#include <cmath>
+#include <sstream>
+
+#include <nlohmann/json.hpp>
 
 namespace pkarta::cli {
 
@@ -57,10 +65,10 @@ std::vector<std::string> compound_paths(const std::vector<std::string>& given) {
 
 // A progress bar on stderr, drawn only when stderr is a terminal and the work is expected to
 // take more than about a second.
-class ProgressBar {
+class BatchProgressBar {
  public:
-  ProgressBar() : enabled_(isatty(STDERR_FILENO) == 1), start_(std::chrono::steady_clock::now()) {}
-  ~ProgressBar() { finish(); }
+  BatchProgressBar() : enabled_(isatty(STDERR_FILENO) == 1), start_(std::chrono::steady_clock::now()) {}
+  ~BatchProgressBar() { finish(); }
   /// Clears the bar (before the results are written).
   void finish() {
     if (drawn_) std::cerr << "\r" << std::string(60, ' ') << "\r" << std::flush;
@@ -96,7 +104,7 @@ int run_screen(const Args& args) {
     CommonOptions common;
     std::vector<std::string> compounds;
     std::string dose, form = "free", target, tolerance = "0.1", buffers = "all", route = "any",
-                temp = "25", dose_range, threads = "0";
+                temp = "25", dose_range, threads = "0", uncertainty = "0", seed = "1";
     po::options_description desc("screen options");
     desc.add_options()
         ("compound", po::value(&compounds)->composing(),
@@ -109,7 +117,10 @@ int run_screen(const Args& args) {
         ("route", po::value(&route)->default_value("any"), "oral, parenteral, ophthalmic, topical or any")
         ("temp", po::value(&temp)->default_value("25"), "run temperature, °C")
         ("dose-range", po::value(&dose_range), "also report the worst pH for the dose +/- this (10% or 0.1)")
-        ("threads", po::value(&threads)->default_value("0"), "worker threads for a batch (0: all cores)");
+        ("threads", po::value(&threads)->default_value("0"), "worker threads for a batch (0: all cores)")
+        ("uncertainty", po::value(&uncertainty)->default_value("0"),
+         "Monte Carlo samples over the pKa sd and S0 log-sd: 5/50/95 % bands of min conc (one compound)")
+        ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
@@ -144,6 +155,12 @@ int run_screen(const Args& args) {
         throw InputError(SourceLocation{"--dose-range", 0, 0}, e.message());
       }
     }
+    const double samples_value = option_number("--uncertainty", uncertainty, 0, 1e6);
+    const int samples = static_cast<int>(samples_value);
+    if (samples != samples_value) {
+      throw InputError(SourceLocation{"--uncertainty", 0, 0}, "expected a whole number of samples");
+    }
+    const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
     BatchOptions batch;
     batch.threads = static_cast<int>(option_number("--threads", threads, 0, 1024));
 
@@ -181,15 +198,55 @@ int run_screen(const Args& args) {
       }
       jobs.push_back(std::move(job));
     }
+    if (samples > 0 && jobs.size() != 1) {
+      throw InputError(SourceLocation{"--uncertainty", 0, 0}, "bands are computed for one compound at a time");
+    }
 
-    ProgressBar bar;
+    BatchProgressBar bar;
     batch.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
     std::vector<ScreenReport> reports = screen_batch(lib, jobs, opt, batch);
     bar.finish();
 
-    if (common.format == "json") write_screen_json(reports, std::cout);
-    else if (common.format == "csv") write_screen_csv(reports, std::cout);
-    else write_screen_text(reports, std::cout);
+    if (samples == 0) {
+      if (common.format == "json") write_screen_json(reports, std::cout);
+      else if (common.format == "csv") write_screen_csv(reports, std::cout);
+      else write_screen_text(reports, std::cout);
+      return 0;
+    }
+    MonteCarloRun run;
+    run.progress = pkarta::cli::ProgressBar("uncertainty");
+    const ScreenBands bands =
+        screen_bands(lib, jobs.front(), opt, samples, static_cast<std::uint64_t>(seed_value), run);
+    auto finite_or_null = [](double v) { return std::isfinite(v) ? nlohmann::ordered_json(v) : nlohmann::ordered_json(); };
+    if (common.format == "json") {
+      std::ostringstream raw;
+      write_screen_json(reports, raw);
+      nlohmann::ordered_json j = nlohmann::ordered_json::parse(raw.str());
+      for (auto& r : j["results"]) {
+        for (const ScreenBand& b : bands.buffers) {
+          if (r["buffer"] != b.buffer) continue;
+          r["min_conc_p05_mol_per_L"] = finite_or_null(b.p05_mol_per_L);
+          r["min_conc_p50_mol_per_L"] = finite_or_null(b.p50_mol_per_L);
+          r["min_conc_p95_mol_per_L"] = finite_or_null(b.p95_mol_per_L);
+          r["ok_fraction"] = b.ok_fraction;
+        }
+      }
+      j["uncertainty"] = {{"samples", samples}, {"seed", static_cast<std::uint64_t>(seed_value)}};
+      std::cout << j.dump(2) << "\n";
+    } else if (common.format == "csv") {
+      write_screen_csv(reports, std::cout);
+      std::cout << "\r\n";
+      write_csv_row(std::cout, {"buffer", "min conc p05 (mol/L)", "min conc p50 (mol/L)", "min conc p95 (mol/L)",
+                                "ok fraction"});
+      for (const ScreenBand& b : bands.buffers) {
+        write_csv_row(std::cout, {b.buffer, sig(b.p05_mol_per_L, 6), sig(b.p50_mol_per_L, 6),
+                                  sig(b.p95_mol_per_L, 6), fixed(b.ok_fraction, 4)});
+      }
+    } else {
+      write_screen_text(reports, std::cout);
+      std::cout << "\n";
+      write_screen_bands_text(bands, std::cout);
+    }
     return 0;
   });
 }
