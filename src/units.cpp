@@ -26,6 +26,9 @@ double parse_number(std::string_view text, std::string_view what) {
   const char* first = t.data();
   const char* last = t.data() + t.size();
   auto [ptr, ec] = std::from_chars(first, last, v);
+  if (!t.empty() && ec == std::errc::result_out_of_range && ptr == last) {
+    throw InputError(std::string(what) + " is out of the range of numbers: \"" + std::string(text) + "\"");
+  }
   if (t.empty() || ec != std::errc() || ptr != last) {
     throw InputError(std::string(what) + " is not a number: \"" + std::string(text) + "\"");
   }

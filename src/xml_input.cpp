@@ -7,6 +7,7 @@
 #include <cerrno>
 #include <cmath>
 #include <cstring>
+#include <filesystem>
 #include <fstream>
 #include <set>
 #include <sstream>
@@ -23,6 +24,10 @@ extern const std::size_t kBuiltinLibraryXmlSize;
 }  // namespace detail
 
 std::string read_text_file(const std::string& path) {
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec)) {
+    throw InputError(SourceLocation{path, 0, 0}, "cannot read file: it is a folder");
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) {
     throw InputError(SourceLocation{path, 0, 0},

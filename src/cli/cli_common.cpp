@@ -24,7 +24,21 @@ po::variables_map parse(const std::vector<std::string>& args, const po::options_
   parser.options(desc).style(po::command_line_style::default_style &
                              ~po::command_line_style::allow_guessing);
   if (positional) parser.positional(*positional);
-  po::store(parser.run(), vm);
+  const po::parsed_options parsed = parser.run();
+  if (!positional) {
+    // Without a positional description Boost stores stray words nowhere: refuse them, naming
+    // the option before (a value with spaces, such as "25 mM", needs quotes).
+    std::string before;
+    for (const po::option& o : parsed.options) {
+      if (o.position_key >= 0 && !o.original_tokens.empty()) {
+        throw po::error("unexpected argument '" + o.original_tokens.front() + "'" +
+                        (before.empty() ? "" : " after '" + before + "'"));
+      }
+      before.clear();
+      for (const std::string& t : o.original_tokens) before += (before.empty() ? "" : " ") + t;
+    }
+  }
+  po::store(parsed, vm);
   po::notify(vm);
   return vm;
 }

@@ -1,4 +1,5 @@
 // pkarta: command-line entry point. Parses the command word and hands over.
+#include <cerrno>
 #include <cstring>
 #include <iostream>
 #include <string>
@@ -38,6 +39,20 @@ void usage(std::ostream& out) {
   out << "\nexit codes: 0 ok, 1 computed but not usable, 2 bad input\n";
 }
 
+// Output is checked once it is flushed: a full disk or a closed pipe must not pass for
+// success (e.g. `pkarta mix ... > /dev/full`).
+int finish(int code) {
+  errno = 0;
+  std::cout.flush();
+  if (!std::cout) {
+    const int e = errno;
+    pkarta::cli::error(std::string("cannot write the output to standard output") +
+                       (e ? std::string(": ") + std::strerror(e) : std::string()));
+    return code == pkarta::cli::kExitOk ? static_cast<int>(pkarta::cli::kExitRefused) : code;
+  }
+  return code;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -48,15 +63,15 @@ int main(int argc, char** argv) {
   const std::string cmd = argv[1];
   if (cmd == "--help" || cmd == "-h" || cmd == "help") {
     usage(std::cout);
-    return 0;
+    return finish(0);
   }
   if (cmd == "--version") {
     std::cout << "pkarta " << PKARTA_VERSION << "\n";
-    return 0;
+    return finish(0);
   }
   const pkarta::cli::Args args(argv + 2, argv + argc);
   for (const Command& c : kCommands) {
-    if (cmd == c.name) return c.run(args);
+    if (cmd == c.name) return finish(c.run(args));
   }
   pkarta::cli::error("unknown command '" + cmd + "' (see pkarta --help)");
   return pkarta::cli::kExitBadInput;
