@@ -640,6 +640,26 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
   if (r.drug && r.drug->solid != "none") {
     r.warnings.push_back("the dose does not dissolve completely: solid " + r.drug->solid + " remains");
   }
+  // Last guard of "never NaN or infinity in any output": far beyond the Davies range the
+  // coefficient of a highly charged species can overflow even where the balances converge.
+  bool finite = std::isfinite(r.osmolarity_mOsm_per_L);
+  for (const Species& sp : r.species) {
+    finite = finite && std::isfinite(sp.conc_mol_per_L) && std::isfinite(sp.activity_coefficient);
+  }
+  if (r.drug) {
+    finite = finite && std::isfinite(r.drug->saturation_ratio) && std::isfinite(r.drug->dissolved_mol_per_L);
+  }
+  if (!finite) {
+    Equilibrium refused;
+    refused.termination = Termination::kNumericalFailure;
+    refused.temperature_C = mixture.temperature_C;
+    refused.evaluations = r.evaluations;
+    refused.message = "the activity corrections diverge: at ionic strength " +
+                      std::to_string(r.ionic_strength_mol_per_L).substr(0, 5) +
+                      " mol/L the Davies equation is far outside its range (0.5 mol/L); the "
+                      "mixture is too concentrated for the model";
+    return refused;
+  }
   r.termination = Termination::kConverged;
   r.message = "converged";
   return r;
