@@ -468,7 +468,9 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
   for (int j = 0; j < nsp; ++j) prof.header.push_back("fraction " + c.system.species_label(j));
   for (const ProfilePoint& s : d.profile.points) {
     std::vector<std::string> r = {fixed(s.pH, 2), sig(s.solubility_mol_per_L, 4), sig(s.solubility_mol_per_L * mm, 4),
-                                  sig(s.ideal_solubility_mol_per_L, 4), s.limiting_solid, sig(s.ionic_strength_mol_per_L, 4)};
+                                  (s.ideal_solubility_mol_per_L >= kSolubilityCap_mol_per_L ? ">" : "") +
+                                      sig(s.ideal_solubility_mol_per_L, 4),
+                                  s.limiting_solid, sig(s.ionic_strength_mol_per_L, 4)};
     for (int j = 0; j < nsp; ++j) r.push_back(j < static_cast<int>(s.fractions.size()) ? fixed(s.fractions[j], 4) : "");
     prof.rows.push_back(std::move(r));
   }

@@ -1,5 +1,7 @@
 // The command-line front end: exit codes and messages for good and bad input.
 #include <gtest/gtest.h>
+
+#include "cli_run.h"
 #include <sys/wait.h>
 
 #include <cstdio>
@@ -10,44 +12,11 @@
 
 namespace {
 
-struct RunResult {
-  int code = -1;
-  std::string out;
-  std::string err;
-};
-
-std::string slurp(const std::string& path) {
-  std::ifstream in(path);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
-std::string temp_dir() {
-  static std::string dir = [] {
-    char tmpl[] = "/tmp/pkarta-cli-XXXXXX";
-    return std::string(mkdtemp(tmpl));
-  }();
-  return dir;
-}
-
-RunResult run(const std::string& args) {
-  const std::string out = temp_dir() + "/out.txt", err = temp_dir() + "/err.txt";
-  const std::string cmd = std::string("cd ") + PKARTA_SOURCE_DIR + " && " + PKARTA_BINARY + " " + args +
-                          " >" + out + " 2>" + err;
-  const int status = std::system(cmd.c_str());
-  RunResult r;
-  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  r.out = slurp(out);
-  r.err = slurp(err);
-  return r;
-}
-
-std::string write_file(const std::string& name, const std::string& text) {
-  const std::string path = temp_dir() + "/" + name;
-  std::ofstream(path) << text;
-  return path;
-}
+using pkarta_test::RunResult;
+using pkarta_test::run;
+using pkarta_test::temp_dir;
+using pkarta_test::write_file;
+using pkarta_test::slurp;
 
 TEST(Cli, HelpAndVersionSucceedOnStdout) {
   EXPECT_EQ(run("--help").code, 0);

@@ -3,6 +3,8 @@
 #include "pkarta/dilute.h"
 
 #include <gtest/gtest.h>
+
+#include "cli_run.h"
 #include <sys/wait.h>
 #include <unistd.h>
 
@@ -17,6 +19,12 @@
 
 namespace pkarta {
 namespace {
+
+using pkarta_test::RunResult;
+using pkarta_test::run;
+using pkarta_test::temp_dir;
+using pkarta_test::write_file;
+using pkarta_test::slurp;
 
 constexpr double kBalanceTolerance = 1e-10;  // DESIGN.md section 2: every returned state
 
@@ -223,35 +231,6 @@ TEST(Dilute, RatioBelowOneIsRejected) {
 }
 
 // ----- command line ------------------------------------------------------------------------
-
-struct RunResult {
-  int code = -1;
-  std::string out;
-  std::string err;
-};
-
-std::string slurp(const std::string& path) {
-  std::ifstream in(path);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
-RunResult run(const std::string& args) {
-  static const std::string dir = [] {
-    char tmpl[] = "/tmp/pkarta-dilute-XXXXXX";
-    return std::string(mkdtemp(tmpl));
-  }();
-  const std::string out = dir + "/out.txt", err = dir + "/err.txt";
-  const std::string cmd = std::string("cd ") + PKARTA_SOURCE_DIR + " && " + PKARTA_BINARY + " " + args +
-                          " >" + out + " 2>" + err;
-  const int status = std::system(cmd.c_str());
-  RunResult r;
-  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  r.out = slurp(out);
-  r.err = slurp(err);
-  return r;
-}
 
 TEST(DiluteCli, JsonKeysAndBadOptions) {
   RunResult r = run("dilute --compound compounds/demo-base.xml --dose 2mg/mL --form mesylate "

@@ -3,6 +3,8 @@
 #include "pkarta/recipe.h"
 
 #include <gtest/gtest.h>
+
+#include "cli_run.h"
 #include <sys/wait.h>
 
 #include <cmath>
@@ -21,6 +23,12 @@
 
 namespace pkarta {
 namespace {
+
+using pkarta_test::RunResult;
+using pkarta_test::run;
+using pkarta_test::temp_dir;
+using pkarta_test::write_file;
+using pkarta_test::slurp;
 
 // Debye-Hückel A at 25 °C, 0.5108 (check-values.md 3: Malmberg and Maryott 1956 permittivity
 // with the Kell density) and the Davies (1962) bracket, for the hand computations.
@@ -288,39 +296,6 @@ TEST_F(RecipeTest, BadRequestsNameTheField) {
 
 // ---------------------------------------------------------------------------------------------
 // The command line.
-
-struct RunResult {
-  int code = -1;
-  std::string out;
-  std::string err;
-};
-
-std::string slurp(const std::string& path) {
-  std::ifstream in(path);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
-std::string temp_dir() {
-  static std::string dir = [] {
-    char tmpl[] = "/tmp/pkarta-recipe-XXXXXX";
-    return std::string(mkdtemp(tmpl));
-  }();
-  return dir;
-}
-
-RunResult run(const std::string& args) {
-  const std::string out = temp_dir() + "/out.txt", err = temp_dir() + "/err.txt";
-  const std::string cmd = std::string("cd ") + PKARTA_SOURCE_DIR + " && " + PKARTA_BINARY + " " + args +
-                          " >" + out + " 2>" + err;
-  const int status = std::system(cmd.c_str());
-  RunResult r;
-  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  r.out = slurp(out);
-  r.err = slurp(err);
-  return r;
-}
 
 std::string g17(double v) {
   char buf[40];

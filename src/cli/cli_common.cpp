@@ -1,6 +1,7 @@
 #include "cli_common.h"
 
 #include <iostream>
+#include <sstream>
 
 #include "pkarta/error.h"
 #include "pkarta/format.h"
@@ -77,9 +78,9 @@ double option_number(const std::string& option, const std::string& text, double 
     throw InputError(SourceLocation{option, 0, 0}, e.message());
   }
   if (!(v >= lo && v <= hi)) {
-    throw InputError(SourceLocation{option, 0, 0},
-                     "value " + text + " is out of range, expected " + std::to_string(lo).substr(0, 6) +
-                         " to " + std::to_string(hi).substr(0, 6));
+    std::ostringstream ss;
+    ss << "value " << text << " is out of range, expected " << lo << " to " << hi;
+    throw InputError(SourceLocation{option, 0, 0}, ss.str());
   }
   return v;
 }
