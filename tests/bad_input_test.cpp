@@ -259,9 +259,18 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
     // One line of the table: kind | input | exit | message (first line, file paths shortened).
     message = message.substr(0, message.find('\n'));
     message = replace_all(message, temp_dir() + "/", "");
-    std::string shown = replace_all(c.args, "{F}", "FILE");
-    std::printf("[ bad input ] %s | `%s`%s | %d | %s\n", c.kind, shown.c_str(),
-                c.file ? " (FILE: see bad_input_test.cpp)" : "", code, message.c_str());
+    std::string shown = "`" + replace_all(c.args, "{F}", "FILE") + "`";
+    if (c.file) {
+      std::string text = replace_all(replace_all(c.file, "\n", " "), "<compound id='x' name='x' molar-mass='300'>", "<compound ...>");
+      text = replace_all(text, " <pka value='8' type='base'/>  <intrinsic-solubility value='1' unit='ug/mL'/> ", " (base, S0) ");
+      for (char& ch : text) {
+        if (static_cast<unsigned char>(ch) < 0x20 || static_cast<unsigned char>(ch) >= 0x7f) ch = '?';
+      }
+      if (text.size() > 110) text = text.substr(0, 107) + "...";
+      shown += " with FILE `" + (text.empty() ? std::string("(empty)") : text) + "`";
+    }
+    std::printf("[ bad input ] %s | %s | %d | %s\n", c.kind, replace_all(shown, "|", "\\|").c_str(), code,
+                replace_all(message, "|", "\\|").c_str());
   }
   std::printf("[ bad input ] %d cases, %d failures\n", i, failures);
 }
