@@ -413,7 +413,8 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
     // Bracket of the root of g: g(i_lo) > 0 > g(i_hi). Where I(pH(I)) falls steeply (many
     // highly charged species) the fixed point oscillates; steps then stay in the bracket and,
     // after 100 steps, bisect it.
-    double i_lo = 0.0, i_hi = std::numeric_limits<double>::infinity();
+    double i_lo = 0.0, i_hi = std::numeric_limits<double>::infinity(), g_lo = g_prev;
+    double up_step = 0.0;
     converged = false;
     for (int k = 0; k < options.max_ionic_strength_iterations; ++k) {
       set_ionic_strength(i_cur);
@@ -437,17 +438,27 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
         break;
       }
       double i_next = ev.ionic_strength;
-      if (k < 50 && g != g_prev) {
+      if (g != g_prev) {
         const double sec = i_cur - g * (i_cur - i_prev) / (g - g_prev);
         // Where I(pH(I)) rises almost as fast as I the plain step is tiny and the secant step
         // many times longer; it is still bounded, and kept in the bracket below.
         if (sec > 0 && std::fabs(sec - i_cur) <= 1000.0 * std::fabs(g)) i_next = sec;
-      } else if (k >= 50) {
-        i_next = 0.5 * (i_cur + ev.ionic_strength);
       }
-      if (g > 0) i_lo = std::max(i_lo, i_cur); else i_hi = std::min(i_hi, i_cur);
-      if (std::isfinite(i_hi) && (k >= 100 || !(i_next > i_lo && i_next < i_hi))) {
-        i_next = 0.5 * (i_lo + i_hi);
+      if (g > 0) {
+        if (i_cur >= i_lo) {
+          i_lo = i_cur;
+          g_lo = g;
+        }
+      } else {
+        i_hi = std::min(i_hi, i_cur);
+      }
+      if (std::isfinite(i_hi)) {
+        if (k >= 100 || !(i_next > i_lo && i_next < i_hi)) i_next = 0.5 * (i_lo + i_hi);
+      } else if (!(i_next > i_lo) || k >= 20) {
+        // No I above the root known yet: search upwards from the highest I known to lie below
+        // it, with steps that double (I(pH(I)) may rise faster than I over a stretch).
+        up_step = std::max(g_lo, 2.0 * up_step);
+        i_next = i_lo + up_step;
       }
       i_prev = i_cur;
       g_prev = g;
