@@ -471,6 +471,7 @@ FitResult fit_solubility(const Compound& compound, const Library& library,
   }
   if (m < n) {
     std::vector<std::string> names;
+    names.reserve(parameters.size());
     for (const FitParameter& p : parameters) names.push_back(p.name);
     const SourceLocation at = m > 0 ? points.back().where : SourceLocation{};
     throw InputError(SourceLocation{at.file, at.line, 0},
@@ -623,7 +624,7 @@ FitResult fit_solubility(const Compound& compound, const Library& library,
     std::vector<bool> in_null(na, false);
     if (rank < na) {
       const Eigen::JacobiSVD<Eigen::MatrixXd> svd(js, Eigen::ComputeThinV);
-      const Eigen::VectorXd sv = svd.singularValues();
+      const Eigen::VectorXd& sv = svd.singularValues();
       const Eigen::MatrixXd& v = svd.matrixV();
       std::vector<std::string> names;
       for (int c = rank; c < na; ++c) {

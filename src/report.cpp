@@ -374,7 +374,10 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
   for (const Pka& k : compound.system.pkas) has_sd = has_sd || k.sd > 0;
   if (request.uncertainty_samples > 0 && has_sd) {
     std::vector<double> grid;
-    for (double x = request.profile_from_pH; x <= request.profile_to_pH + 1e-9; x += request.uncertainty_step_pH) grid.push_back(x);
+    // An integer counter: the grid points do not accumulate rounding.
+    const int n = static_cast<int>(std::floor((request.profile_to_pH - request.profile_from_pH) /
+                                              request.uncertainty_step_pH + 1e-9));
+    for (int i = 0; i <= n; ++i) grid.push_back(request.profile_from_pH + i * request.uncertainty_step_pH);
     MonteCarloRun run;
     run.threads = 0;
     d.uncertainty = profile_bands(compound, library, grid, cond, request.uncertainty_samples, request.uncertainty_seed, run);

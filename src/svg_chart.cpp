@@ -264,7 +264,8 @@ void write_svg(const Chart& c, std::ostream& out) {
   for (std::size_t i = 0; i < c.series.size(); ++i) {
     if (c.series[i].name.empty()) continue;
     const int k = static_cast<int>(items.size());
-    items.push_back({i, x0 + (k % columns) * col_w, y0 + 66.0 + (k / columns) * 21.0});
+    const int row = k / columns;  // whole rows: integer division intended
+    items.push_back({i, x0 + (k % columns) * col_w, y0 + 66.0 + row * 21.0});
     rows = k / columns + 1;
   }
   const double height = y0 + 50.0 + (rows ? 10.0 + 21.0 * rows : 0.0) + 6.0;
