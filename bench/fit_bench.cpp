@@ -4,10 +4,10 @@
 #include <cmath>
 #include <random>
 
-#include "pkarta/fit.h"
-#include "pkarta/screen.h"
-#include "pkarta/uncertainty.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/analyses/fit.h"
+#include "pkarta/analyses/screen.h"
+#include "pkarta/analyses/uncertainty.h"
+#include "pkarta/io/xml_input.h"
 
 namespace {
 

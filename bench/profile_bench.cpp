@@ -1,9 +1,9 @@
 // Benchmark of the pH-solubility profile (figure quoted in DEVELOPERS.md).
 #include <benchmark/benchmark.h>
 
-#include "pkarta/mixture_builder.h"
-#include "pkarta/profile.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/analyses/profile.h"
+#include "pkarta/io/xml_input.h"
 
 namespace {
 

@@ -8,11 +8,11 @@
 #include <string>
 #include <vector>
 
-#include "pkarta/mixture_builder.h"
-#include "pkarta/report.h"
-#include "pkarta/svg_chart.h"
-#include "pkarta/units.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/report/report.h"
+#include "pkarta/report/svg_chart.h"
+#include "pkarta/chem/units.h"
+#include "pkarta/io/xml_input.h"
 
 
 namespace {

@@ -5,8 +5,8 @@
 #include <cmath>
 #include <random>
 
-#include "pkarta/screen.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/analyses/screen.h"
+#include "pkarta/io/xml_input.h"
 
 namespace {
 

@@ -3,9 +3,9 @@
 
 #include <random>
 
-#include "pkarta/equilibrium.h"
-#include "pkarta/mixture_builder.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/io/xml_input.h"
 
 namespace {
 

@@ -3,8 +3,8 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/classify.h"
-#include "pkarta/profile.h"
+#include "pkarta/analyses/classify.h"
+#include "pkarta/analyses/profile.h"
 
 namespace pkarta::cli {
 

@@ -3,10 +3,10 @@
 #include <iostream>
 #include <sstream>
 
-#include "pkarta/error.h"
-#include "pkarta/format.h"
-#include "pkarta/mixture_builder.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/base/error.h"
+#include "pkarta/base/format.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/io/xml_input.h"
 
 namespace pkarta::cli {
 

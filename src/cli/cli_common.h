@@ -9,15 +9,15 @@
 #include <string>
 #include <vector>
 
-#include "pkarta/equilibrium.h"
-#include "pkarta/model.h"
-#include "pkarta/units.h"
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/model.h"
+#include "pkarta/chem/units.h"
 
 namespace pkarta::cli {
 
 namespace po = boost::program_options;
 
-/// Exit codes (DESIGN.md section 4).
+/// Exit codes (docs/commands.md, "Exit codes").
 enum ExitCode : int {
   kExitOk = 0,       ///< success; a result such as "not achievable" is still a success
   kExitRefused = 1,  ///< computed but not usable (e.g. no convergence)

@@ -5,7 +5,7 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/format.h"
+#include "pkarta/base/format.h"
 #include "report_cli.h"
 
 namespace pkarta::cli {

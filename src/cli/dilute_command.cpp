@@ -4,7 +4,7 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/dilute.h"
+#include "pkarta/analyses/dilute.h"
 
 namespace pkarta::cli {
 

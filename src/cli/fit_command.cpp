@@ -4,9 +4,9 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/atomic_file.h"
-#include "pkarta/fit.h"
-#include "pkarta/mixture_builder.h"
+#include "pkarta/io/atomic_file.h"
+#include "pkarta/analyses/fit.h"
+#include "pkarta/chem/mixture_builder.h"
 
 namespace pkarta::cli {
 

@@ -4,8 +4,8 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/format.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/base/format.h"
+#include "pkarta/io/xml_input.h"
 
 namespace pkarta::cli {
 

@@ -1,11 +1,11 @@
 #include <iostream>
 #include <sstream>
 
-#include "pkarta/format.h"
+#include "pkarta/base/format.h"
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/mix.h"
+#include "pkarta/analyses/mix.h"
 
 namespace pkarta::cli {
 

@@ -8,8 +8,8 @@
 
 #include <nlohmann/json.hpp>
 
-#include "pkarta/profile.h"
-#include "pkarta/uncertainty.h"
+#include "pkarta/analyses/profile.h"
+#include "pkarta/analyses/uncertainty.h"
 #include "progress_bar.h"
 
 namespace pkarta::cli {

@@ -3,8 +3,8 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/error.h"
-#include "pkarta/recipe.h"
+#include "pkarta/base/error.h"
+#include "pkarta/analyses/recipe.h"
 
 namespace pkarta::cli {
 

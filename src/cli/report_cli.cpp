@@ -1,8 +1,8 @@
 #include "report_cli.h"
 
-#include "pkarta/equilibrium.h"
-#include "pkarta/mixture_builder.h"
-#include "pkarta/report.h"
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/report/report.h"
 
 namespace pkarta::cli {
 

@@ -6,7 +6,7 @@
 #include <vector>
 
 #include "cli_common.h"
-#include "pkarta/report.h"
+#include "pkarta/report/report.h"
 
 namespace pkarta::cli {
 

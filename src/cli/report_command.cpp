@@ -4,8 +4,8 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/mixture_builder.h"
-#include "pkarta/report.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/report/report.h"
 #include "report_cli.h"
 
 namespace pkarta::cli {

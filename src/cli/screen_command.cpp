@@ -9,11 +9,11 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include "pkarta/error.h"
-#include "pkarta/mixture_builder.h"
-#include "pkarta/format.h"
-#include "pkarta/screen.h"
-#include "pkarta/uncertainty.h"
+#include "pkarta/base/error.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/base/format.h"
+#include "pkarta/analyses/screen.h"
+#include "pkarta/analyses/uncertainty.h"
 #include "progress_bar.h"
 
 #include <cmath>

@@ -11,11 +11,11 @@
 #include <string>
 #include <string_view>
 
-#include "pkarta/equilibrium.h"
-#include "pkarta/error.h"
-#include "pkarta/formula.h"
-#include "pkarta/units.h"
-#include "pkarta/xml_input.h"
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/base/error.h"
+#include "pkarta/chem/formula.h"
+#include "pkarta/chem/units.h"
+#include "pkarta/io/xml_input.h"
 
 namespace pkarta::fuzz {
 

@@ -1,0 +1,93 @@
+// Precipitation risk of a formulation diluted into a medium (infusion bag, injection, transfer
+// from stomach to intestine).
+//
+// Dilution ratio r = total volume / formulation volume: 1 volume of formulation made up to r
+// volumes with the medium (r = 1 is the formulation itself; r = 10 is 1 + 9 volumes). Volumes
+// are additive, so every total of the mixture is  c = c_formulation / r + c_medium (1 - 1/r).
+//
+// For each ratio:
+//  - pH: of the closed-system mixture with all its totals and the drug fully dissolved;
+//  - drug_mol_per_L: the dose / r, the concentration if nothing precipitates;
+//  - solubility_mol_per_L: the equilibrium solubility of the drug in that mixture, at the pH,
+//    ionic strength and counterion concentrations held by the mixture's own composition: the
+//    free form saturated at S0 (S0 / alpha_neutral) or a salt at its Ksp (Ksp / (gamma+ gamma-
+//    alpha_ion [X])), whichever is lower;
+//  - supersaturation_ratio = drug / solubility (equal to the mixture's saturation ratio of
+//    docs/model.md); risk = ratio > 1 (a thermodynamic driving force for precipitation;
+//    nucleation and growth rates are not modelled);
+//  - and, for reference, the state after precipitation to equilibrium (solids allowed).
+#ifndef PKARTA_DILUTE_H_
+#define PKARTA_DILUTE_H_
+
+#include <optional>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/model.h"
+
+namespace pkarta {
+
+/// What to dilute into, and how far.
+struct DilutionOptions {
+  std::string medium_id;              ///< library medium (water, saline-0.9, plasma-7.4, ...)
+  std::vector<double> ratios{1, 2, 5, 10, 20, 50, 100};  ///< total / formulation volume, >= 1
+  std::optional<double> temperature_C;  ///< of the diluted mixture; default: the formulation's
+  bool is_valid(std::string* error) const;
+};
+
+/// One dilution ratio.
+struct DilutionPoint {
+  double ratio = 1.0;
+  double pH = 7.0;                        ///< drug fully dissolved
+  double ionic_strength_mol_per_L = 0.0;
+  double osmolarity_mOsm_per_L = 0.0;     ///< ideal
+  bool has_drug = false;
+  double drug_mol_per_L = 0.0;            ///< dose / ratio
+  double drug_mg_per_mL = 0.0;            ///< as the free form
+  double solubility_mol_per_L = 0.0;      ///< lowest over the solids; +inf when none can form
+  std::string limiting_solid = "none";    ///< the solid of that lowest solubility
+  double supersaturation_ratio = 0.0;     ///< drug / solubility
+  bool risk = false;                      ///< supersaturation_ratio > 1
+  double equilibrium_pH = 7.0;            ///< after precipitation to equilibrium
+  double equilibrium_dissolved_mol_per_L = 0.0;
+  std::string equilibrium_solid = "none";
+  double mass_residual_rel = 0.0;         ///< worst of both solves
+  double charge_residual_rel = 0.0;
+};
+
+/// Result of analyse_dilution(): check usable().
+struct DilutionResult {
+  bool converged = false;
+  std::string message = "analyse_dilution() was not called";
+  std::string medium_id;
+  std::string medium_name;
+  double temperature_C = 25.0;
+  std::string drug_name;                  ///< empty without a drug
+  std::vector<std::string> inputs;        ///< readable contents of the formulation
+  std::vector<DilutionPoint> points;
+  std::vector<std::string> notes;         ///< the simplifications behind the numbers
+  std::vector<std::string> warnings;
+  bool usable() const { return converged; }
+};
+
+/// The formulation diluted to `ratio` with a library medium: every system, ion and drug total
+/// times 1/ratio plus the medium's times (1 - 1/ratio). Throws InputError for an unknown medium
+/// or a ratio below 1.
+Mixture diluted_mixture(const Mixture& formulation, const Library& library, const std::string& medium_id,
+                        double ratio);
+
+/// Analyses every ratio of `options`. Throws InputError for invalid options or medium.
+DilutionResult analyse_dilution(const Mixture& formulation, const Library& library,
+                                const DilutionOptions& options, std::vector<std::string> inputs = {});
+
+void write_dilute_text(const DilutionResult& result, std::ostream& out);
+void write_dilute_csv(const DilutionResult& result, std::ostream& out);
+/// JSON keys (docs/commands.md): points[] {ratio, pH, drug_mol_per_L, solubility_mol_per_L,
+/// supersaturation_ratio, risk}, plus notes, warnings and the equilibrium after precipitation.
+void write_dilute_json(const DilutionResult& result, std::ostream& out);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_DILUTE_H_

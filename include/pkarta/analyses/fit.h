@@ -1,0 +1,164 @@
+// Fitting pKa values, intrinsic solubility and salt Ksp to measured solubilities.
+//
+// Weighted nonlinear least squares in log10 solubility: the model is solubility_at_pH
+// (profile.h: excess solid, pH held by a titrant in a medium, salt plateau included), evaluated
+// at each point's pH and temperature. The parameters are log10 S0 (mol/L), pKa values and
+// log10 Ksp of named salts, each at the reference temperature it has in the compound file
+// (points at other temperatures are corrected with the file's dH values, as everywhere).
+//
+// The minimiser is a Levenberg-Marquardt (damped Gauss-Newton) iteration on Eigen with a
+// forward-difference Jacobian; standard errors come from the covariance s^2 (J'WJ)^-1 scaled
+// by the residual variance s^2 = chi^2 / (m - n).
+#ifndef PKARTA_FIT_H_
+#define PKARTA_FIT_H_
+
+#include <Eigen/Core>
+
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "pkarta/base/error.h"
+#include "pkarta/chem/model.h"
+#include "pkarta/analyses/profile.h"
+
+namespace pkarta {
+
+/// One measured solubility used by the fit.
+struct FitPoint {
+  double pH = 7.0;
+  double solubility_mol_per_L = 0.0;  ///< > 0
+  double temperature_C = 25.0;
+  double log10_sd = 0.0;              ///< standard uncertainty of log10 S; 0: unweighted (1)
+  SourceLocation where;               ///< file:line of the point, for messages
+};
+
+/// The points of a compound file's measured-solubility block (unweighted).
+std::vector<FitPoint> fit_points_from_compound(const Compound& compound);
+
+/// Reads measured solubilities from CSV text (RFC 4180 fields, '#' comment lines and blank
+/// lines ignored). A header row is required, naming the columns in any order, case-insensitive:
+///   pH, value, unit                      required (unit as in compound files: mg/mL, ug/mL, M, mM...)
+///   temperature (or temperature_C)       optional, °C, default 25
+///   log_sd (or sd_log10)                 optional, standard uncertainty of log10 S (weights 1/sd^2)
+/// Unknown columns give a located warning. Mass units use the compound's molar mass.
+/// Throws InputError naming name:line:column for a missing column, a non-numeric cell, a
+/// solubility <= 0, a pH outside -1..15, an unknown unit or a row of the wrong length.
+/// Example: parse_solubility_csv("pH,value,unit\n2.0,25,mg/mL\n", "data.csv", 311.4, nullptr)
+std::vector<FitPoint> parse_solubility_csv(const std::string& text, const std::string& name,
+                                           double molar_mass_g_per_mol,
+                                           std::vector<std::string>* warnings);
+/// Reads a CSV file (see parse_solubility_csv). Throws InputError naming the file.
+std::vector<FitPoint> read_solubility_csv(const std::string& path, double molar_mass_g_per_mol,
+                                          std::vector<std::string>* warnings);
+
+/// A fitted quantity.
+struct FitParameter {
+  enum class Kind { kLog10S0, kPka, kLog10Ksp };
+  Kind kind = Kind::kLog10S0;
+  int index = 0;         ///< pKa index (0-based) or salt index into compound.salts
+  std::string name;      ///< "log10_S0_mol_per_L", "pKa1", "log10_Ksp:hydrochloride"
+  double start = 0.0;    ///< value in the compound file
+  double estimate = 0.0;
+  double std_error = 0.0;  ///< NaN when not estimable (rank-deficient, or m == n)
+  double lower = 0.0;    ///< search range
+  double upper = 0.0;
+};
+
+/// Parses a parameter list: "s0", "pka1".."pkaN", "ksp:SALT", comma-separated, case-insensitive,
+/// in the order given. Starting values are the compound's.
+/// Throws InputError located at `option` for an unknown, repeated or inapplicable name.
+/// Example: parse_fit_parameters("s0,pka2,ksp:hydrochloride", compound)
+std::vector<FitParameter> parse_fit_parameters(const std::string& list, const Compound& compound,
+                                               const std::string& option = "--params");
+
+/// How the fit is run.
+struct FitOptions {
+  /// Medium, titrants and activity model of the measurements (temperature comes from each
+  /// point). Default: water, pH held by HCl or NaOH, Davies activities.
+  ProfileConditions conditions;
+  int max_iterations = 100;              ///< Levenberg-Marquardt iterations
+  double relative_step_tolerance = 1e-9; ///< stop when every |step| < tol (1 + |p|)
+  double derivative_step = 1e-6;         ///< forward-difference step in parameter units
+  /// A pKa is flagged as not determined when no point lies within this many pH units of it.
+  double pka_window_pH = 1.5;
+  /// Estimates with a standard error above this (log10 or pKa units) are flagged as poorly
+  /// determined.
+  double poor_std_error = 0.5;
+  /// Pairs with |correlation| above this are flagged.
+  double strong_correlation = 0.98;
+  bool is_valid(std::string* error) const;
+};
+
+enum class FitStatus { kConverged, kMaxIterations, kFailure };
+
+/// One point after the fit.
+struct FitResidual {
+  double pH = 7.0;
+  double temperature_C = 25.0;
+  double observed_log10 = 0.0;   ///< log10 of the measured solubility (mol/L)
+  double fitted_log10 = 0.0;     ///< log10 of the model at the estimates
+  double weight = 1.0;           ///< 1 / log10_sd^2, or 1
+  std::string limiting_solid;    ///< "free", a salt id or "none" at the estimates
+};
+
+/// Result of fit_solubility(): a value type; check usable() before relying on the numbers.
+struct FitResult {
+  FitStatus status = FitStatus::kFailure;
+  std::string message = "fit_solubility() was not called";
+  int iterations = -1;
+  int evaluations = -1;                ///< model evaluations (solubility_at_pH calls)
+  std::vector<FitParameter> parameters;
+  Eigen::MatrixXd covariance;          ///< n x n, scaled by the residual variance (NaN when not estimable)
+  Eigen::MatrixXd correlation;         ///< n x n (NaN when not estimable)
+  int rank = -1;                       ///< numerical rank of the column-scaled Jacobian
+  int degrees_of_freedom = -1;         ///< points - parameters
+  double rms_log10 = 0.0;              ///< sqrt(mean (observed - fitted)^2), unweighted
+  double residual_sd = 0.0;            ///< sqrt(chi^2 / dof), weighted; NaN when dof = 0
+  std::vector<FitResidual> residuals;
+  std::vector<std::string> warnings;   ///< parameters not determined by the data, etc.
+  Compound fitted;                     ///< the compound with the estimates in place
+  std::string data_source;             ///< "compound file" or the CSV path
+  bool usable() const { return status == FitStatus::kConverged; }
+};
+
+/// The default parameters: log10 S0 (when the compound has a net-neutral form), every pKa, and
+/// log10 Ksp of each salt that limits the model solubility at one or more of the points at the
+/// starting values.
+std::vector<FitParameter> default_fit_parameters(const Compound& compound, const Library& library,
+                                                 const std::vector<FitPoint>& points,
+                                                 const FitOptions& options);
+
+/// Fits `parameters` (from parse_fit_parameters) of `compound` to `points`.
+/// Throws InputError (located at the data's last point) when there are fewer points than
+/// parameters; numerical trouble is reported through status, message and warnings.
+/// Example: fit_solubility(c, lib, fit_points_from_compound(c), parse_fit_parameters("", c), {})
+FitResult fit_solubility(const Compound& compound, const Library& library,
+                         const std::vector<FitPoint>& points, std::vector<FitParameter> parameters,
+                         const FitOptions& options = {});
+
+/// log10 solubility (mol/L) of the fitted compound over a pH grid, under the fit's conditions
+/// at `temperature_C`: the fitted curve to draw beside the measured points.
+std::vector<double> fitted_curve_log10(const FitResult& result, const Library& library,
+                                       const std::vector<double>& pH_grid, const FitOptions& options,
+                                       double temperature_C = 25.0);
+
+/// The compound file `compound_path` with the fitted values written in (pKa value and sd,
+/// intrinsic-solubility value in its own unit and log-sd, salt ksp replacing any
+/// solubility-in-water) and a comment naming the fit above the <compound> element; only the
+/// attributes written change, every other byte of the file is kept (comments, layout). The
+/// text is checked by parsing it back. Throws InputError when the fitted
+/// file would not load (e.g. pKa values out of order).
+std::string fitted_compound_xml(const std::string& compound_path, const FitResult& result,
+                                const Library& library);
+
+void write_fit_text(const FitResult& result, std::ostream& out);
+/// Two CSV tables separated by an empty line: parameters (name, estimate, std_error), then
+/// residuals (pH, temperature, observed and fitted log10, limiting solid).
+void write_fit_csv(const FitResult& result, std::ostream& out);
+/// JSON keys (docs/commands.md): parameters[], correlation, rms_log10, residuals[], warnings[].
+void write_fit_json(const FitResult& result, std::ostream& out);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_FIT_H_

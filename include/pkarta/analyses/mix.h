@@ -1,0 +1,34 @@
+// `pkarta mix`: one closed-system equilibrium, with capacity and osmolarity, and its writers.
+#ifndef PKARTA_MIX_H_
+#define PKARTA_MIX_H_
+
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "pkarta/chem/equilibrium.h"
+
+namespace pkarta {
+
+struct MixResult {
+  Equilibrium equilibrium;
+  double capacity_mol_per_L_per_pH = 0.0;
+  double osmolality_estimate_mOsm_per_kg = 0.0;  ///< osmotic coefficient 0.93: an estimate
+  std::vector<std::string> inputs;               ///< "KH2PO4 25 mM", for the text header
+  std::string drug_name;
+};
+
+/// Osmotic coefficient used for the osmolality estimate (NaCl at physiological strength,
+/// 0.93; osmotic coefficients as tabulated by Robinson and Stokes, Electrolyte Solutions, 1959).
+inline constexpr double kOsmoticCoefficient = 0.93;
+
+/// Solves the mixture and derives capacity and the osmolality estimate.
+MixResult analyse_mix(const Mixture& mixture, std::vector<std::string> inputs);
+
+void write_mix_text(const MixResult& result, std::ostream& out);
+void write_mix_csv(const MixResult& result, std::ostream& out);
+void write_mix_json(const MixResult& result, std::ostream& out);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_MIX_H_

@@ -1,0 +1,191 @@
+// Buffer screening: the weakest buffer that holds a target pH once the dose is dissolved.
+//
+// For each candidate buffer of the library (docs/commands.md, `pkarta screen`): the buffer
+// system at total concentration C in its net-neutral form (H3PO4, acetic acid, citric acid,
+// tris base, histidine), plus the one titrant (the buffer's acid-titrant or base-titrant
+// reagent, HCl or NaOH in the built-in library) that brings the buffer alone to the target pH
+// at the run temperature (Davies activities, solved exactly for the titrant amount). Then the
+// dose, with its salt's counterion, is added and the closed system equilibrated (solids
+// allowed). min_conc is the smallest C in [1e-6 M, max-conc] for which
+// |pH_after_drug - target| <= tolerance, found by bisection on log C (relative precision 1e-4).
+//
+// The drift caused by the dose's own acid or base falls as the buffer grows, but a salt dose
+// also raises the ionic strength, which shifts the apparent pKa of a charged buffer (phosphate
+// pK2 by -3 A df(I)); the two effects can cancel at one low C, so |drift| need not be monotone
+// there. The search therefore walks down from max-conc in quarter-decade steps while the drift
+// stays within the tolerance and bisects between the last step inside and the first outside:
+// min_conc is the lower end of the range of C that reaches up to max-conc, so that a slightly
+// stronger buffer also holds the target. A narrower window at lower C, where the pH merely
+// crosses the target, is not reported.
+#ifndef PKARTA_SCREEN_H_
+#define PKARTA_SCREEN_H_
+
+#include <cstddef>
+#include <functional>
+#include <optional>
+#include <ostream>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/model.h"
+
+namespace pkarta {
+
+/// What a screen is asked.
+struct ScreenOptions {
+  double target_pH = 7.0;              ///< pH to hold (0-14)
+  double tolerance_pH = 0.1;           ///< allowed |pH after drug - target| (> 0)
+  double temperature_C = 25.0;         ///< run temperature: buffer prepared and dose added here
+  std::vector<std::string> buffers;    ///< buffer ids; empty: every buffer of the library
+  std::string route = "any";           ///< oral, parenteral, ophthalmic, topical or any
+  double dose_range_fraction = 0.0;    ///< 0.1: report the worst pH for dose +/-10 %; 0: not asked
+  double min_conc_mol_per_L = 1e-6;    ///< lower end of the search
+  double rel_precision = 1e-4;         ///< bisection stops when hi/lo - 1 is below this
+  double pka_window_pH = 1.0;          ///< "outside-range" when no pKa(T) lies within target +/- this
+  double low_temperature_C = 5.0;      ///< storage temperature re-equilibrated (pH_at_5C)
+  double high_temperature_C = 40.0;    ///< accelerated-condition temperature (pH_at_40C)
+  ActivityModel activity = ActivityModel::kDavies;
+  /// False with a message naming the field ("ScreenOptions::tolerance_pH = 0, must be > 0").
+  bool is_valid(std::string* error) const;
+};
+
+/// Outcome of one buffer, first match wins in this order of the checks:
+/// kOutsideRange, kDoseNotSoluble, kNotAchievable, else kOk.
+enum class ScreenStatus { kOk, kNotAchievable, kOutsideRange, kDoseNotSoluble };
+
+/// "ok", "not-achievable", "outside-range", "dose-not-soluble" (the JSON values).
+const char* screen_status_name(ScreenStatus status);
+
+/// The buffer alone at a total concentration, brought to a pH by one titrant.
+struct BufferPreparation {
+  double conc_mol_per_L = 0.0;       ///< total of the buffer system
+  std::string titrant;               ///< reagent id (acid- or base-titrant); "" when none needed
+  double titrant_mol_per_L = 0.0;    ///< amount of that reagent (>= 0)
+  double pH = 0.0;                   ///< the pH the buffer alone sits at (the target)
+  double ionic_strength_mol_per_L = 0.0;
+  bool converged = false;
+};
+
+/// The buffer system at `conc_mol_per_L` in its net-neutral form plus the titrant amount that
+/// puts the buffer alone at `pH` (Davies activities unless `activity` is ideal), solved from the
+/// charge balance at fixed pH with the ionic strength iterated to self-consistency.
+/// Throws InputError when the buffer's titrants are not strong-ion reagents of the library.
+BufferPreparation prepare_buffer(const Library& library, const Buffer& buffer, double conc_mol_per_L,
+                                 double pH, double temperature_C,
+                                 ActivityModel activity = ActivityModel::kDavies);
+
+/// The mixture of a prepared buffer plus a dose of the drug in a form (the salt's counterion
+/// included), at the preparation temperature. A dose of 0 (or no compound) gives the buffer alone.
+Mixture screen_mixture(const Library& library, const Buffer& buffer, const BufferPreparation& prep,
+                       const Compound* compound, double dose_mol_per_L, const std::string& form,
+                       double temperature_C, ActivityModel activity = ActivityModel::kDavies);
+
+/// pH after the drug for the buffer at one concentration (the quantity the bisection works on).
+/// Returns NaN when the equilibrium does not converge.
+double ph_after_drug(const Library& library, const Buffer& buffer, double conc_mol_per_L,
+                     const Compound& compound, double dose_mol_per_L, const std::string& form,
+                     const ScreenOptions& options);
+
+/// One buffer's line of the screen.
+struct ScreenResult {
+  std::string buffer;                    ///< buffer id
+  std::string name;
+  ScreenStatus status = ScreenStatus::kNotAchievable;
+  std::vector<std::string> routes;       ///< routes the library lists for the buffer
+  double max_conc_mol_per_L = 0.0;
+  std::optional<double> min_conc_mol_per_L;  ///< absent when even max-conc drifts too far
+  bool min_conc_at_lower_bound = false;  ///< the dose alone holds the target (min_conc = 1e-6 M)
+  double conc_used_mol_per_L = 0.0;      ///< min_conc, or max-conc when none is found
+  std::string titrant;                   ///< reagent bringing the buffer to the target
+  double titrant_mol_per_L = 0.0;        ///< at conc_used
+  double nearest_pka = 0.0;              ///< pKa(T) of the buffer nearest the target
+  double pH_after_drug = 0.0;            ///< at conc_used, run temperature
+  double pH_drift = 0.0;                 ///< pH_after_drug - target
+  double capacity_mol_per_L_per_pH = 0.0;  ///< of the final solution (drug included)
+  double ionic_strength_mol_per_L = 0.0;
+  double osmolarity_mOsm_per_L = 0.0;    ///< ideal, all dissolved species
+  double pH_at_5C = 0.0;                 ///< same totals re-equilibrated at low_temperature_C
+  double pH_at_40C = 0.0;                ///< ... and at high_temperature_C
+  std::string drug_solid = "none";       ///< solid left at conc_used ("none", "free", salt id, ...)
+  std::optional<double> worst_pH_in_dose_range;  ///< when dose_range_fraction > 0
+  bool dose_range_within_tolerance = true;
+  std::vector<std::string> warnings;
+  /// pH_at_40C - pH_at_5C: the temperature drift used in the ranking.
+  double temperature_drift_pH() const { return pH_at_40C - pH_at_5C; }
+};
+
+/// A screen of one compound: ranked results (achievable first by concentration needed, then
+/// by |pH drift over 5-40 °C|; then not-achievable, dose-not-soluble, outside-range).
+struct ScreenReport {
+  std::string compound_id;
+  std::string compound_name;
+  std::string compound_file;
+  std::string form = "free";
+  double target_pH = 0.0;
+  double tolerance_pH = 0.0;
+  double temperature_C = 25.0;
+  double low_temperature_C = 5.0;
+  double high_temperature_C = 40.0;
+  double dose_mol_per_L = 0.0;
+  double dose_range_fraction = 0.0;
+  double solubility_at_target_mol_per_L = 0.0;  ///< in water at the target pH (profile)
+  std::string route = "any";
+  std::vector<ScreenResult> results;
+  std::vector<std::string> warnings;
+};
+
+/// One compound to screen.
+struct ScreenJob {
+  Compound compound;              ///< salts with Ksp resolved (load_compound_file does it)
+  double dose_mol_per_L = 0.0;    ///< of drug (> 0)
+  std::string form = "free";      ///< "free" or a salt id of the compound
+};
+
+/// Screens one buffer for one compound. `solubility_at_target_mol_per_L` is the drug's
+/// solubility in water at the target pH (see screen_solubility_at_target).
+ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const ScreenJob& job,
+                           double solubility_at_target_mol_per_L, const ScreenOptions& options);
+
+/// The drug's solubility in water at the target pH and run temperature (solubility_at_pH).
+double screen_solubility_at_target(const Library& library, const Compound& compound,
+                                   const ScreenOptions& options);
+
+/// The buffers a screen covers: options.buffers (or all), filtered by route, in id order.
+/// Throws InputError for an unknown buffer id or an unknown route.
+std::vector<const Buffer*> screen_candidates(const Library& library, const ScreenOptions& options);
+
+/// Orders results in place by the ranking rule of ScreenReport.
+void rank_screen_results(std::vector<ScreenResult>& results);
+
+/// Screens one compound (serially). Throws InputError on invalid options, an unknown buffer or
+/// form, or a dose <= 0.
+ScreenReport screen(const Library& library, const ScreenJob& job, const ScreenOptions& options);
+
+/// How a batch runs.
+struct BatchOptions {
+  int threads = 0;  ///< 0: std::thread::hardware_concurrency(); 1: serial
+  /// Called after each finished (compound, buffer) pair with (done, total); calls are
+  /// serialised, so the callback needs no locking. May be empty.
+  std::function<void(std::size_t done, std::size_t total)> progress;
+};
+
+/// Screens many compounds, in parallel over (compound, buffer) pairs. The results are
+/// identical to screen() run on each job in turn (every pair is computed independently).
+std::vector<ScreenReport> screen_batch(const Library& library, const std::vector<ScreenJob>& jobs,
+                                       const ScreenOptions& options, const BatchOptions& batch = {});
+
+/// Parses a dose range: "10%", "+/-10%", "±10%" or "0.1" give 0.1. Throws InputError (without
+/// location) unless the result lies in [0, 1).
+double parse_dose_range(std::string_view text);
+
+/// Writers: text tables, CSV (one row per compound and buffer), JSON (docs/commands.md
+/// keys; one compound gives the stable object, several give {"screens": [...]}).
+void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out);
+void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out);
+void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_SCREEN_H_

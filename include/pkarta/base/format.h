@@ -1,0 +1,38 @@
+// Number formatting, text tables and CSV quoting shared by the writers.
+#ifndef PKARTA_FORMAT_H_
+#define PKARTA_FORMAT_H_
+
+#include <ostream>
+#include <string>
+#include <vector>
+
+namespace pkarta {
+
+/// Fixed-point with `decimals` digits ("7.412"). Never prints nan/inf: those become "n/a".
+std::string fixed(double value, int decimals);
+/// Significant digits in plain or scientific notation ("0.0250", "1.23e-05").
+std::string sig(double value, int digits = 4);
+
+/// RFC 4180 field: quoted when it holds a comma, quote, CR or LF; quotes doubled.
+std::string csv_field(const std::string& text);
+/// Writes one CSV record (RFC 4180, CRLF line ending).
+void write_csv_row(std::ostream& out, const std::vector<std::string>& fields);
+
+/// A plain-text table: header row, rule, rows; numeric-looking cells right-aligned.
+class TextTable {
+ public:
+  explicit TextTable(std::vector<std::string> header) : header_(std::move(header)) {}
+  void add_row(std::vector<std::string> row) { rows_.push_back(std::move(row)); }
+  void write(std::ostream& out, const std::string& indent = "  ") const;
+
+ private:
+  std::vector<std::string> header_;
+  std::vector<std::vector<std::string>> rows_;
+};
+
+/// The caution every result that could guide a product carries (docs/model.md, "Limits and cautions").
+const char* caution_text();
+
+}  // namespace pkarta
+
+#endif  // PKARTA_FORMAT_H_

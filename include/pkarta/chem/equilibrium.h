@@ -1,0 +1,226 @@
+// Closed-system acid-base equilibrium with activity corrections and drug solid phases.
+//
+// Given totals (acid-base systems, strong ions, a drug dose in a stated form), finds the pH,
+// the ionic strength and which drug solids remain (none, the free form, a 1:1 salt, or both).
+// Model: docs/model.md. Concentrations are mol/L; pH = -log10 a(H+).
+#ifndef PKARTA_EQUILIBRIUM_H_
+#define PKARTA_EQUILIBRIUM_H_
+
+#include <array>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "pkarta/chem/model.h"
+
+namespace pkarta {
+
+/// Maximum number of pKa values of one system.
+inline constexpr int kMaxPka = 8;
+
+enum class ActivityModel { kDavies, kIdeal };
+
+/// A system at a total concentration.
+struct SystemAmount {
+  AcidBaseSystem system;
+  double total_mol_per_L = 0.0;
+};
+
+/// A strong ion (or non-electrolyte solute) at a concentration.
+struct IonAmount {
+  std::string id;
+  int charge = 0;
+  double conc_mol_per_L = 0.0;
+};
+
+/// The drug: its compound, the dose (all of it, dissolved or not), and which solids may form.
+struct DrugAmount {
+  Compound compound;                  ///< salts must have ksp resolved (see resolve_salt_ksp)
+  double dose_mol_per_L = 0.0;
+  std::string form = "free";          ///< "free" or a salt id (its counterion is in the ions)
+  bool allow_solids = true;           ///< false: everything dissolves (for saturation ratios)
+};
+
+/// Everything in the solution.
+struct Mixture {
+  double temperature_C = 25.0;
+  ActivityModel activity = ActivityModel::kDavies;
+  std::vector<SystemAmount> systems;
+  std::vector<IonAmount> ions;
+  std::optional<DrugAmount> drug;
+
+  /// Adds `amount` mol/L of a strong ion (merging with an existing entry of the same id).
+  void add_ion(const std::string& id, int charge, double amount_mol_per_L);
+  /// Adds `amount` mol/L of a system (merging with an existing entry of the same id).
+  void add_system(const AcidBaseSystem& system, double amount_mol_per_L);
+};
+
+/// Options of the solver. Defaults are what every command uses.
+struct SolverOptions {
+  int max_ph_iterations = 200;              ///< safeguarded-Newton steps per inner solve
+  int max_ionic_strength_iterations = 200;  ///< outer fixed-point steps on I
+  double ph_tolerance = 1e-14;              ///< on the pH step
+  double ionic_strength_rel_tolerance = 1e-12;
+  bool is_valid(std::string* error) const;
+};
+
+enum class Termination { kConverged, kMaxIterations, kNumericalFailure };
+
+/// One dissolved species.
+struct Species {
+  std::string name;        ///< e.g. "phosphate H2A-", "Na+", "H+"
+  std::string system;      ///< system id, or "" for strong ions, H+ and OH-
+  int charge = 0;
+  double conc_mol_per_L = 0.0;
+  double activity_coefficient = 1.0;
+};
+
+/// The drug's share of an equilibrium state.
+struct DrugState {
+  double dose_mol_per_L = 0.0;
+  double dissolved_mol_per_L = 0.0;
+  double dissolved_mg_per_mL = 0.0;       ///< as the free form
+  std::string solid = "none";             ///< "none" | "free" | salt id | "free+SALT"
+  double free_solid_mol_per_L = 0.0;      ///< undissolved free form
+  double salt_solid_mol_per_L = 0.0;      ///< undissolved salt
+  double neutral_mol_per_L = 0.0;         ///< dissolved net-neutral species
+  /// Largest of c_neutral/S0 and a(ion) a(X)/Ksp with the whole dose dissolved.
+  double saturation_ratio = 0.0;
+  std::vector<double> fractions;          ///< dissolved species fractions, j = 0..n
+};
+
+/// Result of solve(): a value type; check usable() before using the numbers.
+struct Equilibrium {
+  Termination termination = Termination::kNumericalFailure;
+  std::string message = "solve() was not called";
+  int evaluations = -1;                   ///< charge-balance evaluations
+  double pH = 0.0;
+  double temperature_C = 25.0;
+  double ionic_strength_mol_per_L = 0.0;
+  double osmolarity_mOsm_per_L = 0.0;     ///< ideal: sum of all dissolved species
+  double charge_residual_rel = 0.0;       ///< |sum z c| / sum |z c|
+  double mass_residual_rel = 0.0;         ///< worst system or drug mass balance
+  std::vector<Species> species;
+  std::optional<DrugState> drug;
+  std::vector<std::string> warnings;
+  bool usable() const { return termination == Termination::kConverged; }
+};
+
+/// Compact summary of a solve, without strings (for hot loops).
+struct StateSummary {
+  bool converged = false;
+  double pH = 0.0;
+  double ionic_strength_mol_per_L = 0.0;
+  double drug_dissolved_mol_per_L = 0.0;
+  int phase = 0;                          ///< 0 none, 1 free, 2 salt, 3 free+salt
+  int salt_index = -1;                    ///< index into the compound's salts
+  double charge_residual_rel = 0.0;
+  int evaluations = 0;
+};
+
+/// The prepared model: temperature-corrected constants and the charge-balance function.
+/// Construct once per mixture; cheap (no strings kept).
+class EquilibriumModel {
+ public:
+  explicit EquilibriumModel(const Mixture& mixture);
+
+  /// Drug partition between solution and solids at a fixed pH (current activity coefficients).
+  struct Partition {
+    int phase = 0;            ///< 0 none, 1 free, 2 salt, 3 free+salt
+    int salt = -1;
+    double dissolved = 0.0;   ///< mol/L of drug in solution
+    double salt_solid = 0.0;  ///< mol/L precipitated as the salt (also removed counterion)
+    double free_solid = 0.0;
+  };
+  struct Evaluation {
+    double charge = 0.0;       ///< sum z c (mol/L); decreasing in pH
+    double dcharge_dpH = 0.0;  ///< its derivative (negative)
+    double abs_sum = 0.0;      ///< sum |z c| (for the relative residual)
+    double ionic_strength = 0.0;
+    double osmolarity = 0.0;   ///< mol/L of dissolved particles
+    Partition drug;
+  };
+
+  /// Sets the ionic strength used for activity coefficients (no effect when ideal).
+  void set_ionic_strength(double ionic_strength_mol_per_L);
+  double ionic_strength() const { return ionic_strength_; }
+  double gamma(int charge) const;
+  double kw() const { return kw_; }
+
+  /// Charge balance and everything derived at pH, under the current activity coefficients.
+  Evaluation evaluate(double pH) const;
+
+  /// Solves charge balance and ionic strength self-consistently.
+  StateSummary solve(const SolverOptions& options, double pH_guess = 7.0);
+
+  /// Effective (activity-corrected) Ka of step i of system k (drug: k = -1).
+  double effective_ka(int system, int step) const;
+  /// Species fractions of system k (drug: k = -1) at pH under current coefficients.
+  void fractions(int system, double pH, double* alpha) const;
+
+  int num_systems() const { return static_cast<int>(systems_.size()); }
+  bool has_drug() const { return has_drug_; }
+
+ private:
+  struct Sys {
+    int n = 0;
+    int z0 = 0;
+    double total = 0.0;
+    std::array<double, kMaxPka> ka{};      // thermodynamic
+    std::array<double, kMaxPka> ka_eff{};  // activity-corrected
+  };
+  struct SaltPhase {
+    int ion = -1;            // index into ions_
+    int species = -1;        // drug species j with charge -z(counterion)
+    double ksp = 0.0;        // thermodynamic, at T
+    double ksp_eff = 0.0;    // divided by gamma(drug ion) gamma(X)
+  };
+  struct IonC {
+    int charge = 0;
+    double conc = 0.0;
+  };
+  void update_effective_constants();
+  static double moments(const Sys& s, double h, double* alpha, double* zbar, double* z2bar);
+  Partition partition(const double* alpha, double dose) const;
+
+  bool ideal_ = false;
+  double temperature_C_ = 25.0;
+  double a_davies_ = 0.5108;
+  double kw_ = 1e-14;
+  double ionic_strength_ = 0.0;
+  std::array<double, 33> gamma_{};  // index z + 16, charges -16..16
+  std::vector<Sys> systems_;
+  std::vector<IonC> ions_;
+  bool has_drug_ = false;
+  bool drug_solids_ = true;
+  Sys drug_;
+  int drug_neutral_ = -1;
+  double s0_ = 0.0;
+  std::vector<SaltPhase> salts_;
+};
+
+/// Solves a mixture and returns the full state (species list, drug state, warnings).
+Equilibrium solve(const Mixture& mixture, const SolverOptions& options = {});
+
+/// Buffer capacity d(strong base)/d(pH) of the closed system at fixed totals, activity
+/// coefficients recomputed and solids kept in equilibrium (central numerical derivative).
+double buffer_capacity(const Mixture& mixture, const SolverOptions& options = {});
+
+/// Ideal van Slyke (1922) buffer capacity of the state's dissolved species:
+/// ln10 ([H+] + [OH-] + sum_sys C (sum j^2 alpha_j - (sum j alpha_j)^2)).
+double van_slyke_capacity(const Mixture& mixture, double pH);
+
+/// Derives each salt's Ksp from its solubility in water, self-consistently: the salt dissolved
+/// in pure water at that concentration (at the salt's temperature), Ksp = a(drug ion) a(X).
+/// Throws InputError when the salt would disproportionate (its own pH lies beyond pHmax).
+void resolve_salt_ksp(Compound& compound, const Library& library);
+
+/// The salt's Ksp at temperature T (van 't Hoff with its dH of dissolution, else constant).
+double salt_ksp_at(const Salt& salt, double temperature_C);
+
+/// The molar mass of a drug form: the free form, or a salt (given, or free + counterion).
+double form_molar_mass(const Compound& compound, const std::string& form, const Library& library);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_EQUILIBRIUM_H_

@@ -1,0 +1,36 @@
+// Building a Mixture from library reagents, media and a drug dose.
+#ifndef PKARTA_MIXTURE_BUILDER_H_
+#define PKARTA_MIXTURE_BUILDER_H_
+
+#include <string>
+
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/model.h"
+#include "pkarta/chem/units.h"
+
+namespace pkarta {
+
+/// Concentration (mol/L) of a reagent given as an amount (mass units use its formula mass).
+double reagent_conc_mol_per_L(const Library& library, const std::string& reagent_id,
+                              const Amount& amount, double temperature_C);
+
+/// Adds a reagent at a concentration: the systems and strong ions it gives.
+void add_reagent(Mixture& mixture, const Library& library, const std::string& reagent_id,
+                 double conc_mol_per_L);
+
+/// Adds a medium's reagents, scaled by `fraction` (volume fraction of the medium).
+void add_medium(Mixture& mixture, const Library& library, const std::string& medium_id,
+                double fraction = 1.0);
+
+/// Dose concentration (mol/L of drug) from an amount of the form weighed (mass units refer to
+/// the form: the free form or the salt, whose molar mass includes the counterion).
+double dose_conc_mol_per_L(const Library& library, const Compound& compound, const std::string& form,
+                           const Amount& amount, double temperature_C);
+
+/// Adds the drug at a dose in a form: the drug total, plus the salt's counterion.
+void add_drug(Mixture& mixture, const Library& library, const Compound& compound,
+              double dose_mol_per_L, const std::string& form);
+
+}  // namespace pkarta
+
+#endif  // PKARTA_MIXTURE_BUILDER_H_

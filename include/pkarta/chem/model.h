@@ -1,0 +1,161 @@
+// Model objects read from files: acid-base systems, ions, reagents, buffers, media, compounds.
+#ifndef PKARTA_MODEL_H_
+#define PKARTA_MODEL_H_
+
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "pkarta/base/error.h"
+
+namespace pkarta {
+
+/// Whether a dissociable group is neutral when protonated (acid, COOH -> COO-) or positively
+/// charged when protonated (base, R-NH3+ -> R-NH2).
+enum class GroupType { kAcid, kBase };
+
+/// One macroscopic ionization constant, with its temperature dependence.
+struct Pka {
+  double value = 0.0;                 ///< thermodynamic pKa (I -> 0) at ref_temperature_C
+  GroupType type = GroupType::kAcid;
+  double dH_kJ_per_mol = 0.0;         ///< enthalpy of ionization
+  double dCp_J_per_K_mol = 0.0;       ///< heat capacity of ionization
+  double ref_temperature_C = 25.0;
+  double sd = 0.0;                    ///< standard uncertainty, pKa units (0: not given)
+  SourceLocation where;
+  /// pKa at temperature T by van 't Hoff (see pk_at_temperature).
+  double at(double temperature_C) const;
+};
+
+/// An acid-base system: n macroscopic pKa values in ascending order. Species j (j protons
+/// removed from the most protonated form) has charge z0 - j + permanent_charge, where z0 is
+/// the number of base groups.
+struct AcidBaseSystem {
+  std::string id;
+  std::string name;
+  std::string source;               ///< where the constants come from
+  std::vector<Pka> pkas;
+  int permanent_charge = 0;         ///< e.g. +1 for a quaternary ammonium
+  int z0() const;                   ///< charge of the most protonated form
+  int charge_of(int j) const { return z0() - j; }
+  /// Index of the net-neutral species, or -1 when there is none.
+  int neutral_index() const;
+  /// Label of species j, e.g. "H2A-" for phosphate j=1.
+  std::string species_label(int j) const;
+};
+
+/// A strong (fully dissociated) ion, or a non-electrolyte solute (charge 0).
+struct Ion {
+  std::string id;
+  std::string name;
+  int charge = 0;
+  double molar_mass_g_per_mol = 0.0;
+};
+
+/// What one mole of a reagent puts into solution.
+struct Contribution {
+  enum class Kind { kSystem, kIon } kind = Kind::kIon;
+  std::string id;
+  double count = 1.0;
+};
+
+/// A weighable reagent (or a titrant solution). Neutral as a whole.
+struct Reagent {
+  std::string id;
+  std::string name;
+  std::string formula;
+  std::string state = "solid";      ///< solid | liquid | solution
+  double molar_mass_g_per_mol = 0.0;
+  std::vector<Contribution> gives;
+};
+
+/// A buffer choice for screening and recipes.
+struct Buffer {
+  std::string id;
+  std::string name;
+  std::string system;
+  std::vector<std::string> routes;  ///< oral, parenteral, ophthalmic, topical
+  double max_conc_mol_per_L = 0.1;
+  std::string acid_titrant = "HCl";
+  std::string base_titrant = "NaOH";
+  std::string acid_reagent;         ///< e.g. NaH2PO4.2H2O (may be empty)
+  std::string base_reagent;         ///< e.g. Na2HPO4.12H2O (may be empty)
+  bool allows_route(const std::string& route) const;
+};
+
+/// A medium: a named mixture of reagents (water, saline, pharmacopeial buffers).
+struct Medium {
+  std::string id;
+  std::string name;
+  std::string source;
+  std::string nominal_pH;
+  std::vector<std::pair<std::string, double>> reagents_mol_per_L;  ///< reagent id, conc
+};
+
+/// The library: everything the equilibrium may refer to by id.
+struct Library {
+  std::string id;
+  std::string version;
+  std::string name;
+  std::vector<std::string> files;   ///< files it was read from ("<built-in>" for the embedded one)
+  std::map<std::string, Ion> ions;
+  std::map<std::string, AcidBaseSystem> systems;
+  std::map<std::string, Reagent> reagents;
+  std::map<std::string, Buffer> buffers;
+  std::map<std::string, Medium> media;
+
+  const Ion& ion(const std::string& id) const;          ///< throws InputError if unknown
+  const AcidBaseSystem& system(const std::string& id) const;
+  const Reagent& reagent(const std::string& id) const;
+  const Buffer& buffer(const std::string& id) const;
+  const Medium& medium(const std::string& id) const;
+  /// Adds or overrides every entry of `other`.
+  void merge(const Library& other);
+};
+
+/// A salt form of a drug: 1:1 with a strong counterion of the library.
+struct Salt {
+  std::string id;
+  std::string counterion;           ///< library ion id, charge +1 or -1
+  std::optional<double> ksp;        ///< mol^2/L^2 (activity product), at ref_temperature_C
+  std::optional<double> solubility_in_water_mol_per_L;  ///< alternative to ksp
+  std::string solubility_in_water_text;
+  double molar_mass_g_per_mol = 0.0;  ///< 0 when not given (then free + counterion)
+  double ref_temperature_C = 25.0;
+  double dH_kJ_per_mol = 0.0;       ///< enthalpy of dissolution; 0 = Ksp constant
+  SourceLocation where;
+};
+
+/// A measured solubility point (shake-flask).
+struct MeasuredPoint {
+  double pH = 7.0;
+  double solubility_mol_per_L = 0.0;
+  double temperature_C = 25.0;
+  SourceLocation where;
+};
+
+/// A drug substance read from a compound file.
+struct Compound {
+  std::string id;
+  std::string name;
+  std::string description;
+  std::string file;                 ///< the file it was read from
+  double molar_mass_g_per_mol = 0.0;
+  AcidBaseSystem system;            ///< the drug's own acid-base system (id = compound id)
+  bool has_intrinsic_solubility = false;
+  double s0_mol_per_L = 0.0;        ///< intrinsic solubility of the net-neutral form
+  double s0_ref_temperature_C = 25.0;
+  std::optional<double> s0_dH_kJ_per_mol;  ///< enthalpy of solution (absent: S0 as measured)
+  double s0_log_sd = 0.0;
+  std::vector<Salt> salts;
+  std::vector<MeasuredPoint> measured;
+
+  const Salt* salt(const std::string& id) const;   ///< nullptr when unknown
+  /// S0 at temperature T (van 't Hoff with the enthalpy of solution when given).
+  double s0_at(double temperature_C) const;
+};
+
+}  // namespace pkarta
+
+#endif  // PKARTA_MODEL_H_

@@ -1,0 +1,302 @@
+#include "pkarta/analyses/dilute.h"
+
+#include <nlohmann/json.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+#include "pkarta/base/format.h"
+#include "pkarta/chem/mixture_builder.h"
+
+namespace pkarta {
+
+namespace {
+
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+struct SolubilityInMixture {
+  double solubility = kInf;
+  std::string solid = "none";
+};
+
+// The drug's solubility at the pH, ionic strength and counterion concentrations of a mixture
+// with the drug fully dissolved (the model prepared and solved by the caller).
+SolubilityInMixture solubility_in(const Mixture& all, const EquilibriumModel& model, double pH) {
+  SolubilityInMixture out;
+  const DrugAmount& d = *all.drug;
+  const AcidBaseSystem& sys = d.compound.system;
+  const int n = static_cast<int>(sys.pkas.size());
+  double alpha[kMaxPka + 1];
+  model.fractions(-1, pH, alpha);
+  const int jn = sys.neutral_index();
+  if (d.compound.has_intrinsic_solubility && jn >= 0 && alpha[jn] > 0) {
+    out.solubility = d.compound.s0_at(all.temperature_C) / alpha[jn];
+    out.solid = "free";
+  }
+  const double g1sq = model.gamma(1) * model.gamma(-1);
+  for (const Salt& salt : d.compound.salts) {
+    if (!salt.ksp) continue;
+    for (const IonAmount& ion : all.ions) {
+      if (ion.id != salt.counterion || !(ion.conc_mol_per_L > 0)) continue;
+      if (ion.charge != 1 && ion.charge != -1) continue;
+      const int j = sys.z0() + ion.charge;
+      if (j < 0 || j > n || !(alpha[j] > 0)) continue;
+      const double s = salt_ksp_at(salt, all.temperature_C) / (g1sq * alpha[j] * ion.conc_mol_per_L);
+      if (s < out.solubility) {
+        out.solubility = s;
+        out.solid = salt.id;
+      }
+    }
+  }
+  return out;
+}
+
+bool has_system(const Mixture& m, const std::string& id) {
+  for (const SystemAmount& s : m.systems) {
+    if (s.system.id == id && s.total_mol_per_L > 0) return true;
+  }
+  return false;
+}
+
+}  // namespace
+
+bool DilutionOptions::is_valid(std::string* error) const {
+  if (medium_id.empty()) {
+    if (error) *error = "DilutionOptions::medium_id is empty";
+    return false;
+  }
+  if (ratios.empty()) {
+    if (error) *error = "DilutionOptions::ratios is empty";
+    return false;
+  }
+  for (double r : ratios) {
+    if (!(r >= 1.0 && r <= 1e9)) {
+      if (error) *error = "DilutionOptions::ratios has " + sig(r, 4) + ", must be >= 1 (total volume / formulation volume)";
+      return false;
+    }
+  }
+  return true;
+}
+
+Mixture diluted_mixture(const Mixture& formulation, const Library& library, const std::string& medium_id,
+                        double ratio) {
+  if (!(ratio >= 1.0)) {
+    throw InputError("dilution ratio " + sig(ratio, 4) + " is below 1 (ratio = total volume / formulation volume)");
+  }
+  library.medium(medium_id);  // throws for an unknown medium
+  const double f = 1.0 / ratio;
+  Mixture m = formulation;
+  for (SystemAmount& s : m.systems) s.total_mol_per_L *= f;
+  for (IonAmount& i : m.ions) i.conc_mol_per_L *= f;
+  if (m.drug) m.drug->dose_mol_per_L *= f;
+  if (ratio > 1.0) add_medium(m, library, medium_id, 1.0 - f);
+  return m;
+}
+
+DilutionResult analyse_dilution(const Mixture& formulation, const Library& library,
+                                const DilutionOptions& options, std::vector<std::string> inputs) {
+  std::string err;
+  if (!options.is_valid(&err)) throw InputError(err);
+  DilutionResult r;
+  r.inputs = std::move(inputs);
+  const Medium& medium = library.medium(options.medium_id);
+  r.medium_id = medium.id;
+  r.medium_name = medium.name;
+  Mixture form = formulation;
+  if (options.temperature_C) form.temperature_C = *options.temperature_C;
+  r.temperature_C = form.temperature_C;
+  if (form.drug) r.drug_name = form.drug->compound.name;
+  const SolverOptions solver;
+
+  for (double ratio : options.ratios) {
+    DilutionPoint p;
+    p.ratio = ratio;
+    const Mixture mix = diluted_mixture(form, library, options.medium_id, ratio);
+    Mixture all = mix;
+    if (all.drug) all.drug->allow_solids = false;
+    const Equilibrium e = solve(all, solver);
+    if (!e.usable()) {
+      r.message = "the equilibrium at ratio " + sig(ratio, 4) + " did not converge: " + e.message;
+      return r;
+    }
+    p.pH = e.pH;
+    p.ionic_strength_mol_per_L = e.ionic_strength_mol_per_L;
+    p.osmolarity_mOsm_per_L = e.osmolarity_mOsm_per_L;
+    p.mass_residual_rel = e.mass_residual_rel;
+    p.charge_residual_rel = e.charge_residual_rel;
+    p.equilibrium_pH = e.pH;
+    for (const std::string& w : e.warnings) {
+      const std::string tagged = "ratio " + sig(ratio, 4) + ": " + w;
+      if (std::find(r.warnings.begin(), r.warnings.end(), tagged) == r.warnings.end()) r.warnings.push_back(tagged);
+    }
+    if (all.drug) {
+      p.has_drug = true;
+      p.drug_mol_per_L = all.drug->dose_mol_per_L;
+      p.drug_mg_per_mL = p.drug_mol_per_L * all.drug->compound.molar_mass_g_per_mol;
+      EquilibriumModel model(all);
+      const StateSummary s = model.solve(solver, e.pH);
+      const SolubilityInMixture sol = solubility_in(all, model, s.pH);
+      p.solubility_mol_per_L = sol.solubility;
+      p.limiting_solid = sol.solid;
+      p.supersaturation_ratio = std::isfinite(sol.solubility) ? p.drug_mol_per_L / sol.solubility : 0.0;
+      p.risk = p.supersaturation_ratio > 1.0;
+      // The state after precipitation to equilibrium.
+      const Equilibrium eq = solve(mix, solver);
+      if (!eq.usable()) {
+        r.message = "the equilibrium with solids at ratio " + sig(ratio, 4) + " did not converge: " + eq.message;
+        return r;
+      }
+      p.equilibrium_pH = eq.pH;
+      p.equilibrium_dissolved_mol_per_L = eq.drug->dissolved_mol_per_L;
+      p.equilibrium_solid = eq.drug->solid;
+      p.mass_residual_rel = std::max(p.mass_residual_rel, eq.mass_residual_rel);
+      p.charge_residual_rel = std::max(p.charge_residual_rel, eq.charge_residual_rel);
+    }
+    r.points.push_back(p);
+  }
+
+  // The simplifications behind the numbers.
+  r.notes.push_back("ratio = total volume / formulation volume: 1 volume of formulation made up to "
+                    "'ratio' volumes with " + medium.id + " (ratio 1: the formulation itself); volumes "
+                    "are additive and the mixture is well mixed, closed and at equilibrium");
+  if (form.drug) {
+    r.notes.push_back("pH and drug concentration: the whole dose dissolved (nothing precipitates); "
+                      "solubility: of the drug at that pH, ionic strength and counterion "
+                      "concentration, held by the mixture's own composition (free form at S0, a salt "
+                      "at its Ksp); supersaturation ratio = drug / solubility");
+    r.notes.push_back("risk = supersaturation ratio > 1: a thermodynamic driving force for "
+                      "precipitation, not a rate; a supersaturated mixture may stay clear for the "
+                      "infusion or transit time (nucleation and growth are not modelled)");
+  }
+  Mixture med;
+  add_medium(med, library, medium.id);
+  if (has_system(med, "carbonate")) {
+    r.notes.push_back(medium.id + " holds bicarbonate as a closed system: no CO2 exchange with air "
+                      "or lungs, so its pH is not held at a set pCO2; it has no proteins or lipids, "
+                      "so binding of the drug and protein buffering are not modelled");
+  }
+  for (const IonAmount& i : med.ions) {
+    if (i.charge == 0 && i.conc_mol_per_L > 0) {
+      r.notes.push_back(medium.id + ": " + i.id + " is a non-electrolyte; it counts in the "
+                        "osmolarity only, so for acid-base the medium is water");
+    }
+  }
+  if (form.drug) {
+    Mixture undiluted = form;
+    undiluted.drug->allow_solids = false;
+    const Equilibrium e = solve(undiluted, solver);
+    if (e.usable() && e.drug && e.drug->saturation_ratio > 1.0) {
+      r.warnings.push_back("the formulation itself is supersaturated (saturation ratio " +
+                           sig(e.drug->saturation_ratio, 3) + " before dilution)");
+    }
+  }
+  r.converged = true;
+  r.message = "converged";
+  return r;
+}
+
+void write_dilute_text(const DilutionResult& r, std::ostream& out) {
+  out << "Dilution into " << r.medium_name << " (" << r.medium_id << ") at " << fixed(r.temperature_C, 1)
+      << " °C\n";
+  if (!r.inputs.empty()) {
+    out << "  formulation: ";
+    for (std::size_t i = 0; i < r.inputs.size(); ++i) out << (i ? ", " : "") << r.inputs[i];
+    out << "\n";
+  }
+  out << "  ratio = total volume / formulation volume (ratio 10: 1 volume of formulation + 9 of medium)\n\n";
+  const bool drug = !r.points.empty() && r.points.front().has_drug;
+  if (drug) {
+    TextTable t({"ratio", "pH", "drug (mg/mL)", "drug (mol/L)", "solubility (mol/L)", "limited by",
+                 "supersaturation", "risk"});
+    for (const DilutionPoint& p : r.points) {
+      t.add_row({sig(p.ratio, 4), fixed(p.pH, 3), sig(p.drug_mg_per_mL, 3), sig(p.drug_mol_per_L, 3),
+                 std::isfinite(p.solubility_mol_per_L) ? sig(p.solubility_mol_per_L, 3) : "unlimited",
+                 p.limiting_solid, sig(p.supersaturation_ratio, 3), p.risk ? "precipitation risk" : "none"});
+    }
+    t.write(out);
+    bool any = false;
+    for (const DilutionPoint& p : r.points) any = any || p.equilibrium_solid != "none";
+    if (any) {
+      out << "\nAt equilibrium, once the excess has precipitated\n";
+      TextTable e({"ratio", "pH", "dissolved (mol/L)", "solid"});
+      for (const DilutionPoint& p : r.points) {
+        if (p.equilibrium_solid == "none") continue;
+        e.add_row({sig(p.ratio, 4), fixed(p.equilibrium_pH, 3), sig(p.equilibrium_dissolved_mol_per_L, 3),
+                   p.equilibrium_solid});
+      }
+      e.write(out);
+    }
+  } else {
+    TextTable t({"ratio", "pH", "ionic strength (mol/L)", "osmolarity (mOsm/L)"});
+    for (const DilutionPoint& p : r.points) {
+      t.add_row({sig(p.ratio, 4), fixed(p.pH, 3), sig(p.ionic_strength_mol_per_L, 3),
+                 fixed(p.osmolarity_mOsm_per_L, 1)});
+    }
+    t.write(out);
+  }
+  out << "\nNotes\n";
+  for (const std::string& n : r.notes) out << "  - " << n << "\n";
+  if (!r.warnings.empty()) {
+    out << "\nWarnings\n";
+    for (const std::string& w : r.warnings) out << "  - " << w << "\n";
+  }
+  out << "\n" << caution_text() << "\n";
+}
+
+void write_dilute_csv(const DilutionResult& r, std::ostream& out) {
+  write_csv_row(out, {"ratio", "pH", "ionic_strength_mol_per_L", "osmolarity_mOsm_per_L", "drug_mol_per_L",
+                      "drug_mg_per_mL", "solubility_mol_per_L", "limiting_solid", "supersaturation_ratio",
+                      "risk", "equilibrium_pH", "equilibrium_dissolved_mol_per_L", "equilibrium_solid"});
+  for (const DilutionPoint& p : r.points) {
+    const bool d = p.has_drug;
+    write_csv_row(out, {sig(p.ratio, 6), sig(p.pH, 6), sig(p.ionic_strength_mol_per_L, 6),
+                        sig(p.osmolarity_mOsm_per_L, 6), d ? sig(p.drug_mol_per_L, 6) : "",
+                        d ? sig(p.drug_mg_per_mL, 6) : "",
+                        d && std::isfinite(p.solubility_mol_per_L) ? sig(p.solubility_mol_per_L, 6) : "",
+                        d ? p.limiting_solid : "", d ? sig(p.supersaturation_ratio, 6) : "",
+                        d ? (p.risk ? "true" : "false") : "", d ? sig(p.equilibrium_pH, 6) : "",
+                        d ? sig(p.equilibrium_dissolved_mol_per_L, 6) : "", d ? p.equilibrium_solid : ""});
+  }
+}
+
+void write_dilute_json(const DilutionResult& r, std::ostream& out) {
+  using J = nlohmann::ordered_json;
+  auto num = [](double v) { return std::isfinite(v) ? J(v) : J(nullptr); };
+  J j;
+  j["medium"] = r.medium_id;
+  j["temperature_C"] = r.temperature_C;
+  j["ratio_definition"] = "total volume / formulation volume";
+  J pts = J::array();
+  for (const DilutionPoint& p : r.points) {
+    J o;
+    o["ratio"] = p.ratio;
+    o["pH"] = p.pH;
+    o["ionic_strength_mol_per_L"] = p.ionic_strength_mol_per_L;
+    o["osmolarity_mOsm_per_L"] = p.osmolarity_mOsm_per_L;
+    if (p.has_drug) {
+      o["drug_mol_per_L"] = p.drug_mol_per_L;
+      o["drug_mg_per_mL"] = p.drug_mg_per_mL;
+      o["solubility_mol_per_L"] = num(p.solubility_mol_per_L);
+      o["limiting_solid"] = p.limiting_solid;
+      o["supersaturation_ratio"] = p.supersaturation_ratio;
+      o["risk"] = p.risk;
+      o["equilibrium"] = {{"pH", p.equilibrium_pH},
+                          {"dissolved_mol_per_L", p.equilibrium_dissolved_mol_per_L},
+                          {"solid", p.equilibrium_solid}};
+    } else {
+      o["drug_mol_per_L"] = nullptr;
+      o["solubility_mol_per_L"] = nullptr;
+      o["supersaturation_ratio"] = nullptr;
+      o["risk"] = false;
+    }
+    pts.push_back(o);
+  }
+  j["points"] = pts;
+  j["notes"] = r.notes;
+  j["warnings"] = r.warnings;
+  j["caution"] = caution_text();
+  out << j.dump(2) << "\n";
+}
+
+}  // namespace pkarta

@@ -1,0 +1,806 @@
+#include "pkarta/analyses/profile.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <limits>
+#include <nlohmann/json.hpp>
+
+#include "pkarta/base/format.h"
+#include "pkarta/chem/water.h"
+
+namespace pkarta {
+
+const Ion& titrant_strong_ion(const Library& library, const std::string& reagent, int sign) {
+  const Reagent& r = library.reagent(reagent);
+  const Ion* found = nullptr;
+  bool other = false;
+  for (const Contribution& c : r.gives) {
+    if (c.kind == Contribution::Kind::kSystem) {
+      other = true;
+      continue;
+    }
+    const Ion& ion = library.ion(c.id);
+    const bool wanted = sign < 0 ? ion.charge < 0 : ion.charge > 0;
+    if (wanted && !found) found = &ion;
+    else other = true;
+  }
+  if (!found || other) {
+    throw InputError("reagent '" + reagent + "' is not a strong " + (sign < 0 ? "acid" : "base") +
+                     ": a titrant must give one strong " + (sign < 0 ? "anion" : "cation") +
+                     " and nothing else (e.g. " +
+                     (sign < 0 ? "HCl, methanesulfonic-acid" : "NaOH, KOH") + ")");
+  }
+  return *found;
+}
+
+namespace {
+
+double ion_in(const Mixture& m, const std::string& id) {
+  double x = 0.0;
+  for (const IonAmount& i : m.ions) {
+    if (i.id == id) x += i.conc_mol_per_L;
+  }
+  return x;
+}
+
+// The medium alone at the run temperature, with the drug at zero dose so that the model knows
+// its temperature-corrected constants; the drug's solids are handled by the scanner.
+Mixture medium_with_drug(const Compound& compound, const ProfileConditions& c, ActivityModel activity) {
+  Mixture med = c.medium;
+  med.temperature_C = c.temperature_C;
+  med.activity = activity;
+  DrugAmount d;
+  d.compound = compound;
+  d.compound.salts.clear();
+  d.compound.measured.clear();
+  d.dose_mol_per_L = 0.0;
+  d.allow_solids = false;
+  med.drug = d;
+  return med;
+}
+
+// Positive root of zx u^2 + b u + c = 0 (zx = +-1), or a value <= 0 when there is none.
+double positive_root(int zx, double b, double c) {
+  const double p = zx * b, q = zx * c;  // u^2 + p u + q = 0
+  const double disc = p * p - 4.0 * q;
+  if (disc < 0) return -1.0;
+  const double sq = std::sqrt(disc);
+  return p > 0 ? (-2.0 * q) / (p + sq) : 0.5 * (-p + sq);
+}
+
+// Brent's method (zeroin) for f(a), f(b) of opposite sign; absolute tolerance tol in x.
+template <typename F>
+double brent_root(F&& f, double a, double b, double fa, double fb, double tol) {
+  double c = a, fc = fa, d = b - a, e = d;
+  for (int it = 0; it < 200; ++it) {
+    if ((fb > 0) == (fc > 0)) {
+      c = a;
+      fc = fa;
+      d = e = b - a;
+    }
+    if (std::fabs(fc) < std::fabs(fb)) {
+      a = b; b = c; c = a;
+      fa = fb; fb = fc; fc = fa;
+    }
+    const double tol1 = 2.0 * std::numeric_limits<double>::epsilon() * std::fabs(b) + 0.5 * tol;
+    const double xm = 0.5 * (c - b);
+    if (std::fabs(xm) <= tol1 || fb == 0.0) return b;
+    if (std::fabs(e) >= tol1 && std::fabs(fa) > std::fabs(fb)) {
+      double p, q, r;
+      const double s = fb / fa;
+      if (a == c) {
+        p = 2.0 * xm * s;
+        q = 1.0 - s;
+      } else {
+        q = fa / fc;
+        r = fb / fc;
+        p = s * (2.0 * xm * q * (q - r) - (b - a) * (r - 1.0));
+        q = (q - 1.0) * (r - 1.0) * (s - 1.0);
+      }
+      if (p > 0) q = -q;
+      p = std::fabs(p);
+      if (2.0 * p < std::min(3.0 * xm * q - std::fabs(tol1 * q), std::fabs(e * q))) {
+        e = d;
+        d = p / q;
+      } else {
+        d = xm;
+        e = d;
+      }
+    } else {
+      d = xm;
+      e = d;
+    }
+    a = b;
+    fa = fb;
+    b += std::fabs(d) > tol1 ? d : (xm > 0 ? tol1 : -tol1);
+    fb = f(b);
+  }
+  return b;
+}
+
+std::string ph_text(double pH) { return fixed(pH, 2); }
+
+std::string temp_text(double t) { return fixed(t, 1) + " °C"; }
+
+}  // namespace
+
+// ---------------------------------------------------------------------------------------------
+// SolubilityScanner
+
+struct SolubilityScanner::Impl {
+  struct SaltData {
+    bool usable = false;       // Ksp known, counterion monovalent, a species to pair with
+    bool can_limit = false;
+    int js = -1;               // drug species paired with the counterion
+    int zx = 0;                // counterion charge
+    double ksp = 0.0;          // thermodynamic, at the run temperature
+    double x_med = 0.0;        // counterion in the medium, mol/L
+    bool titrant_is_x = false; // the titrant of the counterion's sign gives this very ion
+    std::string id;
+  };
+
+  Impl(const Compound& compound, const Library& library, const ProfileConditions& c)
+      : model(medium_with_drug(compound, c, c.activity)),
+        ideal(medium_with_drug(compound, c, ActivityModel::kIdeal)) {
+    const Ion& a = titrant_strong_ion(library, c.acid_titrant, -1);
+    const Ion& b = titrant_strong_ion(library, c.base_titrant, +1);
+    acid_ion = a.id;
+    acid_charge = a.charge;
+    base_ion = b.id;
+    base_charge = b.charge;
+    davies = c.activity == ActivityModel::kDavies;
+    const AcidBaseSystem& sys = compound.system;
+    n = static_cast<int>(sys.pkas.size());
+    jn = compound.has_intrinsic_solubility ? sys.neutral_index() : -1;
+    s0 = jn >= 0 ? compound.s0_at(c.temperature_C) : 0.0;
+    for (int j = 0; j <= n; ++j) charge[j] = sys.charge_of(j);
+    i0 = model.ionic_strength();
+    for (const Salt& salt : compound.salts) {
+      SaltData s;
+      s.id = salt.id;
+      auto it = library.ions.find(salt.counterion);
+      if (salt.ksp && it != library.ions.end() && (it->second.charge == 1 || it->second.charge == -1)) {
+        s.zx = it->second.charge;
+        s.js = sys.z0() + s.zx;
+        s.usable = s.js >= 0 && s.js <= n;
+        s.ksp = salt_ksp_at(salt, c.temperature_C);
+        s.x_med = ion_in(c.medium, salt.counterion);
+        s.titrant_is_x = (s.zx < 0 && salt.counterion == acid_ion) || (s.zx > 0 && salt.counterion == base_ion);
+        s.can_limit = s.usable && (jn < 0 || s.x_med > 0 || s.titrant_is_x);
+      }
+      salts.push_back(s);
+    }
+  }
+
+  SolubilityAtPh at(double pH);
+
+  EquilibriumModel model;
+  EquilibriumModel ideal;
+  std::string acid_ion, base_ion;
+  int acid_charge = -1, base_charge = 1;
+  bool davies = true;
+  int n = 0;
+  int jn = -1;
+  double s0 = 0.0;
+  double i0 = 0.0;
+  int charge[kMaxPka + 1] = {};
+  std::vector<SaltData> salts;
+};
+
+SolubilityAtPh SolubilityScanner::Impl::at(double pH) {
+  SolubilityAtPh out;
+  out.pH = pH;
+  double alpha[kMaxPka + 1];
+
+  // Ideal Henderson-Hasselbalch curve: S0 * sum_j alpha_j / alpha_n with thermodynamic Ka.
+  ideal.fractions(-1, pH, alpha);
+  out.ideal_solubility_mol_per_L = jn >= 0 ? std::min(s0 / alpha[jn], kSolubilityCap_mol_per_L)
+                                           : kSolubilityCap_mol_per_L;
+  out.salt_saturation_at_free.assign(salts.size(), 0.0);
+
+  double ionic = i0;
+  for (int iter = 0; iter < 200; ++iter) {
+    // Activity coefficients from the current ionic strength (held below 1 mol/L: beyond it
+    // the Davies equation has no meaning and the caller is warned through the ionic strength).
+    model.set_ionic_strength(std::min(ionic, 1.0));
+    const EquilibriumModel::Evaluation med = model.evaluate(pH);  // medium, drug at zero dose
+    const double q_med = med.charge;
+    model.fractions(-1, pH, alpha);
+    double zbar = 0.0, z2bar = 0.0;
+    for (int j = 0; j <= n; ++j) {
+      zbar += charge[j] * alpha[j];
+      z2bar += charge[j] * charge[j] * alpha[j];
+    }
+    const double g1sq = model.gamma(1) * model.gamma(-1);
+
+    double dissolved = kSolubilityCap_mol_per_L;
+    bool capped = true;
+    std::string solid = "none";
+    double salt_counterion = 0.0;  // counterion brought by a dissolving salt (no free form)
+    double tau;                    // titrant, equivalents per litre: > 0 base, < 0 acid
+    if (jn >= 0) {
+      // Excess free form; the salts precipitate from it where their ion product exceeds Ksp.
+      const double d_free = s0 / alpha[jn];
+      if (d_free < kSolubilityCap_mol_per_L) {
+        dissolved = d_free;
+        capped = false;
+        solid = "free";
+      }
+      tau = -(q_med + dissolved * zbar);
+      const double tau_free = -(q_med + d_free * zbar);
+      for (std::size_t k = 0; k < salts.size(); ++k) {
+        const SaltData& s = salts[k];
+        if (!s.usable) continue;
+        const double ksp = s.ksp / g1sq;  // concentration product
+        const double x_free = s.x_med + (s.titrant_is_x && tau_free * s.zx > 0 ? std::fabs(tau_free) : 0.0);
+        const double ratio = alpha[s.js] * d_free * x_free / ksp;
+        out.salt_saturation_at_free[k] = ratio;
+        if (!(ratio > 1.0)) continue;
+        // Salt-limited: dissolved drug D = Ksp'/(alpha_js [X]). When the titrant gives X, the
+        // charge balance fixes [X] = u: zx u^2 + (q_med - zx x_med) u + Ksp' zbar / alpha_js = 0.
+        double d_salt = 0.0, t_salt = 0.0;
+        bool done = false;
+        if (s.titrant_is_x) {
+          const double u = positive_root(s.zx, q_med - s.zx * s.x_med, ksp * zbar / alpha[s.js]);
+          if (u > s.x_med) {
+            d_salt = ksp / (alpha[s.js] * u);
+            t_salt = s.zx * (u - s.x_med);
+            done = true;
+          }
+        }
+        if (!done) {
+          if (!(s.x_med > 0)) continue;
+          d_salt = ksp / (alpha[s.js] * s.x_med);
+          t_salt = -(q_med + d_salt * zbar);
+        }
+        if (d_salt < dissolved) {
+          dissolved = d_salt;
+          solid = s.id;
+          tau = t_salt;
+          capped = false;
+        }
+      }
+    } else {
+      // No free form: the excess solid is a salt, whose counterion enters with the drug.
+      tau = -(q_med + dissolved * zbar);
+      for (const SaltData& s : salts) {
+        if (!s.usable) continue;
+        const double ksp = s.ksp / g1sq;
+        const double c = ksp / alpha[s.js];
+        double d = 0.0, t = 0.0;
+        bool done = false;
+        if (s.titrant_is_x) {  // [X] = u from the charge balance; titrant X = u - x_med - D >= 0
+          const double u = positive_root(s.zx, q_med - s.zx * s.x_med, c * zbar);
+          if (u > 0) {
+            d = c / u;
+            if (u - s.x_med - d >= 0) {
+              t = s.zx * (u - s.x_med - d);
+              done = true;
+            }
+          }
+        }
+        if (!done) {  // [X] = x_med + D: D (x_med + D) = Ksp'/alpha_js
+          d = 2.0 * c / (s.x_med + std::sqrt(s.x_med * s.x_med + 4.0 * c));
+          t = -(q_med + d * zbar + s.zx * d);
+        }
+        if (d < dissolved) {
+          dissolved = d;
+          solid = s.id;
+          tau = t;
+          capped = false;
+          salt_counterion = d;
+        }
+      }
+      // Each salt's ion product over Ksp in the state found (1 for the limiting one).
+      for (std::size_t k = 0; k < salts.size(); ++k) {
+        const SaltData& s = salts[k];
+        if (!s.usable) continue;
+        double x = s.x_med + (s.titrant_is_x && tau * s.zx > 0 ? std::fabs(tau) : 0.0);
+        if (s.id == solid) x += salt_counterion;
+        out.salt_saturation_at_free[k] = alpha[s.js] * dissolved * x * g1sq / s.ksp;
+      }
+    }
+    // Ionic strength of the saturated solution: medium + drug + titrant ion (+ salt counterion).
+    const double tit_z = tau > 0 ? base_charge : -acid_charge;
+    const double i_new = med.ionic_strength + 0.5 * dissolved * z2bar + 0.5 * tit_z * std::fabs(tau) +
+                         0.5 * salt_counterion;
+    out.solubility_mol_per_L = dissolved;
+    out.limiting_solid = solid;
+    out.titrant_mol_per_L = tau;
+    out.capped = capped;
+    out.ionic_strength_mol_per_L = i_new;
+    out.fractions.assign(alpha, alpha + n + 1);
+    if (!davies || std::fabs(i_new - ionic) <= 1e-13 * std::max(i_new, 1e-10) ||
+        (ionic >= 1.0 && i_new >= 1.0)) {
+      break;
+    }
+    ionic = i_new;
+  }
+  return out;
+}
+
+SolubilityScanner::SolubilityScanner(const Compound& compound, const Library& library,
+                                     const ProfileConditions& conditions)
+    : impl_(std::make_unique<Impl>(compound, library, conditions)) {}
+SolubilityScanner::~SolubilityScanner() = default;
+SolubilityScanner::SolubilityScanner(SolubilityScanner&&) noexcept = default;
+SolubilityScanner& SolubilityScanner::operator=(SolubilityScanner&&) noexcept = default;
+
+SolubilityAtPh SolubilityScanner::at(double pH) { return impl_->at(pH); }
+
+bool SolubilityScanner::salt_can_limit(std::size_t k) const {
+  return k < impl_->salts.size() && impl_->salts[k].can_limit;
+}
+
+SolubilityAtPh solubility_at_pH(const Compound& compound, const Library& library, double pH,
+                                const ProfileConditions& conditions) {
+  SolubilityScanner scanner(compound, library, conditions);
+  return scanner.at(pH);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Grid
+
+namespace {
+constexpr double kPhMin = -1.0, kPhMax = 15.0;
+std::string num(double v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%g", v);
+  return buf;
+}
+}  // namespace
+
+bool ProfileGrid::is_valid(std::string* error) const {
+  auto in_range = [](double v) { return std::isfinite(v) && v >= kPhMin && v <= kPhMax; };
+  if (!points_pH.empty()) {
+    if (points_pH.size() > kMaxProfilePoints) {
+      *error = "ProfileGrid::points_pH has " + std::to_string(points_pH.size()) + " values, at most " +
+               std::to_string(kMaxProfilePoints);
+      return false;
+    }
+    for (double v : points_pH) {
+      if (!in_range(v)) {
+        *error = "ProfileGrid::points_pH holds " + num(v) + ", must lie in -1 to 15";
+        return false;
+      }
+    }
+    return true;
+  }
+  if (!in_range(from_pH)) {
+    *error = "ProfileGrid::from_pH = " + num(from_pH) + ", must lie in -1 to 15";
+    return false;
+  }
+  if (!in_range(to_pH)) {
+    *error = "ProfileGrid::to_pH = " + num(to_pH) + ", must lie in -1 to 15";
+    return false;
+  }
+  if (to_pH < from_pH) {
+    *error = "ProfileGrid::to_pH = " + num(to_pH) + " is below from_pH = " + num(from_pH) +
+             ": the pH range is empty";
+    return false;
+  }
+  if (!(std::isfinite(step_pH) && step_pH > 0)) {
+    *error = "ProfileGrid::step_pH = " + num(step_pH) + ", must be > 0";
+    return false;
+  }
+  if ((to_pH - from_pH) / step_pH + 1.0 > static_cast<double>(kMaxProfilePoints)) {
+    *error = "ProfileGrid::step_pH = " + num(step_pH) + " gives more than " +
+             std::to_string(kMaxProfilePoints) + " points";
+    return false;
+  }
+  return true;
+}
+
+std::vector<double> ProfileGrid::values() const {
+  std::vector<double> v;
+  if (!points_pH.empty()) {
+    v = points_pH;
+    std::sort(v.begin(), v.end());
+    v.erase(std::unique(v.begin(), v.end()), v.end());
+    return v;
+  }
+  const long count = static_cast<long>(std::floor((to_pH - from_pH) / step_pH + 1e-9)) + 1;
+  v.reserve(static_cast<std::size_t>(count));
+  for (long i = 0; i < count; ++i) {
+    // Rounded to 1e-10 so that 1 + 3 * 0.05 prints and compares as 1.15.
+    v.push_back(std::round((from_pH + i * step_pH) * 1e10) / 1e10);
+  }
+  return v;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Profile
+
+namespace {
+
+// A reagent of the library that could hold the pH while giving `ion` (for a note).
+std::string titrant_giving(const Library& library, const Ion& ion) {
+  for (const auto& kv : library.reagents) {
+    try {
+      if (titrant_strong_ion(library, kv.first, ion.charge < 0 ? -1 : +1).id == ion.id) return kv.first;
+    } catch (const InputError&) {
+    }
+  }
+  return "";
+}
+
+// "pH a to b" of the points where pred holds (a count and the span).
+template <typename P>
+std::string where_points(const std::vector<ProfilePoint>& pts, P pred, int* count) {
+  double lo = 0, hi = 0;
+  int c = 0;
+  for (const ProfilePoint& p : pts) {
+    if (!pred(p)) continue;
+    if (c == 0) lo = p.pH;
+    hi = p.pH;
+    ++c;
+  }
+  *count = c;
+  return c == 1 ? "pH " + ph_text(lo) : "pH " + ph_text(lo) + " to " + ph_text(hi);
+}
+
+}  // namespace
+
+Profile compute_profile(const Compound& compound, const Library& library,
+                        const ProfileConditions& conditions, const ProfileGrid& grid,
+                        std::vector<std::string> medium_contents) {
+  std::string err;
+  if (!grid.is_valid(&err)) throw InputError(err);
+  SolubilityScanner scanner(compound, library, conditions);
+  const double T = conditions.temperature_C;
+
+  Profile p;
+  p.compound_id = compound.id;
+  p.compound_name = compound.name;
+  p.molar_mass_g_per_mol = compound.molar_mass_g_per_mol;
+  p.temperature_C = T;
+  p.activity = conditions.activity;
+  p.acid_titrant = conditions.acid_titrant;
+  p.acid_ion = titrant_strong_ion(library, conditions.acid_titrant, -1).id;
+  p.base_titrant = conditions.base_titrant;
+  p.base_ion = titrant_strong_ion(library, conditions.base_titrant, +1).id;
+  p.medium_contents = std::move(medium_contents);
+  const AcidBaseSystem& sys = compound.system;
+  const int n = static_cast<int>(sys.pkas.size());
+  const int jn = compound.has_intrinsic_solubility ? sys.neutral_index() : -1;
+  p.s0_mol_per_L = jn >= 0 ? compound.s0_at(T) : 0.0;
+  for (int j = 0; j <= n; ++j) p.species.push_back(sys.species_label(j));
+  for (const Pka& k : sys.pkas) p.pka_at_temperature.push_back(k.at(T));
+
+  const std::vector<double> values = grid.values();
+  p.points.reserve(values.size());
+  for (double v : values) {
+    ProfilePoint pt;
+    static_cast<SolubilityAtPh&>(pt) = scanner.at(v);
+    pt.solubility_mg_per_mL = pt.solubility_mol_per_L * compound.molar_mass_g_per_mol;
+    p.points.push_back(std::move(pt));
+  }
+
+  // pHmax: sign changes of log(saturation ratio at free-form saturation) on a scan of at most
+  // 0.05 pH spacing, refined by Brent's method.
+  const double lo = values.front(), hi = values.back();
+  if (jn >= 0 && !compound.salts.empty()) {
+    std::vector<double> scan_ph;
+    std::vector<std::vector<double>> scan_ratio;
+    bool fine = true;
+    for (std::size_t i = 1; i < values.size(); ++i) fine = fine && values[i] - values[i - 1] <= 0.05 + 1e-9;
+    if (fine) {
+      for (const ProfilePoint& pt : p.points) {
+        scan_ph.push_back(pt.pH);
+        scan_ratio.push_back(pt.salt_saturation_at_free);
+      }
+    } else {
+      const int m = std::max(1, static_cast<int>(std::ceil((hi - lo) / 0.05 - 1e-9)));
+      for (int i = 0; i <= m; ++i) {
+        const double x = lo + (hi - lo) * i / m;
+        scan_ph.push_back(x);
+        scan_ratio.push_back(scanner.at(x).salt_saturation_at_free);
+      }
+    }
+    auto lg = [](double r) { return std::log(std::max(r, 1e-300)); };
+    for (std::size_t k = 0; k < compound.salts.size(); ++k) {
+      const Salt& salt = compound.salts[k];
+      if (!scanner.salt_can_limit(k)) {
+        const Ion& x = library.ion(salt.counterion);
+        const std::string t = titrant_giving(library, x);
+        p.notes.push_back("salt " + salt.id + " cannot limit in this medium: its counterion " + salt.counterion +
+                          " is neither in the medium nor given by the titrants" +
+                          (t.empty() ? std::string() : " (hold the pH with " + t + " to include it)"));
+        continue;
+      }
+      const std::size_t before = p.ph_max.size();
+      for (std::size_t i = 0; i + 1 < scan_ph.size(); ++i) {
+        const double fa = lg(scan_ratio[i][k]), fb = lg(scan_ratio[i + 1][k]);
+        if (!(std::isfinite(fa) && std::isfinite(fb))) continue;
+        double root;
+        if (fa == 0.0) {
+          root = scan_ph[i];
+        } else if ((fa > 0) != (fb > 0) && fb != 0.0) {
+          auto f = [&](double x) { return lg(scanner.at(x).salt_saturation_at_free[k]); };
+          root = brent_root(f, scan_ph[i], scan_ph[i + 1], fa, fb, 1e-10);
+        } else {
+          continue;
+        }
+        const SolubilityAtPh at = scanner.at(root);
+        PhMax m;
+        m.salt = salt.id;
+        m.counterion = salt.counterion;
+        m.pH = root;
+        m.solubility_mol_per_L = jn >= 0 ? std::min(p.s0_mol_per_L / at.fractions[jn], kSolubilityCap_mol_per_L)
+                                         : at.solubility_mol_per_L;
+        for (std::size_t o = 0; o < compound.salts.size(); ++o) {
+          if (o != k && at.salt_saturation_at_free[o] > 1.0 + 1e-9 &&
+              at.salt_saturation_at_free[o] > at.salt_saturation_at_free[k]) {
+            m.on_profile = false;
+          }
+        }
+        p.ph_max.push_back(m);
+      }
+      if (p.ph_max.size() == before) {
+        const bool limits = scan_ratio.front()[k] > 1.0;
+        p.notes.push_back("salt " + salt.id + ": no pHmax between pH " + ph_text(lo) + " and " + ph_text(hi) +
+                          (limits ? " (its ion product exceeds Ksp across the whole range)"
+                                  : " (it does not limit anywhere in that range)"));
+      }
+    }
+  } else if (jn < 0 && !compound.salts.empty()) {
+    p.notes.push_back("the compound has no net-neutral form: the excess solid is a salt itself, its "
+                      "counterion entering with the dissolved drug; pHmax does not apply");
+  }
+
+  for (const Salt& salt : compound.salts) {
+    if (!salt.solubility_in_water_mol_per_L || !salt.ksp) continue;
+    DerivedKsp d;
+    d.salt = salt.id;
+    d.solubility_in_water = salt.solubility_in_water_text;
+    d.solubility_in_water_mol_per_L = *salt.solubility_in_water_mol_per_L;
+    d.reference_temperature_C = salt.ref_temperature_C;
+    d.ksp = *salt.ksp;
+    d.ksp_at_run_temperature = salt_ksp_at(salt, T);
+    p.derived_ksp.push_back(d);
+  }
+
+  // Notes on temperature: constants used as measured.
+  auto differs = [&](double t0) { return std::fabs(t0 - T) > 1e-9; };
+  if (jn >= 0 && !compound.s0_dH_kJ_per_mol && differs(compound.s0_ref_temperature_C)) {
+    p.notes.push_back("S0 used as measured at " + temp_text(compound.s0_ref_temperature_C) +
+                      ": the compound file gives no enthalpy of solution (the profile is at " + temp_text(T) + ")");
+  }
+  for (int i = 0; i < n; ++i) {
+    const Pka& k = sys.pkas[i];
+    if (k.dH_kJ_per_mol == 0.0 && k.dCp_J_per_K_mol == 0.0 && differs(k.ref_temperature_C)) {
+      p.notes.push_back("pKa " + fixed(k.value, 2) + " used as measured at " + temp_text(k.ref_temperature_C) +
+                        ": the compound file gives no enthalpy of ionization");
+    }
+  }
+  for (const Salt& salt : compound.salts) {
+    if (salt.ksp && salt.dH_kJ_per_mol == 0.0 && differs(salt.ref_temperature_C)) {
+      p.notes.push_back("Ksp of " + salt.id + " used as at " + temp_text(salt.ref_temperature_C) +
+                        ": the compound file gives no enthalpy of dissolution");
+    }
+  }
+  p.notes.push_back("the medium's own ions are taken as not depleted by a precipitating salt; the "
+                    "titrant (" + p.acid_titrant + " or " + p.base_titrant + ") is what holds each pH");
+  if (conditions.activity == ActivityModel::kIdeal) {
+    p.notes.push_back("activity coefficients taken as 1 (ideal solution)");
+  }
+
+  int count = 0;
+  std::string span;
+  if (conditions.activity == ActivityModel::kDavies) {
+    span = where_points(p.points, [](const ProfilePoint& x) { return x.ionic_strength_mol_per_L > 0.5; }, &count);
+    if (count > 0) {
+      p.warnings.push_back("ionic strength above 0.5 mol/L at " + std::to_string(count) + " of " +
+                           std::to_string(p.points.size()) + " points (" + span +
+                           "): the Davies equation is outside its range there");
+    }
+  }
+  span = where_points(p.points, [](const ProfilePoint& x) { return x.capped; }, &count);
+  if (count > 0) {
+    p.warnings.push_back("solubility above " + fixed(kSolubilityCap_mol_per_L, 0) + " mol/L at " +
+                         std::to_string(count) + " of " + std::to_string(p.points.size()) + " points (" +
+                         span + "): nothing limits there; reported at the cap");
+  }
+  if (T < 0.0 || T > 60.0) {
+    p.warnings.push_back("temperature " + temp_text(T) +
+                         " is outside 0-60 °C, the validity range of the water and pKa(T) data");
+  }
+  return p;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Writers
+
+namespace {
+
+std::string titrant_cell(const Profile& p, double tau) {
+  if (tau == 0.0) return "-";
+  return (tau > 0 ? p.base_titrant : p.acid_titrant) + " " + sig(std::fabs(tau), 3);
+}
+
+std::string activity_text(ActivityModel a) {
+  return a == ActivityModel::kDavies ? "Davies" : "ideal (activity coefficients 1)";
+}
+
+bool on_interval(double pH, double interval) {
+  if (!(interval > 0)) return true;
+  const double q = pH / interval;
+  return std::fabs(q - std::round(q)) < 1e-6;
+}
+
+}  // namespace
+
+void write_profile_text(const Profile& p, std::ostream& out, double row_interval_pH) {
+  out << "pH-solubility profile of " << p.compound_name << " (" << p.compound_id << ") at "
+      << temp_text(p.temperature_C) << "\n";
+  out << "  contents: ";
+  if (p.medium_contents.empty()) out << "water";
+  for (std::size_t i = 0; i < p.medium_contents.size(); ++i) out << (i ? ", " : "") << p.medium_contents[i];
+  out << "\n  pH held by " << p.acid_titrant << " (" << p.acid_ion << ") or " << p.base_titrant << " ("
+      << p.base_ion << "); excess " << (p.s0_mol_per_L > 0 ? "free form" : "salt (no net-neutral form)")
+      << "; activity: " << activity_text(p.activity)
+      << "; pH = -log10 a(H+)\n";
+  if (p.s0_mol_per_L > 0) {
+    out << "  intrinsic solubility S0 at " << temp_text(p.temperature_C) << ": " << sig(p.s0_mol_per_L, 4)
+        << " mol/L (" << sig(p.s0_mol_per_L * p.molar_mass_g_per_mol, 4) << " mg/mL); free-form molar mass "
+        << fixed(p.molar_mass_g_per_mol, 2) << " g/mol\n";
+  }
+  if (!p.pka_at_temperature.empty()) {
+    out << "  pKa at " << temp_text(p.temperature_C) << ":";
+    for (double k : p.pka_at_temperature) out << " " << fixed(k, 3);
+    out << "\n";
+  }
+  out << "\n";
+  if (!p.ph_max.empty()) {
+    out << "pHmax (free form and salt coexist; below it the salt limits for a base, above it for an acid)\n";
+    TextTable t({"salt", "counterion", "pHmax", "solubility there (mol/L)", "(mg/mL)", "on the profile"});
+    for (const PhMax& m : p.ph_max) {
+      t.add_row({m.salt, m.counterion, fixed(m.pH, 3), sig(m.solubility_mol_per_L, 4),
+                 sig(m.solubility_mol_per_L * p.molar_mass_g_per_mol, 4),
+                 m.on_profile ? "yes" : "no (another salt is less soluble)"});
+    }
+    t.write(out);
+    out << "\n";
+  }
+  if (!p.derived_ksp.empty()) {
+    out << "Ksp derived from the salt's solubility in water (self-consistent; docs/model.md, \"Salts\")\n";
+    TextTable t({"salt", "solubility in water", "(mol/L)", "at (°C)", "Ksp ((mol/L)^2)",
+                 "Ksp at " + fixed(p.temperature_C, 1) + " °C ((mol/L)^2)"});
+    for (const DerivedKsp& d : p.derived_ksp) {
+      t.add_row({d.salt, d.solubility_in_water, sig(d.solubility_in_water_mol_per_L, 4),
+                 fixed(d.reference_temperature_C, 1), sig(d.ksp, 4), sig(d.ksp_at_run_temperature, 4)});
+    }
+    t.write(out);
+    out << "\n";
+  }
+  std::size_t shown = 0;
+  for (const ProfilePoint& pt : p.points) shown += on_interval(pt.pH, row_interval_pH);
+  out << "Profile";
+  if (shown < p.points.size()) {
+    out << " (every " << num(row_interval_pH) << " pH: " << shown << " of " << p.points.size()
+        << " points; --format csv or json gives all, --step or --points prints every row)";
+  }
+  out << "\n";
+  std::vector<std::string> head = {"pH", "S (mol/L)", "S (mg/mL)", "ideal HH S (mol/L)", "limiting solid",
+                                   "I (mol/L)", "acid/base added (mol/L)"};
+  for (const std::string& s : p.species) head.push_back("frac " + s);
+  TextTable t(head);
+  for (const ProfilePoint& pt : p.points) {
+    if (!on_interval(pt.pH, row_interval_pH)) continue;
+    std::vector<std::string> row = {fixed(pt.pH, 2),
+                                    (pt.capped ? ">" : "") + sig(pt.solubility_mol_per_L, 4),
+                                    (pt.capped ? ">" : "") + sig(pt.solubility_mg_per_mL, 4),
+                                    (pt.ideal_solubility_mol_per_L >= kSolubilityCap_mol_per_L ? ">" : "") +
+                                        sig(pt.ideal_solubility_mol_per_L, 4),
+                                    pt.limiting_solid,
+                                    sig(pt.ionic_strength_mol_per_L, 3),
+                                    titrant_cell(p, pt.titrant_mol_per_L)};
+    for (double f : pt.fractions) row.push_back(fixed(f, 4));
+    t.add_row(row);
+  }
+  t.write(out);
+  if (!p.notes.empty()) {
+    out << "\nNotes\n";
+    for (const std::string& s : p.notes) out << "  - " << s << "\n";
+  }
+  if (!p.warnings.empty()) {
+    out << "\n";
+    for (const std::string& w : p.warnings) out << "warning: " << w << "\n";
+  }
+  out << "\n" << caution_text() << "\n";
+}
+
+void write_profile_csv(const Profile& p, std::ostream& out) {
+  std::vector<std::string> head = {"pH", "solubility (mol/L)", "solubility (mg/mL)",
+                                   "ideal HH solubility (mol/L)", "limiting solid", "ionic strength (mol/L)",
+                                   "titrant", "titrant (mol/L)", "capped"};
+  for (const std::string& s : p.species) head.push_back("fraction " + s);
+  write_csv_row(out, head);
+  for (const ProfilePoint& pt : p.points) {
+    std::vector<std::string> row = {fixed(pt.pH, 4),
+                                    sig(pt.solubility_mol_per_L, 7),
+                                    sig(pt.solubility_mg_per_mL, 7),
+                                    sig(pt.ideal_solubility_mol_per_L, 7),
+                                    pt.limiting_solid,
+                                    sig(pt.ionic_strength_mol_per_L, 6),
+                                    pt.titrant_mol_per_L > 0 ? p.base_titrant
+                                                             : (pt.titrant_mol_per_L < 0 ? p.acid_titrant : ""),
+                                    sig(std::fabs(pt.titrant_mol_per_L), 6),
+                                    pt.capped ? "yes" : "no"};
+    for (double f : pt.fractions) row.push_back(sig(f, 6));
+    write_csv_row(out, row);
+  }
+  out << "\r\n";
+  write_csv_row(out, {"salt", "counterion", "pHmax", "solubility at pHmax (mol/L)", "on profile"});
+  for (const PhMax& m : p.ph_max) {
+    write_csv_row(out, {m.salt, m.counterion, fixed(m.pH, 6), sig(m.solubility_mol_per_L, 7),
+                        m.on_profile ? "yes" : "no"});
+  }
+  out << "\r\n";
+  write_csv_row(out, {"salt", "solubility in water", "solubility in water (mol/L)", "temperature (C)",
+                      "derived Ksp ((mol/L)^2)", "Ksp at run temperature ((mol/L)^2)"});
+  for (const DerivedKsp& d : p.derived_ksp) {
+    write_csv_row(out, {d.salt, d.solubility_in_water, sig(d.solubility_in_water_mol_per_L, 7),
+                        fixed(d.reference_temperature_C, 2), sig(d.ksp, 7), sig(d.ksp_at_run_temperature, 7)});
+  }
+  out << "\r\n";
+  write_csv_row(out, {"kind", "text"});
+  write_csv_row(out, {"temperature (C)", fixed(p.temperature_C, 2)});
+  for (const std::string& s : p.notes) write_csv_row(out, {"note", s});
+  for (const std::string& s : p.warnings) write_csv_row(out, {"warning", s});
+  write_csv_row(out, {"caution", caution_text()});
+}
+
+void write_profile_json(const Profile& p, std::ostream& out) {
+  nlohmann::ordered_json j;
+  j["compound"] = {{"id", p.compound_id}, {"name", p.compound_name},
+                   {"molar_mass_g_per_mol", p.molar_mass_g_per_mol}};
+  j["temperature_C"] = p.temperature_C;
+  j["activity_model"] = p.activity == ActivityModel::kDavies ? "davies" : "ideal";
+  j["medium"] = p.medium_contents;
+  j["acid_titrant"] = p.acid_titrant;
+  j["base_titrant"] = p.base_titrant;
+  if (p.s0_mol_per_L > 0) j["s0_mol_per_L"] = p.s0_mol_per_L;
+  else j["s0_mol_per_L"] = nullptr;
+  j["pKa_at_temperature"] = p.pka_at_temperature;
+  j["species"] = p.species;
+  nlohmann::ordered_json pts = nlohmann::ordered_json::array();
+  for (const ProfilePoint& pt : p.points) {
+    pts.push_back({{"pH", pt.pH},
+                   {"solubility_mol_per_L", pt.solubility_mol_per_L},
+                   {"solubility_mg_per_mL", pt.solubility_mg_per_mL},
+                   {"ideal_solubility_mol_per_L", pt.ideal_solubility_mol_per_L},
+                   {"limiting_solid", pt.limiting_solid},
+                   {"ionic_strength_mol_per_L", pt.ionic_strength_mol_per_L},
+                   {"fractions", pt.fractions},
+                   {"titrant_mol_per_L", pt.titrant_mol_per_L},
+                   {"capped", pt.capped}});
+  }
+  j["points"] = pts;
+  nlohmann::ordered_json mx = nlohmann::ordered_json::array();
+  for (const PhMax& m : p.ph_max) {
+    mx.push_back({{"salt", m.salt},
+                  {"pH", m.pH},
+                  {"counterion", m.counterion},
+                  {"solubility_mol_per_L", m.solubility_mol_per_L},
+                  {"on_profile", m.on_profile}});
+  }
+  j["pHmax"] = mx;
+  nlohmann::ordered_json dk = nlohmann::ordered_json::array();
+  for (const DerivedKsp& d : p.derived_ksp) {
+    dk.push_back({{"salt", d.salt},
+                  {"solubility_in_water", d.solubility_in_water},
+                  {"solubility_in_water_mol_per_L", d.solubility_in_water_mol_per_L},
+                  {"temperature_C", d.reference_temperature_C},
+                  {"ksp_mol2_per_L2", d.ksp},
+                  {"ksp_at_run_temperature_mol2_per_L2", d.ksp_at_run_temperature}});
+  }
+  j["derived_ksp"] = dk;
+  j["notes"] = p.notes;
+  j["warnings"] = p.warnings;
+  j["caution"] = caution_text();
+  out << j.dump(2) << "\n";
+}
+
+}  // namespace pkarta

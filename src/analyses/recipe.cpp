@@ -1,0 +1,519 @@
+#include "pkarta/analyses/recipe.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <stdexcept>
+
+#include <nlohmann/json.hpp>
+
+#include "pkarta/base/format.h"
+#include "pkarta/analyses/mix.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/chem/units.h"
+#include "pkarta/chem/water.h"
+
+namespace pkarta {
+
+namespace {
+
+// What one mole of a reagent brings: moles of the buffer's system, and the net charge, the
+// sum of count * z^2 and the number of its strong ions.
+struct ReagentInfo {
+  const Reagent* reagent = nullptr;
+  double n_system = 0.0;
+  double charge = 0.0;
+  double z2 = 0.0;
+  double particles = 0.0;
+};
+
+ReagentInfo reagent_info(const Library& library, const std::string& id, const std::string& system) {
+  ReagentInfo info;
+  info.reagent = &library.reagent(id);
+  for (const Contribution& c : info.reagent->gives) {
+    if (c.kind == Contribution::Kind::kSystem) {
+      if (c.id != system) {
+        throw InputError(SourceLocation{"reagents", 0, 0},
+                         "reagent '" + id + "' gives the " + c.id + " system, not " + system);
+      }
+      info.n_system += c.count;
+    } else {
+      const Ion& ion = library.ion(c.id);
+      info.charge += c.count * ion.charge;
+      info.z2 += c.count * ion.charge * ion.charge;
+      info.particles += c.count;
+    }
+  }
+  return info;
+}
+
+std::string fmt(const char* f, double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, f, v);
+  return buf;
+}
+
+// The unknown amounts for one ionic-strength-consistent solve.
+struct Split {
+  double a = 0.0;        // first reagent, mol/L (two-reagent mode) or the single reagent
+  double b = 0.0;        // second reagent, mol/L (two-reagent mode)
+  double t = 0.0;        // titrant, mol/L (titrant mode)
+  const ReagentInfo* titrant = nullptr;
+  bool converged = false;
+};
+
+class Solver {
+ public:
+  Solver(const Library& library, const RecipeOptions& o, const Buffer& buffer) : options_(o) {
+    alone_.temperature_C = o.temperature_C;
+    alone_.activity = o.activity;
+    alone_.add_system(library.system(buffer.system), o.conc_mol_per_L);
+  }
+
+  // Two reagents A, B: n_a a + n_b b = C and z_a a + z_b b + q + s z_s = 0.
+  Split two(const ReagentInfo& A, const ReagentInfo& B, const ReagentInfo& salt, double s) const {
+    return iterate([&](double q, Split& x) {
+      const double det = A.n_system * B.charge - B.n_system * A.charge;
+      const double rhs = -(q + s * salt.charge);
+      x.a = (options_.conc_mol_per_L * B.charge - B.n_system * rhs) / det;
+      x.b = (A.n_system * rhs - A.charge * options_.conc_mol_per_L) / det;
+      return 0.5 * (std::max(x.a, 0.0) * A.z2 + std::max(x.b, 0.0) * B.z2 + s * salt.z2);
+    });
+  }
+
+  // One reagent R at C / n_R plus the acid or base titrant that closes the charge balance.
+  Split one(const ReagentInfo& R, const ReagentInfo& acid, const ReagentInfo& base, const ReagentInfo& salt,
+            double s) const {
+    return iterate([&](double q, Split& x) {
+      x.a = options_.conc_mol_per_L / R.n_system;
+      const double residual = q + R.charge * x.a + s * salt.charge;  // > 0: anions needed
+      x.titrant = residual > 0 ? &acid : &base;
+      x.t = -residual / x.titrant->charge;
+      return 0.5 * (x.a * R.z2 + x.t * x.titrant->z2 + s * salt.z2);
+    });
+  }
+
+ private:
+  // Fixed point on the ionic strength: `amounts(q, split)` fills the split from the charge q of
+  // the system species (with H+ and OH-) at the target pH and returns the strong ions' share.
+  template <typename F>
+  Split iterate(F&& amounts) const {
+    EquilibriumModel model(alone_);
+    Split x;
+    double ionic = 0.0;
+    for (int it = 0; it < 200; ++it) {
+      model.set_ionic_strength(ionic);
+      const EquilibriumModel::Evaluation ev = model.evaluate(options_.pH);
+      const double i_new = ev.ionic_strength + amounts(ev.charge, x);
+      if (options_.activity == ActivityModel::kIdeal ||
+          std::fabs(i_new - ionic) <= 1e-13 * std::max(i_new, 1e-30)) {
+        x.converged = true;
+        break;
+      }
+      ionic = i_new;
+    }
+    return x;
+  }
+
+  const RecipeOptions& options_;
+  Mixture alone_;
+};
+
+RecipeReagent line(const ReagentInfo& info, const std::string& role, double conc, double volume_L) {
+  RecipeReagent r;
+  r.id = info.reagent->id;
+  r.name = info.reagent->name;
+  r.formula = info.reagent->formula;
+  r.state = info.reagent->state;
+  r.role = role;
+  r.molar_mass_g_per_mol = info.reagent->molar_mass_g_per_mol;
+  r.conc_mol_per_L = conc;
+  r.amount_mol = conc * volume_L;
+  r.mass_g = r.amount_mol * r.molar_mass_g_per_mol;
+  return r;
+}
+
+double ph_of(const Library& library, const std::string& reagent, double conc, const RecipeOptions& o) {
+  Mixture m;
+  m.temperature_C = o.temperature_C;
+  m.activity = o.activity;
+  add_reagent(m, library, reagent, conc);
+  return solve(m).pH;
+}
+
+const char* kTonicityMethod =
+    "NaCl added until the osmolality estimate reaches 290 mOsm/kg: ideal osmolarity of every "
+    "dissolved species x osmotic coefficient 0.93 (NaCl at physiological strength) / density of "
+    "water, solved together with the buffer split. An estimate: the osmolality must be measured "
+    "(freezing-point or vapour-pressure osmometer) and the NaCl adjusted.";
+
+}  // namespace
+
+bool RecipeOptions::is_valid(std::string* error) const {
+  auto fail = [&](const char* field, double v, const char* rule) {
+    *error = std::string("RecipeOptions::") + field + " = " + fmt("%g", v) + ", must be " + rule;
+    return false;
+  };
+  if (buffer.empty()) {
+    *error = "RecipeOptions::buffer is empty, must name a library buffer";
+    return false;
+  }
+  if (!(pH >= 0.0 && pH <= 14.0)) return fail("pH", pH, "within 0 to 14");
+  if (!(conc_mol_per_L > 0.0 && conc_mol_per_L <= 10.0)) return fail("conc_mol_per_L", conc_mol_per_L, "within 0 to 10");
+  if (!(volume_L > 0.0 && std::isfinite(volume_L))) return fail("volume_L", volume_L, "> 0");
+  if (!(temperature_C >= -10.0 && temperature_C <= 100.0)) return fail("temperature_C", temperature_C, "within -10 to 100");
+  if (!(titrant_conc_mol_per_L > 0.0)) return fail("titrant_conc_mol_per_L", titrant_conc_mol_per_L, "> 0");
+  if (reagents.size() > 2) return fail("reagents.size()", static_cast<double>(reagents.size()), "0, 1 or 2");
+  if (use_titrant && reagents.size() == 2) {
+    *error = "RecipeOptions::use_titrant takes one reagent, 2 were given";
+    return false;
+  }
+  return true;
+}
+
+Recipe make_recipe(const Library& library, const RecipeOptions& o) {
+  std::string err;
+  if (!o.is_valid(&err)) throw InputError(err);
+  const Buffer* found = nullptr;
+  try {
+    found = &library.buffer(o.buffer);
+  } catch (const InputError& e) {
+    throw InputError(SourceLocation{"buffer", 0, 0}, e.message());
+  }
+  const Buffer& buffer = *found;
+  Recipe out;
+  out.buffer = buffer.id;
+  out.buffer_name = buffer.name;
+  out.system = buffer.system;
+  out.target_pH = o.pH;
+  out.conc_mol_per_L = o.conc_mol_per_L;
+  out.volume_L = o.volume_L;
+  out.temperature_C = o.temperature_C;
+
+  std::vector<std::string> ids = o.reagents;
+  if (ids.empty()) {
+    if (!buffer.acid_reagent.empty()) ids.push_back(buffer.acid_reagent);
+    if (!buffer.base_reagent.empty() && !(o.use_titrant && !ids.empty())) ids.push_back(buffer.base_reagent);
+  }
+  if (ids.empty()) {
+    throw InputError(SourceLocation{"reagents", 0, 0},
+                     "buffer '" + buffer.id + "' names no reagent in the library; give the reagents to weigh");
+  }
+  std::vector<ReagentInfo> infos;
+  for (const std::string& id : ids) {
+    ReagentInfo info = reagent_info(library, id, buffer.system);
+    if (!(info.n_system > 0)) {
+      throw InputError(SourceLocation{"reagents", 0, 0}, "reagent '" + id + "' does not carry the " +
+                                                             buffer.system + " system of buffer '" + buffer.id + "'");
+    }
+    infos.push_back(info);
+  }
+  const ReagentInfo salt = reagent_info(library, o.tonicity_reagent, buffer.system);
+  if (salt.n_system > 0 || !(salt.particles > 0)) {
+    throw InputError(SourceLocation{"isotonic", 0, 0},
+                     "tonicity reagent '" + o.tonicity_reagent + "' must give strong ions only");
+  }
+  const bool two = infos.size() == 2;
+  ReagentInfo acid, base;
+  if (!two) {
+    acid = reagent_info(library, buffer.acid_titrant, buffer.system);
+    base = reagent_info(library, buffer.base_titrant, buffer.system);
+    if (acid.n_system > 0 || !(acid.charge < 0) || base.n_system > 0 || !(base.charge > 0)) {
+      throw InputError(SourceLocation{"buffer", 0, 0},
+                       "buffer '" + buffer.id + "': its titrants must be a strong acid and a strong base");
+    }
+  } else {
+    // Acid form first: the reagent bringing less positive charge per mole of system.
+    if (infos[0].charge / infos[0].n_system > infos[1].charge / infos[1].n_system) std::swap(infos[0], infos[1]);
+    if (infos[0].charge / infos[0].n_system == infos[1].charge / infos[1].n_system) {
+      throw InputError(SourceLocation{"reagents", 0, 0}, "reagents '" + infos[0].reagent->id + "' and '" + infos[1].reagent->id +
+                       "' bring the same charge per mole of " + buffer.system +
+                       ": give an acid-form and a base-form reagent, or one reagent with a titrant");
+    }
+  }
+
+  Solver solver(library, o, buffer);
+  const double rho = water_density_kg_per_L(o.temperature_C);
+  double s = 0.0;  // tonicity salt, mol/L
+  Split split;
+  Equilibrium e;
+  bool hypertonic = false;
+  for (int round = 0; round < 60; ++round) {
+    split = two ? solver.two(infos[0], infos[1], salt, s) : solver.one(infos[0], acid, base, salt, s);
+    if (!split.converged) throw std::runtime_error("the recipe's ionic strength did not converge");
+    if (two && (split.a < 0 || split.b < 0)) {
+      const double lo = ph_of(library, infos[0].reagent->id, o.conc_mol_per_L / infos[0].n_system, o);
+      const double hi = ph_of(library, infos[1].reagent->id, o.conc_mol_per_L / infos[1].n_system, o);
+      throw InputError(SourceLocation{"pH", 0, 0}, "pH " + fmt("%.2f", o.pH) + " lies outside what " + infos[0].reagent->id + " and " +
+                       infos[1].reagent->id + " alone reach at this strength (pH " + fmt("%.2f", lo) + " to " +
+                       fmt("%.2f", hi) + " at " + fmt("%.1f", o.temperature_C) +
+                       " °C); use one reagent with a titrant instead");
+    }
+    out.reagents.clear();
+    if (two) {
+      out.reagents.push_back(line(infos[0], "acid form", split.a, o.volume_L));
+      out.reagents.push_back(line(infos[1], "base form", split.b, o.volume_L));
+      out.titrant.reset();
+    } else {
+      out.reagents.push_back(line(infos[0], "buffer", split.a, o.volume_L));
+      RecipeTitrant t;
+      t.id = split.titrant->reagent->id;
+      t.name = split.titrant->reagent->name;
+      t.conc_mol_per_L = o.titrant_conc_mol_per_L;
+      t.amount_mol = split.t * o.volume_L;
+      t.volume_mL = 1000.0 * t.amount_mol / t.conc_mol_per_L;
+      out.titrant = t;
+    }
+    if (s > 0) out.reagents.push_back(line(salt, "tonicity", s, o.volume_L));
+    e = solve(recipe_mixture(library, out, o.activity));
+    if (!e.usable()) throw std::runtime_error("the recipe's equilibrium did not converge: " + e.message);
+    if (!o.isotonic) break;
+    // Osmolality estimate phi * osmolarity / rho = target: the salt's particles make up the rest.
+    const double want_mOsm_per_L = kIsotonicTarget_mOsm_per_kg * rho / kOsmoticCoefficient;
+    const double s_new =
+        std::max(0.0, s + (want_mOsm_per_L - e.osmolarity_mOsm_per_L) / 1000.0 / salt.particles);
+    if (s == 0.0 && s_new == 0.0) {
+      hypertonic = true;
+      break;
+    }
+    if (std::fabs(s_new - s) <= 1e-12) break;
+    s = s_new;
+  }
+
+  out.pH = e.pH;
+  out.ionic_strength_mol_per_L = e.ionic_strength_mol_per_L;
+  out.osmolarity_mOsm_per_L = e.osmolarity_mOsm_per_L;
+  out.osmolality_estimate_mOsm_per_kg = kOsmoticCoefficient * e.osmolarity_mOsm_per_L / rho;
+  out.capacity_mol_per_L_per_pH = buffer_capacity(recipe_mixture(library, out, o.activity));
+  out.isotonic = o.isotonic;
+  if (o.isotonic) out.tonicity_method = kTonicityMethod;
+  if (hypertonic) {
+    out.warnings.push_back("the buffer alone is already above 290 mOsm/kg (estimate " +
+                           fmt("%.0f", out.osmolality_estimate_mOsm_per_kg) + "): no NaCl added");
+  }
+  if (std::fabs(out.pH - o.pH) > 1e-6) {
+    out.warnings.push_back("the solved recipe gives pH " + fmt("%.4f", out.pH) + ", not the target");
+  }
+  for (const std::string& w : e.warnings) out.warnings.push_back(w);
+  for (const RecipeReagent& r : out.reagents) {
+    if (r.state == "liquid") {
+      out.notes.push_back(r.id + " is a liquid: weigh it, or convert the mass to a volume with its density");
+    } else if (r.state == "solution") {
+      out.notes.push_back(r.id + " is usually supplied as a solution: the mass is of the pure substance; "
+                          "take the equivalent amount of a stock of known assay");
+    }
+  }
+  if (out.titrant && out.titrant->volume_mL > 0.5 * 1000.0 * o.volume_L) {
+    out.warnings.push_back("the titrant volume exceeds half the final volume: use a stronger titrant");
+  }
+  return out;
+}
+
+Mixture recipe_mixture(const Library& library, const Recipe& recipe, ActivityModel activity) {
+  Mixture m;
+  m.temperature_C = recipe.temperature_C;
+  m.activity = activity;
+  for (const RecipeReagent& r : recipe.reagents) add_reagent(m, library, r.id, r.conc_mol_per_L);
+  if (recipe.titrant && recipe.titrant->amount_mol > 0) {
+    add_reagent(m, library, recipe.titrant->id, recipe.titrant->amount_mol / recipe.volume_L);
+  }
+  return m;
+}
+
+double parse_volume_L(std::string_view text) {
+  std::string_view t = text;
+  while (!t.empty() && (t.front() == ' ' || t.front() == '\t')) t.remove_prefix(1);
+  while (!t.empty() && (t.back() == ' ' || t.back() == '\t')) t.remove_suffix(1);
+  std::size_t i = 0;
+  while (i < t.size() && (std::isdigit(static_cast<unsigned char>(t[i])) || t[i] == '.' || t[i] == '+' ||
+                          t[i] == '-' || ((t[i] == 'e' || t[i] == 'E') && i + 1 < t.size() &&
+                                          (std::isdigit(static_cast<unsigned char>(t[i + 1])) || t[i + 1] == '-')))) {
+    ++i;
+  }
+  std::string_view unit = t.substr(i);
+  while (!unit.empty() && unit.front() == ' ') unit.remove_prefix(1);
+  if (i == 0) {
+    throw InputError("volume \"" + std::string(text) + "\" has no number; expected e.g. 1L or 500mL");
+  }
+  const double v = parse_number(t.substr(0, i), "volume");
+  if (unit.empty()) {
+    throw InputError("volume \"" + std::string(text) + "\" has no unit; expected e.g. 1L or 500mL");
+  }
+  double factor;
+  if (unit == "L" || unit == "l") factor = 1.0;
+  else if (unit == "mL" || unit == "ml") factor = 1e-3;
+  else if (unit == "uL" || unit == "ul" || unit == "\xC2\xB5L") factor = 1e-6;
+  else {
+    throw InputError("unknown volume unit \"" + std::string(unit) + "\" in \"" + std::string(text) +
+                     "\"; expected L, mL or uL");
+  }
+  if (!(v > 0)) throw InputError("volume \"" + std::string(text) + "\" must be > 0");
+  return v * factor;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Writers
+
+namespace {
+
+// Word-wraps `text` at `width` columns, continuation lines indented by `hang` spaces.
+void write_wrapped(std::ostream& out, const std::string& text, std::size_t hang = 0, std::size_t width = 100) {
+  std::size_t i = text.find_first_not_of(' ');
+  if (i == std::string::npos) {
+    out << "\n";
+    return;
+  }
+  out << text.substr(0, i);  // the leading indent
+  std::size_t col = i;
+  bool first = true;
+  while (i < text.size()) {
+    std::size_t j = text.find(' ', i);
+    if (j == std::string::npos) j = text.size();
+    const std::string word = text.substr(i, j - i);
+    if (!word.empty()) {
+      if (!first && col + 1 + word.size() > width) {
+        out << "\n" << std::string(hang, ' ');
+        col = hang;
+      } else if (!first) {
+        out << ' ';
+        ++col;
+      }
+      out << word;
+      col += word.size();
+      first = false;
+    }
+    i = j + 1;
+  }
+  out << "\n";
+}
+
+std::string volume_text(double volume_L) {
+  return volume_L >= 1.0 ? sig(volume_L, 4) + " L" : sig(1000.0 * volume_L, 4) + " mL";
+}
+
+const char* kModelNote =
+    "Computed with Davies activities and thermodynamic pKa corrected to the temperature "
+    "(van 't Hoff); the split is solved so that the equilibrium gives exactly the "
+    "target pH. Osmolarity is ideal; the osmolality estimate (0.93 x osmolarity / density of "
+    "water) must be measured.";
+
+}  // namespace
+
+void write_recipe_text(const Recipe& r, std::ostream& out) {
+  out << "Recipe: " << r.buffer_name << " buffer, pH " << fixed(r.target_pH, 2) << ", "
+      << sig(1000.0 * r.conc_mol_per_L, 4) << " mM " << r.system << ", " << volume_text(r.volume_L) << " at "
+      << fixed(r.temperature_C, 1) << " °C" << (r.isotonic ? ", made isotonic with NaCl" : "") << "\n\n";
+  TextTable t({"reagent", "formula", "role", "M (g/mol)", "amount (mmol)", "mass (g)"});
+  for (const RecipeReagent& x : r.reagents) {
+    t.add_row({x.id, x.formula, x.role, fixed(x.molar_mass_g_per_mol, 3), sig(1000.0 * x.amount_mol, 5),
+               fixed(x.mass_g, x.mass_g < 1 ? 4 : 3)});
+  }
+  t.write(out);
+  if (r.titrant) {
+    out << "\n  titrant: " << sig(r.titrant->volume_mL, 4) << " mL of " << sig(r.titrant->conc_mol_per_L, 3)
+        << " M " << r.titrant->id << " (" << sig(1000.0 * r.titrant->amount_mol, 5) << " mmol)\n";
+  }
+  out << "\nProcedure\n";
+  int step = 0;
+  out << "  " << ++step << ". Weigh the reagents and dissolve them in about 80 % of the final volume of\n"
+      << "     water (carbon dioxide-free for pH work).\n";
+  if (r.titrant) {
+    out << "  " << ++step << ". Add " << sig(r.titrant->volume_mL, 4) << " mL of " << sig(r.titrant->conc_mol_per_L, 3)
+        << " M " << r.titrant->id << ".\n";
+  }
+  out << "  " << ++step << ". Make up to " << volume_text(r.volume_L) << " with water at " << fixed(r.temperature_C, 1)
+      << " °C and mix.\n";
+  out << "  " << ++step << ". Check the pH at " << fixed(r.temperature_C, 1)
+      << " °C with a calibrated pH meter; adjust if needed.\n";
+  out << "\nThe solution as computed\n";
+  TextTable s({"quantity", "value"});
+  s.add_row({"pH", fixed(r.pH, 3)});
+  s.add_row({"ionic strength (mol/L)", sig(r.ionic_strength_mol_per_L, 4)});
+  s.add_row({"buffer capacity (mol/L per pH)", sig(r.capacity_mol_per_L_per_pH, 4)});
+  s.add_row({"osmolarity, ideal (mOsm/L)", fixed(r.osmolarity_mOsm_per_L, 1)});
+  s.add_row({"osmolality estimate (mOsm/kg), to be measured", fixed(r.osmolality_estimate_mOsm_per_kg, 1)});
+  s.write(out);
+  if (!r.notes.empty() || !r.warnings.empty() || r.isotonic) out << "\n";
+  if (r.isotonic) write_wrapped(out, "  tonicity: " + r.tonicity_method, 4);
+  for (const std::string& n : r.notes) write_wrapped(out, "  note: " + n, 4);
+  for (const std::string& w : r.warnings) write_wrapped(out, "  warning: " + w, 4);
+  out << "\n";
+  write_wrapped(out, kModelNote);
+  out << "\n";
+  write_wrapped(out, caution_text());
+}
+
+void write_recipe_csv(const Recipe& r, std::ostream& out) {
+  write_csv_row(out, {"item", "formula", "role", "molar mass (g/mol)", "conc (mol/L)", "amount (mol)", "mass (g)",
+                      "volume (mL)"});
+  for (const RecipeReagent& x : r.reagents) {
+    write_csv_row(out, {x.id, x.formula, x.role, fixed(x.molar_mass_g_per_mol, 4), sig(x.conc_mol_per_L, 8),
+                        sig(x.amount_mol, 8), sig(x.mass_g, 8), ""});
+  }
+  if (r.titrant) {
+    write_csv_row(out, {r.titrant->id + " " + sig(r.titrant->conc_mol_per_L, 3) + " M", "", "titrant", "",
+                        sig(r.titrant->conc_mol_per_L, 6), sig(r.titrant->amount_mol, 8), "",
+                        sig(r.titrant->volume_mL, 8)});
+  }
+  out << "\r\n";
+  write_csv_row(out, {"quantity", "value", "unit"});
+  write_csv_row(out, {"pH", fixed(r.pH, 4), ""});
+  write_csv_row(out, {"temperature", fixed(r.temperature_C, 2), "C"});
+  write_csv_row(out, {"volume", sig(r.volume_L, 6), "L"});
+  write_csv_row(out, {"ionic_strength", sig(r.ionic_strength_mol_per_L, 6), "mol/L"});
+  write_csv_row(out, {"osmolarity", fixed(r.osmolarity_mOsm_per_L, 2), "mOsm/L"});
+  write_csv_row(out, {"osmolality_estimate", fixed(r.osmolality_estimate_mOsm_per_kg, 2), "mOsm/kg (estimate, to be measured)"});
+  write_csv_row(out, {"capacity", sig(r.capacity_mol_per_L_per_pH, 6), "mol/L per pH"});
+  out << "\r\n";
+  write_csv_row(out, {"caution", caution_text()});
+}
+
+void write_recipe_json(const Recipe& r, std::ostream& out) {
+  nlohmann::ordered_json j;
+  j["buffer"] = r.buffer;
+  j["system"] = r.system;
+  j["target_pH"] = r.target_pH;
+  j["conc_mol_per_L"] = r.conc_mol_per_L;
+  j["volume_L"] = r.volume_L;
+  j["temperature_C"] = r.temperature_C;
+  nlohmann::ordered_json reagents = nlohmann::ordered_json::array();
+  for (const RecipeReagent& x : r.reagents) {
+    reagents.push_back({{"id", x.id},
+                        {"name", x.name},
+                        {"formula", x.formula},
+                        {"role", x.role},
+                        {"state", x.state},
+                        {"molar_mass_g_per_mol", x.molar_mass_g_per_mol},
+                        {"conc_mol_per_L", x.conc_mol_per_L},
+                        {"mass_g", x.mass_g},
+                        {"amount_mol", x.amount_mol}});
+  }
+  j["reagents"] = reagents;
+  if (r.titrant) {
+    j["titrant"] = {{"id", r.titrant->id},
+                    {"volume_mL", r.titrant->volume_mL},
+                    {"conc_mol_per_L", r.titrant->conc_mol_per_L},
+                    {"amount_mol", r.titrant->amount_mol}};
+  } else {
+    j["titrant"] = nullptr;
+  }
+  j["pH"] = r.pH;
+  j["ionic_strength_mol_per_L"] = r.ionic_strength_mol_per_L;
+  j["osmolarity_mOsm_per_L"] = r.osmolarity_mOsm_per_L;
+  j["osmolality_estimate_mOsm_per_kg"] = r.osmolality_estimate_mOsm_per_kg;
+  j["capacity_mol_per_L_per_pH"] = r.capacity_mol_per_L_per_pH;
+  if (r.isotonic) {
+    j["isotonic"] = {{"target_mOsm_per_kg", kIsotonicTarget_mOsm_per_kg},
+                     {"osmotic_coefficient", kOsmoticCoefficient},
+                     {"method", r.tonicity_method}};
+  } else {
+    j["isotonic"] = nullptr;
+  }
+  j["notes"] = r.notes;
+  j["warnings"] = r.warnings;
+  j["model"] = kModelNote;
+  j["caution"] = caution_text();
+  out << j.dump(2) << "\n";
+}
+
+}  // namespace pkarta

@@ -1,0 +1,759 @@
+#include "pkarta/analyses/screen.h"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <exception>
+#include <limits>
+#include <mutex>
+#include <thread>
+
+#include <nlohmann/json.hpp>
+
+#include "pkarta/base/format.h"
+#include "pkarta/analyses/mix.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/analyses/profile.h"
+#include "pkarta/chem/units.h"
+#include "pkarta/chem/water.h"
+
+namespace pkarta {
+
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kInf = std::numeric_limits<double>::infinity();
+constexpr double kWalkStepDecades = 0.25;  // step of the downward walk before the bisection
+
+// A titrant reagent: the strong ions one mole of it gives, and their net charge.
+struct Titrant {
+  std::string id;
+  std::vector<IonAmount> ions;  // conc_mol_per_L holds the count per mole of reagent
+  double net_charge = 0.0;      // sum count * charge
+  double z2_sum = 0.0;          // sum count * charge^2 (ionic strength per mole)
+};
+
+Titrant titrant_of(const Library& library, const std::string& reagent_id, int sign,
+                   const std::string& buffer_id) {
+  Titrant t;
+  t.id = reagent_id;
+  const Reagent& r = library.reagent(reagent_id);
+  for (const Contribution& c : r.gives) {
+    if (c.kind == Contribution::Kind::kSystem) {
+      throw InputError("titrant '" + reagent_id + "' of buffer '" + buffer_id +
+                       "' gives an acid-base system; a titrant must give strong ions only");
+    }
+    const Ion& ion = library.ion(c.id);
+    t.ions.push_back({ion.id, ion.charge, c.count});
+    t.net_charge += c.count * ion.charge;
+    t.z2_sum += c.count * ion.charge * ion.charge;
+  }
+  if (!(t.net_charge * sign > 0)) {
+    throw InputError("titrant '" + reagent_id + "' of buffer '" + buffer_id + "' must give a net " +
+                     (sign < 0 ? "anion (an acid titrant such as HCl)" : "cation (a base titrant such as NaOH)"));
+  }
+  return t;
+}
+
+bool within(double pH, double target, double tolerance) {
+  return std::isfinite(pH) && std::fabs(pH - target) <= tolerance;
+}
+
+// One buffer and one dose: a mixture template whose buffer total and titrant amount are set
+// for each concentration tried, so that the bisection builds no strings.
+class BufferRun {
+ public:
+  BufferRun(const Library& library, const Buffer& buffer, const Compound* compound, double dose,
+            const std::string& form, double temperature_C, ActivityModel activity)
+      : buffer_(buffer),
+        acid_(titrant_of(library, buffer.acid_titrant, -1, buffer.id)),
+        base_(titrant_of(library, buffer.base_titrant, +1, buffer.id)),
+        activity_(activity) {
+    const AcidBaseSystem& sys = library.system(buffer.system);
+    alone_.temperature_C = temperature_C;
+    alone_.activity = activity;
+    alone_.add_system(sys, 0.0);
+    mix_ = alone_;
+    for (const Titrant* t : {&acid_, &base_}) {
+      for (const IonAmount& i : t->ions) mix_.add_ion(i.id, i.charge, 0.0);
+    }
+    if (compound && dose > 0) {
+      add_drug(mix_, library, *compound, dose, form);
+      dose0_ = dose;
+    }
+    base_ion_conc_.resize(mix_.ions.size());
+    for (std::size_t k = 0; k < mix_.ions.size(); ++k) base_ion_conc_[k] = mix_.ions[k].conc_mol_per_L;
+  }
+
+  const Buffer& buffer() const { return buffer_; }
+
+  BufferPreparation prepare(double conc, double pH) {
+    BufferPreparation p;
+    p.conc_mol_per_L = conc;
+    p.pH = pH;
+    alone_.systems[0].total_mol_per_L = conc;
+    EquilibriumModel model(alone_);
+    double ionic = 0.0;
+    p.converged = false;
+    for (int it = 0; it < 200; ++it) {
+      model.set_ionic_strength(ionic);
+      const EquilibriumModel::Evaluation ev = model.evaluate(pH);
+      const double q = ev.charge;  // > 0: anions (acid titrant) needed; < 0: cations
+      const Titrant& t = q > 0 ? acid_ : base_;
+      const double amount = -q / t.net_charge;
+      p.titrant = amount > 0 ? t.id : "";
+      p.titrant_mol_per_L = amount > 0 ? amount : 0.0;
+      const double i_new = ev.ionic_strength + 0.5 * t.z2_sum * p.titrant_mol_per_L;
+      p.ionic_strength_mol_per_L = i_new;
+      if (activity_ == ActivityModel::kIdeal ||
+          std::fabs(i_new - ionic) <= 1e-13 * std::max(i_new, 1e-30)) {
+        p.converged = true;
+        break;
+      }
+      ionic = i_new;
+    }
+    return p;
+  }
+
+  // The buffer at `prep` plus the dose (scaled by dose_factor) in the template mixture.
+  const Mixture& mixture(const BufferPreparation& prep, double dose_factor = 1.0) {
+    mix_.systems[0].total_mol_per_L = prep.conc_mol_per_L;
+    for (std::size_t k = 0; k < mix_.ions.size(); ++k) {
+      double c = base_ion_conc_[k] * dose_factor;  // the drug's counterion scales with the dose
+      for (const Titrant* t : {&acid_, &base_}) {
+        if (t->id != prep.titrant) continue;
+        for (const IonAmount& i : t->ions) {
+          if (i.id == mix_.ions[k].id) c += i.conc_mol_per_L * prep.titrant_mol_per_L;
+        }
+        break;
+      }
+      mix_.ions[k].conc_mol_per_L = c;
+    }
+    if (mix_.drug) mix_.drug->dose_mol_per_L = dose0_ * dose_factor;
+    return mix_;
+  }
+
+  // pH after the drug at total buffer concentration conc (NaN when a solve fails).
+  double ph_after(double conc, double target, double guess, double dose_factor = 1.0) {
+    const BufferPreparation prep = prepare(conc, target);
+    if (!prep.converged) return kNaN;
+    EquilibriumModel model(mixture(prep, dose_factor));
+    const StateSummary s = model.solve(options_, guess);
+    return s.converged ? s.pH : kNaN;
+  }
+
+ private:
+  const Buffer& buffer_;
+  Titrant acid_;
+  Titrant base_;
+  ActivityModel activity_;
+  Mixture alone_;
+  Mixture mix_;
+  std::vector<double> base_ion_conc_;
+  double dose0_ = 0.0;
+  SolverOptions options_;
+};
+
+int status_group(ScreenStatus s) {
+  switch (s) {
+    case ScreenStatus::kOk: return 0;
+    case ScreenStatus::kNotAchievable: return 1;
+    case ScreenStatus::kDoseNotSoluble: return 2;
+    case ScreenStatus::kOutsideRange: return 3;
+  }
+  return 4;
+}
+
+const std::vector<std::string>& known_routes() {
+  static const std::vector<std::string> routes = {"any", "oral", "parenteral", "ophthalmic", "topical"};
+  return routes;
+}
+
+void check_job(const ScreenJob& job) {
+  if (!(job.dose_mol_per_L > 0) || !std::isfinite(job.dose_mol_per_L)) {
+    throw InputError(SourceLocation{job.compound.file, 0, 0}, "the dose must be > 0");
+  }
+  if (job.form != "free" && !job.compound.salt(job.form)) {
+    std::string known = "free";
+    for (const Salt& s : job.compound.salts) known += ", " + s.id;
+    throw InputError(SourceLocation{job.compound.file, 0, 0},
+                     "compound '" + job.compound.id + "' has no salt '" + job.form + "' (forms: " + known + ")");
+  }
+}
+
+// Runs body(i) for i in [0, n) on `threads` threads.
+void parallel_for(std::size_t n, int threads, const std::function<void(std::size_t)>& body,
+                  const std::function<void()>& after_each) {
+  if (threads <= 1 || n <= 1) {
+    for (std::size_t i = 0; i < n; ++i) {
+      body(i);
+      if (after_each) after_each();
+    }
+    return;
+  }
+  std::atomic<std::size_t> next{0};
+  std::mutex mutex;
+  std::exception_ptr failure;
+  auto worker = [&] {
+    for (;;) {
+      const std::size_t i = next.fetch_add(1);
+      if (i >= n) return;
+      try {
+        body(i);
+      } catch (...) {
+        std::lock_guard<std::mutex> lock(mutex);
+        if (!failure) failure = std::current_exception();
+        next.store(n);
+        return;
+      }
+      if (after_each) {
+        std::lock_guard<std::mutex> lock(mutex);
+        after_each();
+      }
+    }
+  };
+  std::vector<std::thread> pool;
+  const int count = static_cast<int>(std::min<std::size_t>(n, static_cast<std::size_t>(threads)));
+  pool.reserve(count);
+  for (int t = 0; t < count; ++t) pool.emplace_back(worker);
+  for (std::thread& t : pool) t.join();
+  if (failure) std::rethrow_exception(failure);
+}
+
+}  // namespace
+
+// ---------------------------------------------------------------------------------------------
+
+bool ScreenOptions::is_valid(std::string* error) const {
+  auto fail = [&](const std::string& field, double value, const char* rule) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%g", value);
+    *error = "ScreenOptions::" + field + " = " + buf + ", must be " + rule;
+    return false;
+  };
+  if (!(target_pH >= 0.0 && target_pH <= 14.0)) return fail("target_pH", target_pH, "within 0 to 14");
+  if (!(tolerance_pH > 0.0) || !std::isfinite(tolerance_pH)) return fail("tolerance_pH", tolerance_pH, "> 0");
+  if (!(temperature_C >= -10.0 && temperature_C <= 100.0)) {
+    return fail("temperature_C", temperature_C, "within -10 to 100");
+  }
+  if (!(dose_range_fraction >= 0.0 && dose_range_fraction < 1.0)) {
+    return fail("dose_range_fraction", dose_range_fraction, "within 0 to 1 (0.1 for +/-10 %)");
+  }
+  if (!(min_conc_mol_per_L > 0.0)) return fail("min_conc_mol_per_L", min_conc_mol_per_L, "> 0");
+  if (!(rel_precision > 0.0 && rel_precision <= 1e-3)) {
+    return fail("rel_precision", rel_precision, "within 0 to 1e-3");
+  }
+  if (!(pka_window_pH > 0.0)) return fail("pka_window_pH", pka_window_pH, "> 0");
+  if (std::find(known_routes().begin(), known_routes().end(), route) == known_routes().end()) {
+    *error = "ScreenOptions::route = \"" + route + "\", must be one of any, oral, parenteral, ophthalmic, topical";
+    return false;
+  }
+  return true;
+}
+
+const char* screen_status_name(ScreenStatus status) {
+  switch (status) {
+    case ScreenStatus::kOk: return "ok";
+    case ScreenStatus::kNotAchievable: return "not-achievable";
+    case ScreenStatus::kOutsideRange: return "outside-range";
+    case ScreenStatus::kDoseNotSoluble: return "dose-not-soluble";
+  }
+  return "?";
+}
+
+BufferPreparation prepare_buffer(const Library& library, const Buffer& buffer, double conc_mol_per_L,
+                                 double pH, double temperature_C, ActivityModel activity) {
+  BufferRun run(library, buffer, nullptr, 0.0, "free", temperature_C, activity);
+  return run.prepare(conc_mol_per_L, pH);
+}
+
+Mixture screen_mixture(const Library& library, const Buffer& buffer, const BufferPreparation& prep,
+                       const Compound* compound, double dose_mol_per_L, const std::string& form,
+                       double temperature_C, ActivityModel activity) {
+  Mixture m;
+  m.temperature_C = temperature_C;
+  m.activity = activity;
+  m.add_system(library.system(buffer.system), prep.conc_mol_per_L);
+  if (!prep.titrant.empty() && prep.titrant_mol_per_L > 0) {
+    add_reagent(m, library, prep.titrant, prep.titrant_mol_per_L);
+  }
+  if (compound && dose_mol_per_L > 0) add_drug(m, library, *compound, dose_mol_per_L, form);
+  return m;
+}
+
+double ph_after_drug(const Library& library, const Buffer& buffer, double conc_mol_per_L,
+                     const Compound& compound, double dose_mol_per_L, const std::string& form,
+                     const ScreenOptions& options) {
+  BufferRun run(library, buffer, &compound, dose_mol_per_L, form, options.temperature_C, options.activity);
+  return run.ph_after(conc_mol_per_L, options.target_pH, options.target_pH);
+}
+
+double screen_solubility_at_target(const Library& library, const Compound& compound,
+                                   const ScreenOptions& options) {
+  ProfileConditions cond;
+  cond.temperature_C = options.temperature_C;
+  cond.activity = options.activity;
+  return solubility_at_pH(compound, library, options.target_pH, cond).solubility_mol_per_L;
+}
+
+std::vector<const Buffer*> screen_candidates(const Library& library, const ScreenOptions& options) {
+  if (std::find(known_routes().begin(), known_routes().end(), options.route) == known_routes().end()) {
+    throw InputError("unknown route '" + options.route + "', expected oral, parenteral, ophthalmic, topical or any");
+  }
+  std::vector<const Buffer*> out;
+  if (options.buffers.empty()) {
+    for (const auto& kv : library.buffers) out.push_back(&kv.second);
+  } else {
+    for (const std::string& id : options.buffers) {
+      const Buffer* b = &library.buffer(id);
+      if (std::find(out.begin(), out.end(), b) == out.end()) out.push_back(b);
+    }
+    std::sort(out.begin(), out.end(), [](const Buffer* a, const Buffer* b) { return a->id < b->id; });
+  }
+  out.erase(std::remove_if(out.begin(), out.end(),
+                           [&](const Buffer* b) { return !b->allows_route(options.route); }),
+            out.end());
+  return out;
+}
+
+ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const ScreenJob& job,
+                           double solubility_at_target_mol_per_L, const ScreenOptions& options) {
+  ScreenResult r;
+  r.buffer = buffer.id;
+  r.name = buffer.name;
+  r.routes = buffer.routes;
+  r.max_conc_mol_per_L = buffer.max_conc_mol_per_L;
+  const double target = options.target_pH;
+  const double tol = options.tolerance_pH;
+  const double T = options.temperature_C;
+
+  const AcidBaseSystem& sys = library.system(buffer.system);
+  double nearest = kNaN;
+  for (const Pka& p : sys.pkas) {
+    const double pk = p.at(T);
+    if (!std::isfinite(nearest) || std::fabs(pk - target) < std::fabs(nearest - target)) nearest = pk;
+  }
+  r.nearest_pka = nearest;
+  const bool outside = !(std::fabs(nearest - target) <= options.pka_window_pH);
+
+  BufferRun run(library, buffer, &job.compound, job.dose_mol_per_L, job.form, T, options.activity);
+
+  // Search. Walk down from max-conc in steps of a quarter decade while the drift stays within
+  // the tolerance, then bisect on log C between the last step inside and the first outside.
+  // The drift falls as the buffer grows for the protolytic effect of the dose, but the ionic
+  // strength a salt dose brings also shifts a charged buffer's apparent pKa, so |drift| can
+  // dip through zero at low C; the walk reports the lower end of the range that reaches up
+  // to max-conc, the one that holds when the buffer is made a little stronger.
+  double hi = buffer.max_conc_mol_per_L;
+  double last_pH = run.ph_after(hi, target, target);
+  const bool achievable = within(last_pH, target, tol);
+  if (!std::isfinite(last_pH)) r.warnings.push_back("the equilibrium did not converge at max-conc");
+  if (achievable) {
+    const double floor = std::min(options.min_conc_mol_per_L, hi);
+    const double step = std::pow(10.0, -kWalkStepDecades);
+    double lo = hi;
+    bool found_outside = false;
+    double guess = last_pH;
+    while (lo > floor) {
+      const double next = std::max(lo * step, floor);
+      const double ph = run.ph_after(next, target, guess);
+      if (std::isfinite(ph)) guess = ph;
+      if (!within(ph, target, tol)) {
+        found_outside = true;
+        hi = lo;
+        lo = next;
+        break;
+      }
+      lo = next;
+    }
+    if (!found_outside) {
+      hi = floor;
+      r.min_conc_at_lower_bound = true;
+    } else {
+      while (hi / lo - 1.0 > options.rel_precision) {
+        const double mid = std::sqrt(lo * hi);
+        const double ph = run.ph_after(mid, target, guess);
+        if (std::isfinite(ph)) guess = ph;
+        if (within(ph, target, tol)) hi = mid;
+        else lo = mid;
+      }
+    }
+    r.min_conc_mol_per_L = hi;
+  }
+  r.conc_used_mol_per_L = hi;
+
+  // The final solution at the concentration used.
+  const BufferPreparation prep = run.prepare(hi, target);
+  r.titrant = prep.titrant;
+  r.titrant_mol_per_L = prep.titrant_mol_per_L;
+  const Mixture final_mix = run.mixture(prep);
+  const Equilibrium e = solve(final_mix);
+  if (e.usable()) {
+    r.pH_after_drug = e.pH;
+    r.ionic_strength_mol_per_L = e.ionic_strength_mol_per_L;
+    r.osmolarity_mOsm_per_L = e.osmolarity_mOsm_per_L;
+    if (e.drug) r.drug_solid = e.drug->solid;
+    r.capacity_mol_per_L_per_pH = buffer_capacity(final_mix);
+    for (const std::string& w : e.warnings) r.warnings.push_back(w);
+  } else {
+    r.pH_after_drug = kNaN;
+    r.warnings.push_back("the final equilibrium did not converge");
+  }
+  r.pH_drift = r.pH_after_drug - target;
+  auto ph_at = [&](double temperature_C) {
+    Mixture m = final_mix;
+    m.temperature_C = temperature_C;
+    EquilibriumModel model(m);
+    const StateSummary s = model.solve(SolverOptions{}, r.pH_after_drug);
+    return s.converged ? s.pH : kNaN;
+  };
+  r.pH_at_5C = ph_at(options.low_temperature_C);
+  r.pH_at_40C = ph_at(options.high_temperature_C);
+
+  if (options.dose_range_fraction > 0) {
+    const double f = options.dose_range_fraction;
+    double worst = r.pH_after_drug;
+    for (double k : {-1.0, -0.5, 0.5, 1.0}) {
+      const double ph = run.ph_after(hi, target, r.pH_after_drug, 1.0 + k * f);
+      if (!std::isfinite(ph) || std::fabs(ph - target) > std::fabs(worst - target)) worst = ph;
+    }
+    r.worst_pH_in_dose_range = worst;
+    r.dose_range_within_tolerance = within(worst, target, tol);
+  }
+
+  if (outside) r.status = ScreenStatus::kOutsideRange;
+  else if (solubility_at_target_mol_per_L < job.dose_mol_per_L) r.status = ScreenStatus::kDoseNotSoluble;
+  else if (!achievable) r.status = ScreenStatus::kNotAchievable;
+  else r.status = ScreenStatus::kOk;
+  return r;
+}
+
+void rank_screen_results(std::vector<ScreenResult>& results) {
+  auto key_conc = [](const ScreenResult& r) { return r.min_conc_mol_per_L ? *r.min_conc_mol_per_L : kInf; };
+  auto abs_or_inf = [](double x) { return std::isfinite(x) ? std::fabs(x) : kInf; };
+  std::stable_sort(results.begin(), results.end(), [&](const ScreenResult& a, const ScreenResult& b) {
+    const int ga = status_group(a.status), gb = status_group(b.status);
+    if (ga != gb) return ga < gb;
+    const double ca = key_conc(a), cb = key_conc(b);
+    if (ca != cb) return ca < cb;
+    if (!a.min_conc_mol_per_L) {  // nothing holds the target: closest to it first
+      const double da = abs_or_inf(a.pH_drift), db = abs_or_inf(b.pH_drift);
+      if (da != db) return da < db;
+    }
+    const double ta = abs_or_inf(a.temperature_drift_pH()), tb = abs_or_inf(b.temperature_drift_pH());
+    if (ta != tb) return ta < tb;
+    return a.buffer < b.buffer;
+  });
+}
+
+namespace {
+ScreenReport report_header(const ScreenJob& job, const ScreenOptions& options) {
+  ScreenReport rep;
+  rep.compound_id = job.compound.id;
+  rep.compound_name = job.compound.name;
+  rep.compound_file = job.compound.file;
+  rep.form = job.form;
+  rep.target_pH = options.target_pH;
+  rep.tolerance_pH = options.tolerance_pH;
+  rep.temperature_C = options.temperature_C;
+  rep.low_temperature_C = options.low_temperature_C;
+  rep.high_temperature_C = options.high_temperature_C;
+  rep.dose_mol_per_L = job.dose_mol_per_L;
+  rep.dose_range_fraction = options.dose_range_fraction;
+  rep.route = options.route;
+  return rep;
+}
+
+void check_options(const ScreenOptions& options) {
+  std::string err;
+  if (!options.is_valid(&err)) throw InputError(err);
+}
+}  // namespace
+
+ScreenReport screen(const Library& library, const ScreenJob& job, const ScreenOptions& options) {
+  BatchOptions serial;
+  serial.threads = 1;
+  return screen_batch(library, {job}, options, serial).front();
+}
+
+std::vector<ScreenReport> screen_batch(const Library& library, const std::vector<ScreenJob>& jobs,
+                                       const ScreenOptions& options, const BatchOptions& batch) {
+  check_options(options);
+  for (const ScreenJob& job : jobs) check_job(job);
+  const std::vector<const Buffer*> buffers = screen_candidates(library, options);
+  int threads = batch.threads;
+  if (threads <= 0) threads = std::max(1u, std::thread::hardware_concurrency());
+
+  std::vector<ScreenReport> reports;
+  reports.reserve(jobs.size());
+  for (const ScreenJob& job : jobs) {
+    reports.push_back(report_header(job, options));
+    reports.back().results.resize(buffers.size());
+  }
+  // The solubility at the target first (one per compound), then every (compound, buffer) pair.
+  parallel_for(jobs.size(), threads, [&](std::size_t i) {
+    reports[i].solubility_at_target_mol_per_L = screen_solubility_at_target(library, jobs[i].compound, options);
+  }, nullptr);
+  const std::size_t nb = buffers.size();
+  const std::size_t total = jobs.size() * nb;
+  std::size_t done = 0;
+  parallel_for(total, threads, [&](std::size_t k) {
+    const std::size_t i = k / nb, b = k % nb;
+    reports[i].results[b] = screen_buffer(library, *buffers[b], jobs[i], reports[i].solubility_at_target_mol_per_L, options);
+  }, [&] {
+    ++done;
+    if (batch.progress) batch.progress(done, total);
+  });
+  for (ScreenReport& rep : reports) {
+    rank_screen_results(rep.results);
+    if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
+      rep.warnings.push_back("the dose exceeds the drug's solubility in water at the target pH");
+    }
+  }
+  return reports;
+}
+
+double parse_dose_range(std::string_view text) {
+  std::string_view t = text;
+  while (!t.empty() && t.front() == ' ') t.remove_prefix(1);
+  while (!t.empty() && t.back() == ' ') t.remove_suffix(1);
+  for (std::string_view prefix : {"+/-", "+-", "\xC2\xB1"}) {
+    if (t.substr(0, prefix.size()) == prefix) {
+      t.remove_prefix(prefix.size());
+      break;
+    }
+  }
+  bool percent = false;
+  if (!t.empty() && t.back() == '%') {
+    percent = true;
+    t.remove_suffix(1);
+  }
+  double v;
+  try {
+    v = parse_number(t, "dose range");
+  } catch (const InputError&) {
+    throw InputError("dose range \"" + std::string(text) + "\" is not a number; expected e.g. 10% or 0.1");
+  }
+  if (percent) v /= 100.0;
+  if (!(v >= 0.0 && v < 1.0)) {
+    throw InputError("dose range \"" + std::string(text) + "\" is out of range; expected 0 to 100% (e.g. 10% or 0.1)");
+  }
+  return v;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Writers
+
+namespace {
+
+std::string routes_text(const std::vector<std::string>& routes) {
+  std::string s;
+  for (const std::string& r : routes) s += (s.empty() ? "" : " ") + r;
+  return s;
+}
+
+double osmolality_estimate(double osmolarity_mOsm_per_L, double temperature_C) {
+  return kOsmoticCoefficient * osmolarity_mOsm_per_L / water_density_kg_per_L(temperature_C);
+}
+
+// Word-wraps a paragraph at `width` columns.
+void write_wrapped(std::ostream& out, const std::string& text, std::size_t width = 100) {
+  std::size_t col = 0;
+  std::size_t i = 0;
+  while (i < text.size()) {
+    const std::size_t j = std::min(text.find(' ', i), text.size());
+    const std::string word = text.substr(i, j - i);
+    if (col > 0 && col + 1 + word.size() > width) {
+      out << "\n";
+      col = 0;
+    } else if (col > 0) {
+      out << ' ';
+      ++col;
+    }
+    out << word;
+    col += word.size();
+    i = j + 1;
+  }
+  out << "\n";
+}
+
+bool is_solid_warning(const std::string& w) { return w.rfind("the dose does not dissolve completely", 0) == 0; }
+
+std::string form_text(const ScreenReport& rep) { return rep.form == "free" ? "free form" : rep.form; }
+
+const char* kMethodNote =
+    "Each buffer: its system at total concentration C in the net-neutral form, plus the one "
+    "titrant that brings it alone to the target pH at the run temperature; then the dose (with "
+    "its salt's counterion) is added and the closed system equilibrated, solids allowed. min "
+    "conc: smallest C from 1e-6 M to the buffer's max-conc that holds the target within the "
+    "tolerance; values are at min conc, or at max-conc when none is found. pH at 5 and 40 °C: "
+    "the same totals re-equilibrated. outside-range: no pKa(T) within target +/- 1. "
+    "dose-not-soluble: the dose exceeds the drug's solubility in water at the target pH. "
+    "Davies activities; thermodynamic pKa (I = 0) corrected for temperature by van 't Hoff.";
+
+const char* kOsmolalityNote =
+    "Osmolarity is ideal (sum of dissolved species); osmolality estimate = 0.93 x osmolarity / "
+    "density of water, an estimate that must be measured.";
+
+nlohmann::ordered_json opt_number(const std::optional<double>& v) {
+  if (!v || !std::isfinite(*v)) return nullptr;
+  return *v;
+}
+
+nlohmann::ordered_json number(double v) {
+  if (!std::isfinite(v)) return nullptr;
+  return v;
+}
+
+nlohmann::ordered_json report_json(const ScreenReport& rep) {
+  nlohmann::ordered_json j;
+  j["compound"] = rep.compound_id;
+  j["compound_name"] = rep.compound_name;
+  j["compound_file"] = rep.compound_file;
+  j["form"] = rep.form;
+  j["target_pH"] = rep.target_pH;
+  j["tolerance_pH"] = rep.tolerance_pH;
+  j["temperature_C"] = rep.temperature_C;
+  j["dose_mol_per_L"] = rep.dose_mol_per_L;
+  if (rep.dose_range_fraction > 0) j["dose_range_fraction"] = rep.dose_range_fraction;
+  j["route"] = rep.route;
+  j["solubility_at_target_pH_mol_per_L"] = number(rep.solubility_at_target_mol_per_L);
+  nlohmann::ordered_json results = nlohmann::ordered_json::array();
+  int rank = 0;
+  for (const ScreenResult& r : rep.results) {
+    nlohmann::ordered_json x;
+    x["rank"] = ++rank;
+    x["buffer"] = r.buffer;
+    x["name"] = r.name;
+    x["status"] = screen_status_name(r.status);
+    x["min_conc_mol_per_L"] = opt_number(r.min_conc_mol_per_L);
+    x["min_conc_at_lower_bound"] = r.min_conc_at_lower_bound;
+    x["conc_used_mol_per_L"] = r.conc_used_mol_per_L;
+    x["max_conc_mol_per_L"] = r.max_conc_mol_per_L;
+    x["titrant"] = r.titrant.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.titrant);
+    x["titrant_mol_per_L"] = r.titrant_mol_per_L;
+    x["nearest_pKa"] = number(r.nearest_pka);
+    x["pH_after_drug"] = number(r.pH_after_drug);
+    x["pH_drift"] = number(r.pH_drift);
+    x["capacity_mol_per_L_per_pH"] = number(r.capacity_mol_per_L_per_pH);
+    x["ionic_strength_mol_per_L"] = number(r.ionic_strength_mol_per_L);
+    x["osmolarity_mOsm_per_L"] = number(r.osmolarity_mOsm_per_L);
+    x["osmolality_estimate_mOsm_per_kg"] = number(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C));
+    x["pH_at_5C"] = number(r.pH_at_5C);
+    x["pH_at_40C"] = number(r.pH_at_40C);
+    x["drug_solid"] = r.drug_solid;
+    if (rep.dose_range_fraction > 0) {
+      x["worst_pH_in_dose_range"] = opt_number(r.worst_pH_in_dose_range);
+      x["dose_range_within_tolerance"] = r.dose_range_within_tolerance;
+    }
+    x["routes"] = r.routes;
+    x["warnings"] = r.warnings;
+    results.push_back(x);
+  }
+  j["results"] = results;
+  j["warnings"] = rep.warnings;
+  return j;
+}
+
+}  // namespace
+
+void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  nlohmann::ordered_json j;
+  if (reports.size() == 1) {
+    j = report_json(reports.front());
+  } else {
+    if (!reports.empty()) {
+      j["target_pH"] = reports.front().target_pH;
+      j["tolerance_pH"] = reports.front().tolerance_pH;
+      j["temperature_C"] = reports.front().temperature_C;
+    }
+    nlohmann::ordered_json all = nlohmann::ordered_json::array();
+    for (const ScreenReport& rep : reports) all.push_back(report_json(rep));
+    j["screens"] = all;
+  }
+  j["method"] = kMethodNote;
+  j["osmolality_note"] = kOsmolalityNote;
+  j["caution"] = caution_text();
+  out << j.dump(2) << "\n";
+}
+
+void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  bool first = true;
+  for (const ScreenReport& rep : reports) {
+    if (!first) out << "\n";
+    first = false;
+    out << "Buffer screen: " << rep.compound_name << " (" << rep.compound_id << "), " << form_text(rep)
+        << ", dose " << sig(rep.dose_mol_per_L, 4) << " mol/L\n";
+    out << "  target pH " << fixed(rep.target_pH, 2) << " +/- " << fixed(rep.tolerance_pH, 2) << " at "
+        << fixed(rep.temperature_C, 1) << " °C; route: " << rep.route << "; solubility in water at pH "
+        << fixed(rep.target_pH, 2) << ": " << sig(rep.solubility_at_target_mol_per_L, 3) << " mol/L\n\n";
+    std::vector<std::string> head = {"rank", "buffer", "status", "min conc (mM)", "pH after drug",
+                                     "capacity (mM/pH)", "I (mM)", "osmolarity (mOsm/L)",
+                                     "pH " + fixed(rep.low_temperature_C, 0) + " °C",
+                                     "pH " + fixed(rep.high_temperature_C, 0) + " °C", "drug solid"};
+    const bool dose_range = rep.dose_range_fraction > 0;
+    if (dose_range) head.push_back("worst pH, dose +/-" + fixed(100 * rep.dose_range_fraction, 0) + "%");
+    head.push_back("routes");
+    TextTable t(head);
+    int rank = 0;
+    for (const ScreenResult& r : rep.results) {
+      std::vector<std::string> row = {
+          std::to_string(++rank), r.buffer, screen_status_name(r.status),
+          r.min_conc_mol_per_L ? (r.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *r.min_conc_mol_per_L, 3) : "n/a",
+          fixed(r.pH_after_drug, 3), sig(1e3 * r.capacity_mol_per_L_per_pH, 3),
+          sig(1e3 * r.ionic_strength_mol_per_L, 3), fixed(r.osmolarity_mOsm_per_L, 1),
+          fixed(r.pH_at_5C, 3), fixed(r.pH_at_40C, 3), r.drug_solid};
+      if (dose_range) row.push_back(r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 3) : "n/a");
+      row.push_back(routes_text(r.routes));
+      t.add_row(row);
+    }
+    t.write(out);
+    std::vector<std::string> notes;
+    for (const ScreenResult& r : rep.results) {
+      for (const std::string& w : r.warnings) {
+        if (!is_solid_warning(w)) notes.push_back(r.buffer + ": " + w);  // shown in the solid column
+      }
+    }
+    for (const std::string& w : rep.warnings) notes.push_back(w);
+    if (!notes.empty()) {
+      out << "\n";
+      for (const std::string& n : notes) out << "  warning: " << n << "\n";
+    }
+  }
+  out << "\n";
+  write_wrapped(out, std::string(kMethodNote) +
+                         " \"<\" marks the lower end of the search (the dose alone holds the target). " +
+                         kOsmolalityNote);
+  out << "\n";
+  write_wrapped(out, caution_text());
+}
+
+void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  write_csv_row(out, {"compound", "form", "dose (mol/L)", "target pH", "tolerance (pH)", "temperature (C)",
+                      "rank", "buffer", "status", "min conc (mol/L)", "conc used (mol/L)", "max conc (mol/L)",
+                      "titrant", "titrant (mol/L)", "pH after drug", "pH drift", "capacity (mol/L per pH)",
+                      "ionic strength (mol/L)", "osmolarity (mOsm/L)", "osmolality estimate (mOsm/kg)",
+                      "pH at 5 C", "pH at 40 C", "drug solid", "worst pH in dose range", "routes"});
+  for (const ScreenReport& rep : reports) {
+    int rank = 0;
+    for (const ScreenResult& r : rep.results) {
+      write_csv_row(out, {rep.compound_id, rep.form, sig(rep.dose_mol_per_L, 6), fixed(rep.target_pH, 3),
+                          fixed(rep.tolerance_pH, 3), fixed(rep.temperature_C, 2), std::to_string(++rank),
+                          r.buffer, screen_status_name(r.status),
+                          r.min_conc_mol_per_L ? sig(*r.min_conc_mol_per_L, 6) : "",
+                          sig(r.conc_used_mol_per_L, 6), sig(r.max_conc_mol_per_L, 6), r.titrant,
+                          sig(r.titrant_mol_per_L, 6), fixed(r.pH_after_drug, 4), fixed(r.pH_drift, 4),
+                          sig(r.capacity_mol_per_L_per_pH, 6), sig(r.ionic_strength_mol_per_L, 6),
+                          fixed(r.osmolarity_mOsm_per_L, 2),
+                          fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 2),
+                          fixed(r.pH_at_5C, 4), fixed(r.pH_at_40C, 4), r.drug_solid,
+                          r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 4) : "",
+                          routes_text(r.routes)});
+    }
+  }
+  out << "\r\n";
+  write_csv_row(out, {"caution", caution_text()});
+  write_csv_row(out, {"osmolality", kOsmolalityNote});
+}
+
+}  // namespace pkarta

@@ -1,0 +1,97 @@
+#include "pkarta/chem/model.h"
+
+#include <algorithm>
+#include <cmath>
+
+#include "pkarta/chem/water.h"
+
+namespace pkarta {
+
+double Pka::at(double temperature_C) const {
+  return pk_at_temperature(value, ref_temperature_C, dH_kJ_per_mol, dCp_J_per_K_mol, temperature_C);
+}
+
+int AcidBaseSystem::z0() const {
+  int z = permanent_charge;
+  for (const Pka& p : pkas) z += p.type == GroupType::kBase ? 1 : 0;
+  return z;
+}
+
+int AcidBaseSystem::neutral_index() const {
+  const int j = z0();
+  return (j >= 0 && j <= static_cast<int>(pkas.size())) ? j : -1;
+}
+
+std::string AcidBaseSystem::species_label(int j) const {
+  const int n = static_cast<int>(pkas.size());
+  const int h = n - j;
+  std::string s;
+  if (h > 1) s = "H" + std::to_string(h);
+  else if (h == 1) s = "H";
+  s += "A";
+  const int z = charge_of(j);
+  if (z != 0) {
+    const int m = z < 0 ? -z : z;
+    if (m > 1) s += std::to_string(m);
+    s += z < 0 ? "-" : "+";
+  }
+  return s;
+}
+
+bool Buffer::allows_route(const std::string& route) const {
+  if (route.empty() || route == "any") return true;
+  return std::find(routes.begin(), routes.end(), route) != routes.end();
+}
+
+namespace {
+template <typename T>
+const T& find_or_throw(const std::map<std::string, T>& m, const std::string& id, const char* kind) {
+  auto it = m.find(id);
+  if (it == m.end()) {
+    std::string known;
+    int shown = 0;
+    for (const auto& kv : m) {
+      if (shown++ == 12) { known += ", ..."; break; }
+      known += (known.empty() ? "" : ", ") + kv.first;
+    }
+    throw InputError(std::string("unknown ") + kind + " '" + id + "'" +
+                     (known.empty() ? "" : " (known: " + known + ")"));
+  }
+  return it->second;
+}
+}  // namespace
+
+const Ion& Library::ion(const std::string& id) const { return find_or_throw(ions, id, "ion"); }
+const AcidBaseSystem& Library::system(const std::string& id) const {
+  return find_or_throw(systems, id, "system");
+}
+const Reagent& Library::reagent(const std::string& id) const {
+  return find_or_throw(reagents, id, "reagent");
+}
+const Buffer& Library::buffer(const std::string& id) const { return find_or_throw(buffers, id, "buffer"); }
+const Medium& Library::medium(const std::string& id) const { return find_or_throw(media, id, "medium"); }
+
+void Library::merge(const Library& other) {
+  for (const auto& kv : other.ions) ions[kv.first] = kv.second;
+  for (const auto& kv : other.systems) systems[kv.first] = kv.second;
+  for (const auto& kv : other.reagents) reagents[kv.first] = kv.second;
+  for (const auto& kv : other.buffers) buffers[kv.first] = kv.second;
+  for (const auto& kv : other.media) media[kv.first] = kv.second;
+  files.insert(files.end(), other.files.begin(), other.files.end());
+}
+
+const Salt* Compound::salt(const std::string& id) const {
+  for (const Salt& s : salts) {
+    if (s.id == id) return &s;
+  }
+  return nullptr;
+}
+
+double Compound::s0_at(double temperature_C) const {
+  if (!s0_dH_kJ_per_mol) return s0_mol_per_L;
+  const double T = kelvin(temperature_C);
+  const double T0 = kelvin(s0_ref_temperature_C);
+  return s0_mol_per_L * std::exp(-*s0_dH_kJ_per_mol * 1000.0 / kGasConstant * (1.0 / T - 1.0 / T0));
+}
+
+}  // namespace pkarta

@@ -1,0 +1,79 @@
+#include "pkarta/io/atomic_file.h"
+
+#include <fcntl.h>
+#include <unistd.h>
+
+#include <cerrno>
+#include <cstdio>
+#include <filesystem>
+#include <system_error>
+
+#include "pkarta/base/error.h"
+
+namespace pkarta {
+
+namespace fs = std::filesystem;
+
+void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::string>& inputs) {
+  std::error_code ec;
+  if (!fs::exists(path, ec)) return;
+  for (const std::string& in : inputs) {
+    std::error_code e2;
+    if (fs::equivalent(path, in, e2) && !e2) {
+      throw InputError(SourceLocation{path, 0, 0},
+                       "refusing to overwrite the input file " + in + "; choose another output path");
+    }
+  }
+}
+
+void write_file_atomically(const std::string& path, std::string_view content,
+                           const std::vector<std::string>& inputs_to_protect, bool durable) {
+  refuse_to_overwrite_inputs(path, inputs_to_protect);
+  const fs::path target(path);
+  const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  const std::string base = target.filename().string();
+  auto fail = [&](int err) {
+    throw std::system_error(err, std::generic_category(), "cannot write " + path);
+  };
+  // A fresh name in the same folder (O_EXCL: never reuse another writer's file).
+  std::string tmp;
+  int fd = -1;
+  for (int attempt = 0; attempt < 1000 && fd < 0; ++attempt) {
+    tmp = (dir / ("." + base + "." + std::to_string(::getpid()) + "-" + std::to_string(attempt) + ".tmp")).string();
+    fd = ::open(tmp.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0666);
+    if (fd < 0 && errno != EEXIST) fail(errno);
+  }
+  if (fd < 0) fail(EEXIST);
+  const char* p = content.data();
+  std::size_t left = content.size();
+  while (left > 0) {
+    const ssize_t n = ::write(fd, p, left);
+    if (n < 0) {
+      if (errno == EINTR) continue;
+      const int err = errno;
+      ::close(fd);
+      ::unlink(tmp.c_str());
+      fail(err);
+    }
+    p += n;
+    left -= static_cast<std::size_t>(n);
+  }
+  if (durable && ::fsync(fd) != 0 && errno != EINVAL && errno != EROFS) {
+    const int err = errno;
+    ::close(fd);
+    ::unlink(tmp.c_str());
+    fail(err);
+  }
+  if (::close(fd) != 0) {
+    const int err = errno;
+    ::unlink(tmp.c_str());
+    fail(err);
+  }
+  if (::rename(tmp.c_str(), path.c_str()) != 0) {
+    const int err = errno;
+    ::unlink(tmp.c_str());
+    fail(err);
+  }
+}
+
+}  // namespace pkarta

@@ -1,0 +1,120 @@
+// IUPAC 2002 / NIST primary pH standards rebuilt from built-in reagents by molality.
+//
+// Source of pH(PS): Buck et al., "Measurement of pH. Definition, standards, and procedures
+// (IUPAC Recommendations 2002)", Pure Appl. Chem. 74, 2169 (2002), primary-standard table
+// (grid values recalled [memory]; cross-checked at 25 °C by Staples & Bates 1969, J. Res. NBS
+// 73A, 37 (citrate 3.776, carbonate 10.012, borax 9.180), Hamer, Pinching & Acree 1946 (KHP
+// 4.005), Bower, Paabo & Bates 1961 (7.414 at 25 °C, 7.382 at 38 °C) and Ph. Eur. 5.0
+// Table 2.2.3.-2 to two decimals). The standards are defined on the Bates-Guggenheim
+// convention; pkarta uses Davies for every ion, so the test tolerance is 0.02 pH at 25 °C and
+// 0.03 at 5 and 37 °C.
+//
+// Buffer values: J. A. Dean, Lange's Handbook of Chemistry, 15th ed. (1999), §8.3, text after
+// Table 8.15 (mol/L per pH, two significant figures): tolerance 15 %.
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <cstdio>
+
+#include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/io/xml_input.h"
+
+namespace pkarta {
+namespace {
+
+struct Standard {
+  const char* name;
+  std::vector<std::pair<const char*, double>> molal;  // reagent id, mol/kg
+  double ph5, ph25, ph37;                             // NaN where not defined
+  double capacity;                                    // Lange, mol/L per pH (NaN: not used)
+};
+
+const double kNa = std::nan("");
+
+const std::vector<Standard>& standards() {
+  static const std::vector<Standard> s = {
+      {"KH tartrate (sat. at 25 C, 0.0341 mol/kg)", {{"potassium-hydrogen-tartrate", 0.0341}}, kNa, 3.557, 3.548, 0.027},
+      {"KH2 citrate 0.05 mol/kg", {{"potassium-dihydrogen-citrate", 0.05}}, 3.840, 3.776, 3.756, 0.034},
+      {"KH phthalate 0.05 mol/kg", {{"potassium-hydrogen-phthalate", 0.05}}, 3.998, 4.005, 4.022, 0.016},
+      {"phosphate 0.025/0.025 mol/kg", {{"KH2PO4", 0.025}, {"Na2HPO4", 0.025}}, 6.951, 6.865, 6.841, 0.029},
+      {"phosphate 0.008695/0.03043 mol/kg", {{"KH2PO4", 0.008695}, {"Na2HPO4", 0.03043}}, 7.500, 7.413, 7.386, 0.016},
+      {"borax 0.01 mol/kg", {{"borax", 0.01}}, 9.395, 9.180, 9.088, 0.020},
+      {"carbonate 0.025/0.025 mol/kg", {{"NaHCO3", 0.025}, {"Na2CO3", 0.025}}, 10.245, 10.012, 9.910, 0.029},
+  };
+  return s;
+}
+
+Mixture build(const Library& lib, const Standard& s, double t) {
+  Mixture m;
+  m.temperature_C = t;
+  Amount a;
+  a.unit = AmountUnit::kMolal;
+  for (const auto& [id, molal] : s.molal) {
+    a.value = molal;
+    add_reagent(m, lib, id, reagent_conc_mol_per_L(lib, id, a, t));
+  }
+  return m;
+}
+
+class PrimaryStandards : public ::testing::Test {
+ protected:
+  Library lib_ = builtin_library();
+};
+
+TEST_F(PrimaryStandards, PhAt25CWithin002) {
+  for (const Standard& s : standards()) {
+    const Equilibrium e = solve(build(lib_, s, 25.0));
+    ASSERT_TRUE(e.usable()) << s.name;
+    std::printf("  %-40s 25 C: pkarta %.3f  IUPAC %.3f  (I = %.4f)\n", s.name, e.pH, s.ph25,
+                e.ionic_strength_mol_per_L);
+    EXPECT_NEAR(e.pH, s.ph25, 0.02) << s.name;
+  }
+}
+
+TEST_F(PrimaryStandards, PhAt37CWithin003) {
+  for (const Standard& s : standards()) {
+    const Equilibrium e = solve(build(lib_, s, 37.0));
+    ASSERT_TRUE(e.usable()) << s.name;
+    std::printf("  %-40s 37 C: pkarta %.3f  IUPAC %.3f\n", s.name, e.pH, s.ph37);
+    EXPECT_NEAR(e.pH, s.ph37, 0.03) << s.name;
+  }
+}
+
+TEST_F(PrimaryStandards, PhAt5CWithin003) {
+  for (const Standard& s : standards()) {
+    if (std::isnan(s.ph5)) continue;  // tartrate is defined from 25 °C only
+    const Equilibrium e = solve(build(lib_, s, 5.0));
+    ASSERT_TRUE(e.usable()) << s.name;
+    std::printf("  %-40s  5 C: pkarta %.3f  IUPAC %.3f\n", s.name, e.pH, s.ph5);
+    // KHP at 5 °C: the NBS equations (Hamer 1946, Hetzer 1977) give 4.004-4.005 against the
+    // recalled IUPAC 3.998; check-values suggests 0.008 below 15 °C, inside our 0.03.
+    EXPECT_NEAR(e.pH, s.ph5, 0.03) << s.name;
+  }
+}
+
+TEST_F(PrimaryStandards, BufferValuesMatchLangesHandbook) {
+  for (const Standard& s : standards()) {
+    const Mixture m = build(lib_, s, 25.0);
+    const double beta = buffer_capacity(m);
+    std::printf("  %-40s capacity %.4f  Lange %.3f\n", s.name, beta, s.capacity);
+    // Borax: the model has boric acid and borate only; polyborate ions, which Lange's
+    // measured value includes, are not modelled, and the ideal van Slyke value for 0.04 M
+    // boron at pH = pKa is 0.023. Tolerance 20 % there.
+    const double tol = std::string(s.name).rfind("borax", 0) == 0 ? 0.20 : 0.15;
+    EXPECT_NEAR(beta / s.capacity, 1.0, tol) << s.name;
+  }
+}
+
+TEST_F(PrimaryStandards, ResidualsBelow1e10) {
+  for (const Standard& s : standards()) {
+    for (double t : {5.0, 25.0, 37.0}) {
+      const Equilibrium e = solve(build(lib_, s, t));
+      EXPECT_LT(e.charge_residual_rel, 1e-10) << s.name;
+      EXPECT_LT(e.mass_residual_rel, 1e-10) << s.name;
+    }
+  }
+}
+
+}  // namespace
+}  // namespace pkarta
