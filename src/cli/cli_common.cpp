@@ -1,5 +1,7 @@
 #include "cli_common.h"
 
+#include <filesystem>
+
 #include <iostream>
 #include <sstream>
 
@@ -200,6 +202,19 @@ int guarded(const std::function<int()>& body) {
 
 void print_help(std::ostream& out, const std::string& usage, const po::options_description& desc) {
   out << "usage: " << usage << "\n\n" << desc << "\n";
+}
+
+std::string shipped_compounds_dir() {
+  std::error_code ec;
+  const std::filesystem::path exe = std::filesystem::read_symlink("/proc/self/exe", ec);
+  if (ec) return "";
+  const std::filesystem::path bin = exe.parent_path();
+  for (const auto& candidate : {bin / ".." / "share" / "pkarta" / "compounds", bin / ".." / "compounds"}) {
+    if (std::filesystem::is_regular_file(candidate / "demo-base.xml", ec)) {
+      return candidate.lexically_normal().string();
+    }
+  }
+  return "";
 }
 
 }  // namespace pkarta::cli

@@ -78,6 +78,11 @@ int guarded(const std::function<int()>& body);
 void error(const std::string& message);
 
 /// Usage line and option help.
+/// The demo compounds shipped with pkarta, found from the binary's own location: an installed
+/// copy's PREFIX/share/pkarta/compounds, or the source tree's compounds/ beside build/.
+/// Empty when neither exists. No build path is compiled into the binary.
+std::string shipped_compounds_dir();
+
 void print_help(std::ostream& out, const std::string& usage, const po::options_description& desc);
 
 }  // namespace pkarta::cli

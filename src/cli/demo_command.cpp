@@ -70,7 +70,7 @@ int run_demo(const Args& args) {
       print_help(std::cout, "pkarta demo [--compounds DIR] [--out-dir DIR]", desc);
       return 0;
     }
-    if (!vm_has_dir(dir)) dir = PKARTA_DEFAULT_COMPOUNDS;
+    if (!vm_has_dir(dir) && !shipped_compounds_dir().empty()) dir = shipped_compounds_dir();
     const Library lib = load_libraries(common);
     std::error_code ec;
     std::filesystem::create_directories(out_dir, ec);
