@@ -1,5 +1,7 @@
 #include "pkarta/chem/model.h"
 
+#include "pkarta/base/suggest.h"
+
 #include <algorithm>
 #include <cmath>
 
@@ -49,13 +51,16 @@ const T& find_or_throw(const std::map<std::string, T>& m, const std::string& id,
   auto it = m.find(id);
   if (it == m.end()) {
     std::string known;
+    std::vector<std::string> ids;
     int shown = 0;
     for (const auto& kv : m) {
-      if (shown++ == 12) { known += ", ..."; break; }
-      known += (known.empty() ? "" : ", ") + kv.first;
+      ids.push_back(kv.first);
+      if (shown == 12) known += ", ...";
+      if (shown++ < 12) known += (known.empty() ? "" : ", ") + kv.first;
     }
+    const std::string suggestion = did_you_mean(id, ids);
     throw InputError(std::string("unknown ") + kind + " '" + id + "'" +
-                     (known.empty() ? "" : " (known: " + known + ")"));
+                     (!suggestion.empty() ? suggestion : known.empty() ? "" : " (known: " + known + ")"));
   }
   return it->second;
 }

@@ -19,6 +19,20 @@ std::string_view trim(std::string_view s) {
 }
 }  // namespace
 
+namespace {
+// "2,5" is 2.5 written with a decimal comma: say so rather than only refusing it.
+std::string decimal_comma_hint(std::string_view t) {
+  const auto comma = t.find(',');
+  if (comma == std::string_view::npos || t.find(',', comma + 1) != std::string_view::npos) return "";
+  std::string dotted(t);
+  dotted[comma] = '.';
+  double v = 0.0;
+  const auto [ptr, ec] = std::from_chars(dotted.data(), dotted.data() + dotted.size(), v);
+  if (ec != std::errc() || ptr != dotted.data() + dotted.size()) return "";
+  return " (pkarta reads a decimal point: write " + dotted + ")";
+}
+}  // namespace
+
 double parse_number(std::string_view text, std::string_view what) {
   std::string_view t = trim(text);
   if (!t.empty() && t.front() == '+') t.remove_prefix(1);
@@ -30,7 +44,8 @@ double parse_number(std::string_view text, std::string_view what) {
     throw InputError(std::string(what) + " is out of the range of numbers: \"" + std::string(text) + "\"");
   }
   if (t.empty() || ec != std::errc() || ptr != last) {
-    throw InputError(std::string(what) + " is not a number: \"" + std::string(text) + "\"");
+    throw InputError(std::string(what) + " is not a number: \"" + std::string(text) + "\"" +
+                     decimal_comma_hint(t));
   }
   if (!std::isfinite(v)) {
     throw InputError(std::string(what) + " must be finite: \"" + std::string(text) + "\"");
@@ -77,6 +92,12 @@ Amount parse_amount(std::string_view text) {
   else if (unit == "ug/mL" || unit == "ug/ml" || unit == "\xC2\xB5g/mL") a.unit = AmountUnit::kUgPerMl;
   else if (unit == "%w/v" || unit == "%") a.unit = AmountUnit::kPercentWv;
   else {
+    if (unit.size() > 1 && unit[0] == ',' && std::isdigit(static_cast<unsigned char>(unit[1]))) {
+      std::string dotted(t);
+      dotted[dotted.find(',')] = '.';
+      throw InputError("\"" + std::string(text) + "\" has a decimal comma; pkarta reads a decimal point: write " +
+                       dotted);
+    }
     throw InputError("unknown unit \"" + std::string(unit) + "\" in \"" + std::string(text) +
                      "\"; expected one of M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v");
   }

@@ -7,6 +7,7 @@
 
 #include "pkarta/base/error.h"
 #include "pkarta/base/format.h"
+#include "pkarta/base/suggest.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/io/xml_input.h"
 
@@ -27,7 +28,15 @@ po::variables_map parse(const std::vector<std::string>& args, const po::options_
   parser.options(desc).style(po::command_line_style::default_style &
                              ~po::command_line_style::allow_guessing);
   if (positional) parser.positional(*positional);
-  const po::parsed_options parsed = parser.run();
+  po::parsed_options parsed(&desc);
+  try {
+    parsed = parser.run();
+  } catch (const po::unknown_option& e) {
+    std::vector<std::string> names;
+    for (const auto& o : desc.options()) names.push_back("--" + o->long_name());
+    const std::string given = e.get_option_name();
+    throw po::error(std::string(e.what()) + did_you_mean(given.substr(0, given.find('=')), names));
+  }
   if (!positional) {
     // Without a positional description Boost stores stray words nowhere: refuse them, naming
     // the option before (a value with spaces, such as "25 mM", needs quotes).

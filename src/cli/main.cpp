@@ -1,4 +1,5 @@
 // pkarta: command-line entry point. Parses the command word and hands over.
+#include <algorithm>
 #include <cerrno>
 #include <cstring>
 #include <iostream>
@@ -7,6 +8,8 @@
 
 #include "cli_common.h"
 #include "commands.h"
+#include "pkarta/base/suggest.h"
+#include "pkarta/base/version.h"
 
 namespace {
 
@@ -65,14 +68,17 @@ int main(int argc, char** argv) {
     usage(std::cout);
     return finish(0);
   }
-  if (cmd == "--version") {
-    std::cout << "pkarta " << PKARTA_VERSION << "\n";
+  const pkarta::cli::Args args(argv + 2, argv + argc);
+  // `pkarta --version` and `pkarta COMMAND --version` alike.
+  if (cmd == "--version" || std::find(args.begin(), args.end(), "--version") != args.end()) {
+    std::cout << "pkarta " << pkarta::version() << "\n";
     return finish(0);
   }
-  const pkarta::cli::Args args(argv + 2, argv + argc);
   for (const Command& c : kCommands) {
     if (cmd == c.name) return finish(c.run(args));
   }
-  pkarta::cli::error("unknown command '" + cmd + "' (see pkarta --help)");
+  std::vector<std::string> names;
+  for (const Command& c : kCommands) names.emplace_back(c.name);
+  pkarta::cli::error("unknown command '" + cmd + "'" + pkarta::did_you_mean(cmd, names) + " (see pkarta --help)");
   return pkarta::cli::kExitBadInput;
 }

@@ -139,7 +139,7 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"option", nullptr, "mix --add KH2PO4=25", 2, "--add: amount \"25\" has no unit"},
       {"option", nullptr, "mix --add KH2PO4=mM", 2, "--add: amount \"mM\" has no number"},
       {"option", nullptr, "mix --add KH2PO4=25furlongs", 2, "--add: unknown unit \"furlongs\""},
-      {"option", nullptr, "mix --add NaCl=1,5mM", 2, "--add: unknown unit \",5mM\""},
+      {"option", nullptr, "mix --add NaCl=1,5mM", 2, "has a decimal comma; pkarta reads a decimal point: write 1.5mM"},
       {"option", nullptr, "mix --add KH2PO4=-5mM", 2, "--add: amount \"-5mM\" is negative"},
       {"option", nullptr, "mix --add KH2PO4=nanM", 2, "--add: amount \"nanM\" has no number"},
       {"option", nullptr, "mix --add KH2PO4=1e400M", 2, "--add: amount is out of the range of numbers"},
