@@ -1,6 +1,7 @@
 #include "pkarta/io/atomic_file.h"
 
 #include <fcntl.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <cerrno>
@@ -9,12 +10,20 @@
 #include <system_error>
 
 #include "pkarta/base/error.h"
+#include "pkarta/io/text_file.h"
 
 namespace pkarta {
 
 namespace fs = std::filesystem;
 
 void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::string>& inputs) {
+  // Only a regular file is replaced: renaming over a device, FIFO or folder would destroy it
+  // (as root, `-o /dev/full` once replaced the device node with a file).
+  const std::string kind = non_regular_kind(path);
+  if (!kind.empty()) {
+    throw InputError(SourceLocation{path, 0, 0},
+                     "the output path is " + kind + ", not a regular file; choose a file name");
+  }
   std::error_code ec;
   if (!fs::exists(path, ec)) return;
   for (const std::string& in : inputs) {
@@ -29,7 +38,17 @@ void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::
 void write_file_atomically(const std::string& path, std::string_view content,
                            const std::vector<std::string>& inputs_to_protect, bool durable) {
   refuse_to_overwrite_inputs(path, inputs_to_protect);
-  const fs::path target(path);
+  // A link is followed: the file it points to gets the new content, the link stays.
+  std::string resolved = path;
+  std::error_code link_ec;
+  if (fs::is_symlink(path, link_ec)) {
+    const fs::path real = fs::canonical(path, link_ec);
+    if (!link_ec) resolved = real.string();
+  }
+  // An existing file keeps its permissions and owner.
+  struct stat old_stat {};
+  const bool had_file = ::stat(resolved.c_str(), &old_stat) == 0;
+  const fs::path target(resolved);
   const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
   const std::string base = target.filename().string();
   auto fail = [&](int err) {
@@ -58,6 +77,11 @@ void write_file_atomically(const std::string& path, std::string_view content,
     p += n;
     left -= static_cast<std::size_t>(n);
   }
+  if (had_file) {
+    // Best effort: a user who may not chown keeps the file under their own name.
+    (void)::fchmod(fd, old_stat.st_mode & 07777);
+    if (::fchown(fd, old_stat.st_uid, old_stat.st_gid) != 0) (void)::fchmod(fd, old_stat.st_mode & 0777);
+  }
   if (durable && ::fsync(fd) != 0 && errno != EINVAL && errno != EROFS) {
     const int err = errno;
     ::close(fd);
@@ -69,7 +93,7 @@ void write_file_atomically(const std::string& path, std::string_view content,
     ::unlink(tmp.c_str());
     fail(err);
   }
-  if (::rename(tmp.c_str(), path.c_str()) != 0) {
+  if (::rename(tmp.c_str(), resolved.c_str()) != 0) {
     const int err = errno;
     ::unlink(tmp.c_str());
     fail(err);

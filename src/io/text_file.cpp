@@ -1,30 +1,72 @@
 #include "pkarta/io/text_file.h"
 
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
 #include <cerrno>
 #include <cstring>
-#include <filesystem>
-#include <fstream>
-#include <sstream>
-#include <system_error>
 
 #include "pkarta/base/error.h"
 
 namespace pkarta {
 
+namespace {
+std::string kind_of(mode_t mode) {
+  if (S_ISREG(mode)) return "";
+  if (S_ISDIR(mode)) return "a folder";
+  if (S_ISFIFO(mode)) return "a FIFO (named pipe)";
+  if (S_ISCHR(mode)) return "a character device";
+  if (S_ISBLK(mode)) return "a block device";
+  if (S_ISSOCK(mode)) return "a socket";
+  return "not a regular file";
+}
+
+std::string size_text(std::size_t bytes) { return std::to_string(bytes >> 20) + " MiB"; }
+}  // namespace
+
+std::string non_regular_kind(const std::string& path) {
+  struct stat st {};
+  if (::stat(path.c_str(), &st) != 0) return "";
+  return kind_of(st.st_mode);
+}
+
 std::string read_text_file(const std::string& path) {
-  std::error_code ec;
-  if (std::filesystem::is_directory(path, ec)) {
-    throw InputError(SourceLocation{path, 0, 0}, "cannot read file: it is a folder");
+  const SourceLocation at{path, 0, 0};
+  struct stat st {};
+  if (::stat(path.c_str(), &st) != 0) {
+    throw InputError(at, std::string("cannot read file: ") + std::strerror(errno));
   }
-  std::ifstream in(path, std::ios::binary);
-  if (!in) {
-    throw InputError(SourceLocation{path, 0, 0},
-                     std::string("cannot read file: ") + std::strerror(errno));
+  if (!S_ISREG(st.st_mode)) {
+    throw InputError(at, "cannot read file: it is " + kind_of(st.st_mode) + ", not a regular file");
   }
-  std::ostringstream ss;
-  ss << in.rdbuf();
-  if (in.bad()) throw InputError(SourceLocation{path, 0, 0}, "error while reading file");
-  return ss.str();
+  if (static_cast<std::size_t>(st.st_size) > kMaxInputFileBytes) {
+    throw InputError(at, "file too large: " + size_text(static_cast<std::size_t>(st.st_size)) +
+                             ", inputs are limited to " + size_text(kMaxInputFileBytes));
+  }
+  const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC | O_NONBLOCK);
+  if (fd < 0) throw InputError(at, std::string("cannot read file: ") + std::strerror(errno));
+  std::string text;
+  text.reserve(static_cast<std::size_t>(st.st_size));
+  char buffer[1 << 16];
+  for (;;) {
+    const ssize_t n = ::read(fd, buffer, sizeof buffer);
+    if (n < 0) {
+      if (errno == EINTR) continue;
+      const int err = errno;
+      ::close(fd);
+      throw InputError(at, std::string("error while reading file: ") + std::strerror(err));
+    }
+    if (n == 0) break;
+    text.append(buffer, static_cast<std::size_t>(n));
+    // A file that grows while it is read is held to the same limit.
+    if (text.size() > kMaxInputFileBytes) {
+      ::close(fd);
+      throw InputError(at, "file too large: inputs are limited to " + size_text(kMaxInputFileBytes));
+    }
+  }
+  ::close(fd);
+  return text;
 }
 
 }  // namespace pkarta

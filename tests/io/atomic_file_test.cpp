@@ -2,6 +2,9 @@
 #include "pkarta/io/atomic_file.h"
 
 #include <gtest/gtest.h>
+#include <iterator>
+#include <sys/sysmacros.h>
+#include <sys/stat.h>
 
 #include <filesystem>
 #include <fstream>
@@ -71,15 +74,15 @@ TEST(AtomicFile, MissingFolderIsASystemErrorNamingThePath) {
   }
 }
 
-TEST(AtomicFile, TargetThatIsAFolderFailsAndLeavesNoTemporary) {
+TEST(AtomicFile, TargetThatIsAFolderIsRefusedAndLeavesNoTemporary) {
   const std::string dir = fresh_dir("folder");
   const std::string path = dir + "/out.html";
   fs::create_directories(path + "/inside");
   try {
     pkarta::write_file_atomically(path, "new");
-    FAIL() << "expected std::system_error";
-  } catch (const std::system_error& e) {
-    EXPECT_EQ(std::string(e.what()).rfind("cannot write " + path + ": ", 0), 0u) << e.what();
+    FAIL() << "expected InputError";
+  } catch (const pkarta::InputError& e) {
+    EXPECT_NE(std::string(e.what()).find("is a folder, not a regular file"), std::string::npos) << e.what();
   }
   int entries = 0;
   for (const auto& e : fs::directory_iterator(dir)) {
@@ -87,6 +90,40 @@ TEST(AtomicFile, TargetThatIsAFolderFailsAndLeavesNoTemporary) {
     EXPECT_EQ(e.path().filename(), "out.html");
   }
   EXPECT_EQ(entries, 1);
+  EXPECT_TRUE(fs::is_directory(path + "/inside"));
+}
+
+// A FIFO and a device node made by the test in its own folder are refused and left as they
+// are (renaming over them would destroy them; as root even /dev/full once).
+TEST(AtomicFile, FifoAndDeviceNodesAreRefusedAndKept) {
+  const std::string dir = fresh_dir("nodes");
+  const std::string fifo = dir + "/pipe";
+  ASSERT_EQ(::mkfifo(fifo.c_str(), 0600), 0);
+  EXPECT_THROW(pkarta::write_file_atomically(fifo, "new"), pkarta::InputError);
+  EXPECT_TRUE(fs::is_fifo(fifo));
+  const std::string device = dir + "/null";
+  if (::mknod(device.c_str(), S_IFCHR | 0666, makedev(1, 3)) == 0) {  // as root only
+    EXPECT_THROW(pkarta::write_file_atomically(device, "new"), pkarta::InputError);
+    EXPECT_TRUE(fs::is_character_file(device));
+  }
+}
+
+TEST(AtomicFile, OverwrittenFileKeepsItsModeAndALinkStaysALink) {
+  const std::string dir = fresh_dir("mode");
+  const std::string path = dir + "/private.xml";
+  { std::ofstream(path) << "old"; }
+  ASSERT_EQ(::chmod(path.c_str(), 0600), 0);
+  pkarta::write_file_atomically(path, "new");
+  struct stat st {};
+  ASSERT_EQ(::stat(path.c_str(), &st), 0);
+  EXPECT_EQ(st.st_mode & 0777, 0600u);
+  const std::string link = dir + "/link.xml";
+  fs::create_symlink("private.xml", link);
+  pkarta::write_file_atomically(link, "newer");
+  EXPECT_TRUE(fs::is_symlink(link));
+  std::ifstream in(path);
+  std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  EXPECT_EQ(text, "newer");
 }
 
 }  // namespace

@@ -12,8 +12,10 @@ namespace pkarta {
 /// renamed over `path` (rename is atomic within one file system on POSIX), so `path` holds
 /// either its old content or the whole new one, whatever interrupts the program. With
 /// `durable` the file is also fsync'ed before the rename, so the new content survives a power
-/// cut (this costs some milliseconds per file on ordinary disks). The new file gets mode 0666
-/// less the umask.
+/// cut (this costs some milliseconds per file on ordinary disks). A new file gets mode 0666
+/// less the umask; an existing one keeps its mode and owner; a symbolic link is followed (the
+/// file it names is replaced, the link stays). A path naming a folder, device, FIFO or socket
+/// is refused with InputError (never replaced).
 ///
 /// Throws InputError naming `path` when it is the same file as one of `inputs_to_protect`
 /// ("refusing to overwrite the input file compounds/x.xml"), and std::system_error when the
@@ -25,8 +27,9 @@ namespace pkarta {
 void write_file_atomically(const std::string& path, std::string_view content,
                            const std::vector<std::string>& inputs_to_protect = {}, bool durable = false);
 
-/// Throws InputError when `path` names an existing file that is one of `inputs`
-/// (same file after resolving links and relative paths).
+/// Throws InputError when `path` names an existing file that is one of `inputs` (same file
+/// after resolving links and relative paths), or names a folder, device, FIFO or socket.
+/// Commands call it before they compute, so a bad output path costs nothing and writes nothing.
 void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::string>& inputs);
 
 }  // namespace pkarta
