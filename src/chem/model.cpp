@@ -52,14 +52,14 @@ const T& find_or_throw(const std::map<std::string, T>& m, const std::string& id,
   if (it == m.end()) {
     std::string known;
     std::vector<std::string> ids;
-    int shown = 0;
+    int listed = 0;
     for (const auto& kv : m) {
       ids.push_back(kv.first);
-      if (shown == 12) known += ", ...";
-      if (shown++ < 12) known += (known.empty() ? "" : ", ") + kv.first;
+      if (listed == 12) known += ", ...";
+      if (listed++ < 12) known += (known.empty() ? "" : ", ") + kv.first;
     }
     const std::string suggestion = did_you_mean(id, ids);
-    throw InputError(std::string("unknown ") + kind + " '" + id + "'" +
+    throw InputError(std::string("unknown ") + kind + " '" + shown(id) + "'" +
                      (!suggestion.empty() ? suggestion : known.empty() ? "" : " (known: " + known + ")"));
   }
   return it->second;

@@ -41,14 +41,14 @@ double parse_number(std::string_view text, std::string_view what) {
   const char* last = t.data() + t.size();
   auto [ptr, ec] = std::from_chars(first, last, v);
   if (!t.empty() && ec == std::errc::result_out_of_range && ptr == last) {
-    throw InputError(std::string(what) + " is out of the range of numbers: \"" + std::string(text) + "\"");
+    throw InputError(std::string(what) + " is out of the range of numbers: \"" + shown(text) + "\"");
   }
   if (t.empty() || ec != std::errc() || ptr != last) {
-    throw InputError(std::string(what) + " is not a number: \"" + std::string(text) + "\"" +
+    throw InputError(std::string(what) + " is not a number: \"" + shown(text) + "\"" +
                      decimal_comma_hint(t));
   }
   if (!std::isfinite(v)) {
-    throw InputError(std::string(what) + " must be finite: \"" + std::string(text) + "\"");
+    throw InputError(std::string(what) + " must be finite: \"" + shown(text) + "\"");
   }
   return v;
 }
@@ -69,18 +69,18 @@ Amount parse_amount(std::string_view text) {
   const std::string_view num = t.substr(0, i);
   const std::string_view unit = trim(t.substr(i));
   if (num.empty()) {
-    throw InputError("amount \"" + std::string(text) +
+    throw InputError("amount \"" + shown(text) +
                      "\" has no number; expected e.g. 25mM, 0.1M, 10mg/mL");
   }
   Amount a;
   a.value = parse_number(num, "amount");
-  if (a.value < 0) throw InputError("amount \"" + std::string(text) + "\" is negative");
+  if (a.value < 0) throw InputError("amount \"" + shown(text) + "\" is negative");
   // Beyond 1e9 in any accepted unit no amount is physical, and mol/L could overflow.
   if (a.value > kMaxAmountValue) {
-    throw InputError("amount \"" + std::string(text) + "\" is too large (at most 1e9 in any unit)");
+    throw InputError("amount \"" + shown(text) + "\" is too large (at most 1e9 in any unit)");
   }
   if (unit.empty()) {
-    throw InputError("amount \"" + std::string(text) +
+    throw InputError("amount \"" + shown(text) +
                      "\" has no unit; expected one of M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v");
   }
   if (unit == "M" || unit == "mol/L") a.unit = AmountUnit::kMolar;
@@ -95,10 +95,10 @@ Amount parse_amount(std::string_view text) {
     if (unit.size() > 1 && unit[0] == ',' && std::isdigit(static_cast<unsigned char>(unit[1]))) {
       std::string dotted(t);
       dotted[dotted.find(',')] = '.';
-      throw InputError("\"" + std::string(text) + "\" has a decimal comma; pkarta reads a decimal point: write " +
+      throw InputError("\"" + shown(text) + "\" has a decimal comma; pkarta reads a decimal point: write " +
                        dotted);
     }
-    throw InputError("unknown unit \"" + std::string(unit) + "\" in \"" + std::string(text) +
+    throw InputError("unknown unit \"" + std::string(unit) + "\" in \"" + shown(text) +
                      "\"; expected one of M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v");
   }
   return a;

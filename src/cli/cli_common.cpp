@@ -50,6 +50,13 @@ po::variables_map parse(const std::vector<std::string>& args, const po::options_
       for (const std::string& t : o.original_tokens) before += (before.empty() ? "" : " ") + t;
     }
   }
+  // An empty value ("--compound ''") is refused as such, not taken for a missing option.
+  for (const po::option& o : parsed.options) {
+    if (o.position_key < 0 && !o.string_key.empty() && o.value.size() == 1 && o.value.front().empty() &&
+        !o.original_tokens.empty()) {
+      throw po::error("--" + o.string_key + ": the value is empty");
+    }
+  }
   po::store(parsed, vm);
   po::notify(vm);
   return vm;
@@ -200,6 +207,15 @@ int guarded(const std::function<int()>& body) {
   } catch (const po::error& e) {
     error(std::string(e.what()) + " (see --help)");
     return kExitBadInput;
+  } catch (const std::filesystem::filesystem_error& e) {
+    // A path the user gave that cannot be used (a link loop, a folder that cannot be read).
+    const std::string where = e.path1().empty() ? std::string() : e.path1().string() + ": ";
+    error(where + e.code().message());
+    return kExitBadInput;
+  } catch (const std::system_error& e) {
+    // Writing an output failed (disk full, device error): computed, but not delivered.
+    error(e.what());
+    return kExitRefused;
   } catch (const std::bad_alloc&) {
     error("out of memory");
     return kExitRefused;

@@ -6,6 +6,7 @@
 
 #include <cerrno>
 #include <cstdio>
+#include <cstring>
 #include <filesystem>
 #include <system_error>
 
@@ -24,7 +25,17 @@ void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::
     throw InputError(SourceLocation{path, 0, 0},
                      "the output path is " + kind + ", not a regular file; choose a file name");
   }
+  // The folder must exist and be writable: say so before any work is done.
+  const fs::path target(path);
+  const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
   std::error_code ec;
+  if (!fs::is_directory(dir, ec)) {
+    throw InputError(SourceLocation{path, 0, 0}, "cannot write: the folder " + dir.string() + " does not exist");
+  }
+  if (::access(dir.c_str(), W_OK) != 0) {
+    throw InputError(SourceLocation{path, 0, 0},
+                     "cannot write in the folder " + dir.string() + ": " + std::strerror(errno));
+  }
   if (!fs::exists(path, ec)) return;
   for (const std::string& in : inputs) {
     std::error_code e2;

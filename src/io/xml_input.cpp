@@ -31,8 +31,11 @@ class Locator {
  public:
   Locator(const std::string& text, std::string file) : file_(std::move(file)) {
     line_starts_.push_back(0);
+    // Lines end with LF, CRLF or a lone CR (old Mac files): each counts once.
     for (std::size_t i = 0; i < text.size(); ++i) {
-      if (text[i] == '\n') line_starts_.push_back(i + 1);
+      if (text[i] == '\n' || (text[i] == '\r' && (i + 1 == text.size() || text[i + 1] != '\n'))) {
+        line_starts_.push_back(i + 1);
+      }
     }
   }
   SourceLocation at(std::ptrdiff_t offset) const {
@@ -59,6 +62,13 @@ class Reader {
  public:
   Reader(const std::string& text, const std::string& name, Warnings* warnings)
       : loc_(text, name), warnings_(warnings) {
+    // A NUL byte is never text: refuse it where it is, rather than let the parser stop there
+    // and silently ignore the rest of the file.
+    const std::size_t nul = text.find('\0');
+    if (nul != std::string::npos) {
+      throw InputError(loc_.at(static_cast<std::ptrdiff_t>(nul)),
+                       "NUL byte in the file (is it binary, or UTF-16? save it as UTF-8 text)");
+    }
     const pugi::xml_parse_result r =
         doc_.load_buffer(text.data(), text.size(), pugi::parse_default | pugi::parse_ws_pcdata_single,
                          pugi::encoding_utf8);
@@ -231,7 +241,7 @@ Library parse_library(const std::string& text, const std::string& name, const Li
   std::set<std::string> seen;
   auto unique = [&](const pugi::xml_node& n, const char* kind, const std::string& id) {
     if (!seen.insert(std::string(kind) + ":" + id).second) {
-      r.fail(n, std::string("duplicate ") + kind + " id '" + id + "'");
+      r.fail(n, std::string("duplicate ") + kind + " id '" + shown(id) + "'");
     }
   };
   // Pass 1: ions and systems (referenced by everything else).
@@ -272,7 +282,7 @@ Library parse_library(const std::string& text, const std::string& name, const Li
           r.unknown_element(c);
         }
       }
-      if (s.pkas.empty()) r.fail(n, "<system> '" + s.id + "' has no <pka>");
+      if (s.pkas.empty()) r.fail(n, "<system> '" + shown(s.id) + "' has no <pka>");
       check_ascending(r, s.pkas, nodes);
       lib.systems[s.id] = s;
     }
@@ -308,8 +318,8 @@ Library parse_library(const std::string& text, const std::string& name, const Li
       k.kind = sys ? Contribution::Kind::kSystem : Contribution::Kind::kIon;
       k.id = r.required(c, sys ? "system" : "ion");
       k.count = r.in_range(c, "count", r.number_or(c, "count", 1.0), 1e-6, 100.0);
-      if (sys && !has_system(k.id)) r.fail(c, "unknown system '" + k.id + "'");
-      if (!sys && !has_ion(k.id)) r.fail(c, "unknown ion '" + k.id + "'");
+      if (sys && !has_system(k.id)) r.fail(c, "unknown system '" + shown(k.id) + "'");
+      if (!sys && !has_ion(k.id)) r.fail(c, "unknown ion '" + shown(k.id) + "'");
       g.gives.push_back(k);
     }
     lib.reagents[g.id] = g;
@@ -334,11 +344,11 @@ Library parse_library(const std::string& text, const std::string& name, const Li
       unique(n, "buffer", b.id);
       b.name = r.optional(n, "name", b.id);
       b.system = r.required(n, "system");
-      if (!has_system(b.system)) r.fail(n, "unknown system '" + b.system + "'");
+      if (!has_system(b.system)) r.fail(n, "unknown system '" + shown(b.system) + "'");
       std::istringstream routes(r.optional(n, "routes", "oral"));
       for (std::string w; routes >> w;) {
         if (w != "oral" && w != "parenteral" && w != "ophthalmic" && w != "topical") {
-          r.fail(n, "unknown route '" + w + "', expected oral, parenteral, ophthalmic or topical");
+          r.fail(n, "unknown route '" + shown(w) + "', expected oral, parenteral, ophthalmic or topical");
         }
         b.routes.push_back(w);
       }
@@ -353,7 +363,7 @@ Library parse_library(const std::string& text, const std::string& name, const Li
       b.acid_reagent = r.optional(n, "acid-reagent", "");
       b.base_reagent = r.optional(n, "base-reagent", "");
       for (const std::string* id : {&b.acid_titrant, &b.base_titrant, &b.acid_reagent, &b.base_reagent}) {
-        if (!id->empty() && !has_reagent(*id)) r.fail(n, "unknown reagent '" + *id + "'");
+        if (!id->empty() && !has_reagent(*id)) r.fail(n, "unknown reagent '" + shown(*id) + "'");
       }
       lib.buffers[b.id] = b;
     } else if (tag == "medium") {
@@ -372,7 +382,7 @@ Library parse_library(const std::string& text, const std::string& name, const Li
         }
         r.check_attributes(c, {"reagent", "amount"});
         const std::string id = r.required(c, "reagent");
-        if (!has_reagent(id)) r.fail(c, "unknown reagent '" + id + "'");
+        if (!has_reagent(id)) r.fail(c, "unknown reagent '" + shown(id) + "'");
         const Amount a = r.amount(c, "amount");
         const double conc = a.to_mol_per_L(reagent_mass(id), 25.0);
         if (!(conc <= 10.0)) {  // mol/L: the range the model covers

@@ -15,6 +15,7 @@
 #include <string>
 #include <system_error>
 
+#include "pkarta/base/error.h"
 #include "pkarta/io/atomic_file.h"
 
 namespace pkarta {
@@ -43,7 +44,13 @@ int files_in(const fs::path& dir) {
 }
 
 // Outcomes of a write attempted in a child process.
-enum ChildResult : int { kWrote = 10, kSystemErrorNamingPath = 11, kOtherSystemError = 12, kOtherError = 13 };
+enum ChildResult : int {
+  kWrote = 10,
+  kSystemErrorNamingPath = 11,  // a write failed part-way (disk full): std::system_error
+  kOtherSystemError = 12,
+  kOtherError = 13,
+  kBadPathNamingIt = 14         // the path cannot be written at all: InputError, before any work
+};
 
 /// Runs write_file_atomically(path, content) in a child process after `prepare` (which may
 /// lower limits or drop privileges) and returns how it ended.
@@ -55,6 +62,8 @@ int write_in_child(const std::string& path, const std::string& content, Prepare 
     int code = kWrote;
     try {
       write_file_atomically(path, content);
+    } catch (const pkarta::InputError& e) {
+      code = std::string(e.what()).rfind(path + ": cannot write", 0) == 0 ? kBadPathNamingIt : kOtherError;
     } catch (const std::system_error& e) {
       code = std::string(e.what()).find("cannot write " + path) != std::string::npos ? kSystemErrorNamingPath
                                                                                      : kOtherSystemError;
@@ -105,7 +114,7 @@ TEST(SafeFiles, AReadOnlyFolderIsAnErrorNamingThePath) {
   const int r = write_in_child(path, "new report", [&] {
     if (geteuid() == 0 && (setgid(gid) != 0 || setuid(uid) != 0)) _exit(kOtherError);
   });
-  EXPECT_EQ(r, kSystemErrorNamingPath);
+  EXPECT_EQ(r, kBadPathNamingIt);
   EXPECT_EQ(files_in(ro), 0);
   fs::permissions(ro, fs::perms::owner_all);
   fs::remove_all(dir);

@@ -63,14 +63,15 @@ TEST(AtomicFile, RefusesToOverwriteAnInput) {
   EXPECT_EQ(slurp(dir + "/report.html"), "ok");
 }
 
-TEST(AtomicFile, MissingFolderIsASystemErrorNamingThePath) {
+// A missing folder is bad input (the user's path), refused before anything is written.
+TEST(AtomicFile, MissingFolderIsAnInputErrorNamingThePath) {
   const std::string path = testing::TempDir() + "/atomic-no-such-dir/x/out.html";
   try {
     pkarta::write_file_atomically(path, "x");
-    FAIL() << "expected std::system_error";
-  } catch (const std::system_error& e) {
-    EXPECT_EQ(std::string(e.what()), "cannot write " + path + ": No such file or directory");
-    EXPECT_EQ(e.code().value(), ENOENT);
+    FAIL() << "expected InputError";
+  } catch (const pkarta::InputError& e) {
+    EXPECT_EQ(std::string(e.what()), path + ": cannot write: the folder " + testing::TempDir() +
+                                         "/atomic-no-such-dir/x does not exist");
   }
 }
 

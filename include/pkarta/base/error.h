@@ -2,8 +2,10 @@
 #ifndef PKARTA_ERROR_H_
 #define PKARTA_ERROR_H_
 
+#include <cstddef>
 #include <stdexcept>
 #include <string>
+#include <string_view>
 
 namespace pkarta {
 
@@ -30,6 +32,14 @@ class InputError : public std::runtime_error {
   SourceLocation where_;
   std::string message_;
 };
+
+/// Longest piece of the user's input echoed in a message.
+inline constexpr std::size_t kMaxEchoedChars = 80;
+
+/// The user's text as a message shows it: whole when short; else its first 80 characters,
+/// "...", and its length ("abcd... (1048576 characters)"), so a huge field never floods the
+/// terminal or a log.
+std::string shown(std::string_view text);
 
 }  // namespace pkarta
 
