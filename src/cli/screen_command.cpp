@@ -162,7 +162,11 @@ int run_screen(const Args& args) {
     }
     const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
     BatchOptions batch;
-    batch.threads = static_cast<int>(option_number("--threads", threads, 0, 1024));
+    const double thread_count = option_number("--threads", threads, 0, 1024);
+    if (thread_count != std::floor(thread_count)) {
+      throw InputError(SourceLocation{"--threads", 0, 0}, "expected a whole number of threads, got " + threads);
+    }
+    batch.threads = static_cast<int>(thread_count);
 
     const Library lib = load_libraries(common);
     if (buffers != "all") {

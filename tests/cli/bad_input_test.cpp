@@ -135,6 +135,8 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"option", nullptr, "profile --compound compounds/demo-base.xml --from 2,5", 2,
        "--from: value is not a number: \"2,5\" (pkarta reads a decimal point: write 2.5)"},
       {"option", nullptr, "mix --compound ''", 2, "--compound: the value is empty"},
+      {"option", nullptr, "screen --compound compounds/demo-base.xml --dose 1mg/mL --target-ph 5 --threads 1.5", 2,
+       "--threads: expected a whole number of threads, got 1.5"},
       {"option", nullptr, "fit --compound compounds/demo-base.xml -o /nonexistent-folder/x.xml", 2,
        "cannot write: the folder /nonexistent-folder does not exist"},
       {"option", nullptr, "check /dev/zero", 2, "/dev/zero: cannot read file: it is a character device, not a regular file"},
