@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "fuzz/fuzz_checks.h"
+#include "fuzz/fuzz_cli_checks.h"
 
 namespace pkarta {
 namespace {
@@ -69,6 +70,13 @@ TEST(FuzzRegressions, SolverInputs) {
     EXPECT_EQ(fuzz::check_solver(reinterpret_cast<const std::uint8_t*>(i.bytes.data()), i.bytes.size()), "")
         << i.path;
   }
+}
+
+TEST(FuzzRegressions, CommandLineInputs) {
+  const std::vector<Input> in = inputs("cli");
+  ASSERT_GE(in.size(), 10u);
+  const std::string compounds = std::string(PKARTA_SOURCE_DIR) + "/compounds";
+  for (const Input& i : in) EXPECT_EQ(fuzz::check_cli(i.bytes, compounds), "") << i.path;
 }
 
 // The inputs that once failed, by what they exercise.
