@@ -163,6 +163,8 @@ bool FitOptions::is_valid(std::string* error) const {
   if (!(relative_step_tolerance > 0)) return fail("relative_step_tolerance must be > 0");
   if (!(derivative_step > 0 && derivative_step < 0.1)) return fail("derivative_step must be in (0, 0.1)");
   if (!(pka_window_pH > 0)) return fail("pka_window_pH must be > 0");
+  if (!(min_leverage >= 0)) return fail("min_leverage must be >= 0");
+  if (!(lack_of_fit_alpha > 0 && lack_of_fit_alpha < 1)) return fail("lack_of_fit_alpha must be in (0, 1)");
   return true;
 }
 
@@ -253,9 +255,11 @@ std::vector<FitParameter> default_fit_parameters(const Compound& compound, const
   return out;
 }
 
-FitResult fit_solubility(const Compound& compound, const Library& library,
-                         const std::vector<FitPoint>& points, std::vector<FitParameter> parameters,
-                         const FitOptions& options) {
+namespace {
+
+// The fit of every parameter in `parameters` (none held).
+FitResult fit_all(const Compound& compound, const Library& library, const std::vector<FitPoint>& points,
+                  std::vector<FitParameter> parameters, const FitOptions& options) {
   FitResult r;
   r.fitted = compound;
   std::string err;
@@ -351,6 +355,37 @@ FitResult fit_solubility(const Compound& compound, const Library& library,
     fr.weight = w[i] * w[i];
     fr.limiting_solid = solids[i];
     r.residuals.push_back(fr);
+  }
+
+  // Lack of fit: chi-square against the stated sd when every point has one, else runs of signs.
+  std::vector<double> raw(static_cast<std::size_t>(m));
+  bool all_sd = true;
+  for (int i = 0; i < m; ++i) {
+    raw[static_cast<std::size_t>(i)] = y[i] - f[i];
+    all_sd = all_sd && points[i].log10_sd > 0;
+  }
+  r.runs = runs_test(raw);
+  r.reduced_chi_square = kNaN;
+  r.lack_of_fit_p = kNaN;
+  if (all_sd && r.degrees_of_freedom > 0) {
+    r.lack_of_fit_test = "chi-square";
+    r.reduced_chi_square = chi2 / r.degrees_of_freedom;
+    r.lack_of_fit_p = chi_square_upper_tail(chi2, r.degrees_of_freedom);
+    if (r.lack_of_fit_p < options.lack_of_fit_alpha) {
+      r.warnings.push_back("poor fit: reduced chi-square " + format_g(r.reduced_chi_square, 3) + " against the stated sd (" +
+                           std::to_string(r.degrees_of_freedom) + " degrees of freedom, p = " +
+                           format_g(r.lack_of_fit_p, 2) + "): the model or the stated uncertainties do not "
+                           "describe the data");
+    }
+  } else if (std::isfinite(r.runs.p)) {
+    r.lack_of_fit_test = "runs";
+    r.lack_of_fit_p = r.runs.p;
+    if (r.lack_of_fit_p < options.lack_of_fit_alpha) {
+      r.warnings.push_back("poor fit: " + std::to_string(r.runs.runs) + " runs of residual signs where " +
+                           format_g(r.runs.expected_runs, 3) + " are expected (" + std::to_string(r.runs.positive) +
+                           " positive, " + std::to_string(r.runs.negative) + " negative; runs test p = " +
+                           format_g(r.lack_of_fit_p, 2) + "): the residuals are systematic, not scatter");
+    }
   }
 
   const Eigen::MatrixXd jw = w.asDiagonal() * jac;
@@ -509,6 +544,102 @@ FitResult fit_solubility(const Compound& compound, const Library& library,
       break;
     }
   }
+  return r;
+}
+
+}  // namespace
+
+FitResult fit_solubility(const Compound& compound, const Library& library,
+                         const std::vector<FitPoint>& points, std::vector<FitParameter> parameters,
+                         const FitOptions& options) {
+  const int m = static_cast<int>(points.size());
+  const int n = static_cast<int>(parameters.size());
+  std::string err;
+  if (!options.is_valid(&err) || n == 0 || m < n || options.min_leverage == 0) {
+    return fit_all(compound, library, points, std::move(parameters), options);
+  }
+  // Parameters that move no point at the starting values.
+  std::vector<std::string> reason(static_cast<std::size_t>(n));
+  {
+    FitModel model(compound, library, points, parameters, options.conditions);
+    Eigen::VectorXd x(n);
+    for (int k = 0; k < n; ++k) x[k] = std::clamp(parameters[k].start, parameters[k].lower, parameters[k].upper);
+    Eigen::VectorXd f;
+    Eigen::MatrixXd jac;
+    if (!model.evaluate(x, &f) || !model.jacobian(x, f, options.derivative_step, &jac)) {
+      return fit_all(compound, library, points, std::move(parameters), options);
+    }
+    for (int k = 0; k < n; ++k) {
+      const double leverage = jac.col(k).cwiseAbs().maxCoeff();
+      if (!(leverage >= options.min_leverage)) {
+        reason[k] = "a unit change of it moves no measured point by more than " + format_g(options.min_leverage, 2) +
+                    " log10 at the starting values";
+      }
+    }
+  }
+  FitResult r;
+  while (true) {
+    Compound base = compound;
+    std::vector<FitParameter> free, held;
+    for (int k = 0; k < n; ++k) (reason[k].empty() ? free : held).push_back(parameters[k]);
+    Eigen::VectorXd start(static_cast<Eigen::Index>(held.size()));
+    for (std::size_t k = 0; k < held.size(); ++k) start[static_cast<Eigen::Index>(k)] = held[k].start;
+    apply(base, held, start);
+    if (free.empty()) {
+      r = FitResult{};
+      r.fitted = base;
+      r.message = "no parameter is determined by the data";
+      break;
+    }
+    r = fit_all(base, library, points, free, options);
+    if (!r.usable()) break;
+    bool more = false;
+    for (int k = 0, j = 0; k < n; ++k) {
+      if (!reason[k].empty()) continue;
+      const FitParameter& p = r.parameters[static_cast<std::size_t>(j++)];
+      const bool at_end = p.estimate <= p.lower + 1e-9 || p.estimate >= p.upper - 1e-9;
+      const bool started_there = p.start <= p.lower + 1e-9 || p.start >= p.upper - 1e-9;
+      if (at_end && !started_there) {
+        reason[k] = "its estimate ran to the end of its search range (" + format_g(p.lower, 3) + " to " +
+                    format_g(p.upper, 3) + ")";
+        more = true;
+      }
+    }
+    if (held.empty() && !more) return r;
+    if (!more) break;
+  }
+  // Every parameter in the given order; the held ones at their starting values.
+  const Eigen::Index nf = static_cast<Eigen::Index>(r.parameters.size());
+  Eigen::MatrixXd cov = Eigen::MatrixXd::Constant(n, n, kNaN), corr = cov;
+  std::vector<int> index;  // position in `parameters` of each free one
+  for (int k = 0; k < n; ++k) {
+    if (reason[k].empty()) index.push_back(k);
+  }
+  for (Eigen::Index a = 0; a < nf && r.covariance.rows() == nf; ++a) {
+    for (Eigen::Index b = 0; b < nf; ++b) {
+      cov(index[a], index[b]) = r.covariance(a, b);
+      corr(index[a], index[b]) = r.correlation(a, b);
+    }
+  }
+  std::vector<FitParameter> all = parameters;
+  std::vector<std::string> warnings;
+  const bool fitted = r.parameters.size() == index.size();  // false after a failure
+  for (int k = 0, j = 0; k < n; ++k) {
+    if (reason[k].empty()) {
+      if (fitted) all[k] = r.parameters[static_cast<std::size_t>(j++)];
+      continue;
+    }
+    all[k].estimate = parameters[k].start;
+    all[k].std_error = kNaN;
+    r.held.push_back(parameters[k].name);
+    warnings.push_back(parameters[k].name + " is not determined by the data (" + reason[k] +
+                       "): held at its starting value " + format_g(parameters[k].start, 4));
+  }
+  r.parameters = all;
+  r.covariance = cov;
+  r.correlation = corr;
+  warnings.insert(warnings.end(), r.warnings.begin(), r.warnings.end());
+  r.warnings = warnings;
   return r;
 }
 

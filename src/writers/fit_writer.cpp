@@ -54,6 +54,13 @@ void write_fit_text(const FitResult& r, std::ostream& out) {
     out << "; residual sd " << fixed(r.residual_sd, 3) << " (" << r.degrees_of_freedom << " degrees of freedom)";
   }
   out << "\n";
+  if (r.lack_of_fit_test == "chi-square") {
+    out << "  lack of fit: reduced chi-square " << fixed(r.reduced_chi_square, 3)
+        << " against the stated sd (p = " << sig(r.lack_of_fit_p, 2) << ")\n";
+  } else if (r.lack_of_fit_test == "runs") {
+    out << "  lack of fit: " << r.runs.runs << " runs of residual signs, " << fixed(r.runs.expected_runs, 1)
+        << " expected (runs test p = " << sig(r.lack_of_fit_p, 2) << ")\n";
+  }
   if (!r.warnings.empty()) {
     out << "\nWarnings\n";
     for (const std::string& w : r.warnings) out << "  - " << w << "\n";
@@ -95,9 +102,19 @@ void write_fit_json(const FitResult& r, std::ostream& out) {
     corr.push_back(row);
   }
   j["correlation"] = corr;
-  j["rms_log10"] = r.rms_log10;
+  j["rms_log10"] = r.rms_log10;  // the same as rms_residual_log10_molar (older name)
+  j["rms_residual_log10_molar"] = r.rms_log10;
   j["residual_sd_log10"] = num(r.residual_sd);
   j["degrees_of_freedom"] = r.degrees_of_freedom;
+  j["lack_of_fit_test"] = r.lack_of_fit_test;
+  j["reduced_chi_square"] = num(r.reduced_chi_square);
+  j["lack_of_fit_p"] = num(r.lack_of_fit_p);
+  j["runs_test"] = {{"runs", r.runs.runs},
+                    {"positive", r.runs.positive},
+                    {"negative", r.runs.negative},
+                    {"expected_runs", num(r.runs.expected_runs)},
+                    {"p", num(r.runs.p)}};
+  j["held_at_start"] = r.held;
   j["iterations"] = r.iterations;
   J res = J::array();
   for (const FitResidual& x : r.residuals) {

@@ -283,7 +283,12 @@ TEST(FitWarnings, PkaWithoutNearbyPointsAndRankDeficiency) {
   std::vector<FitPoint> low;
   for (int i = 0; i < 5; ++i) low.push_back(point(1.0 + 0.5 * i, -4.0 + (i % 2 ? 0.01 : -0.01)));
   const FitResult r2 = fit_solubility(acid2, lib, low, parse_fit_parameters("s0,pka1", acid2), ideal_options());
-  EXPECT_TRUE(has_warning(r2, "no effect")) << ::testing::PrintToString(r2.warnings);
+  // It is held at its starting value, named in a warning, instead of wandering.
+  EXPECT_TRUE(has_warning(r2, "pKa1 is not determined by the data")) << ::testing::PrintToString(r2.warnings);
+  ASSERT_EQ(r2.held.size(), 1u);
+  EXPECT_EQ(r2.held[0], "pKa1");
+  EXPECT_EQ(param(r2, "pKa1").estimate, 12.0);
+  EXPECT_DOUBLE_EQ(r2.fitted.system.pkas[0].value, 12.0);
   EXPECT_TRUE(std::isfinite(param(r2, "log10_S0_mol_per_L").std_error));
 }
 
@@ -302,8 +307,10 @@ TEST(FitWarnings, SaltNeverLimitingIsFlagged) {
     pts.push_back(point(pH, std::log10(solubility_at_pH(base, lib, pH, cond).solubility_mol_per_L)));
   }
   const FitResult r = fit_solubility(base, lib, pts, parse_fit_parameters("s0,pka1,ksp:hydrochloride", base));
-  EXPECT_TRUE(has_warning(r, "no point is limited by the salt 'hydrochloride'"))
+  // Its Ksp moves no point, so it is held at its starting value.
+  EXPECT_TRUE(has_warning(r, "log10_Ksp:hydrochloride is not determined by the data"))
       << ::testing::PrintToString(r.warnings);
+  EXPECT_EQ(param(r, "log10_Ksp:hydrochloride").estimate, 1.0);
   // The default set leaves the salt out, since it limits no point.
   const std::vector<FitParameter> def = default_fit_parameters(base, lib, pts, FitOptions{});
   ASSERT_EQ(def.size(), 2u);

@@ -19,6 +19,7 @@
 
 #include "pkarta/base/error.h"
 #include "pkarta/chem/model.h"
+#include "pkarta/analyses/fit_statistics.h"
 #include "pkarta/analyses/profile.h"
 #include "pkarta/io/solubility_csv.h"  // FitPoint, the CSV reader
 
@@ -62,6 +63,13 @@ struct FitOptions {
   double poor_std_error = 0.5;
   /// Pairs with |correlation| above this are flagged.
   double strong_correlation = 0.98;
+  /// A parameter that moves no point by more than this (log10 S per unit of the parameter)
+  /// at the starting values is not determined by the data (e.g. every point more than 2 pH
+  /// units on the neutral side of a pKa): it is held at its starting value with a warning,
+  /// as is one whose estimate runs to the end of its search range. 0: never held.
+  double min_leverage = 0.01;
+  /// Lack-of-fit p-values below this give a warning.
+  double lack_of_fit_alpha = 0.05;
   bool is_valid(std::string* error) const;
 };
 
@@ -90,6 +98,13 @@ struct FitResult {
   int degrees_of_freedom = -1;         ///< points - parameters
   double rms_log10 = 0.0;              ///< sqrt(mean (observed - fitted)^2), unweighted
   double residual_sd = 0.0;            ///< sqrt(chi^2 / dof), weighted; NaN when dof = 0
+  /// Lack of fit (fit_statistics.h): "chi-square" when every point has a stated sd (and
+  /// dof > 0), else "runs" (residual signs; both signs present), else "none".
+  std::string lack_of_fit_test = "none";
+  double reduced_chi_square = 0.0;     ///< chi^2 / dof against the stated sd; NaN unless "chi-square"
+  double lack_of_fit_p = 0.0;          ///< p-value of the test named; NaN for "none"
+  RunsTest runs;                       ///< runs test of the residual signs (computed in every case)
+  std::vector<std::string> held;       ///< parameters held at their starting values (not determined)
   std::vector<FitResidual> residuals;
   std::vector<std::string> warnings;   ///< parameters not determined by the data, etc.
   Compound fitted;                     ///< the compound with the estimates in place
@@ -104,7 +119,9 @@ std::vector<FitParameter> default_fit_parameters(const Compound& compound, const
                                                  const std::vector<FitPoint>& points,
                                                  const FitOptions& options);
 
-/// Fits `parameters` (from parse_fit_parameters) of `compound` to `points`.
+/// Fits `parameters` (from parse_fit_parameters) of `compound` to `points`. Parameters the
+/// data do not determine (FitOptions::min_leverage, or an estimate at the end of its range) are
+/// held at their starting values (std_error NaN, listed in `held`, with a warning naming them).
 /// Throws InputError (located at the data's last point) when there are fewer points than
 /// parameters; numerical trouble is reported through status, message and warnings.
 /// Example: fit_solubility(c, lib, fit_points_from_compound(c), parse_fit_parameters("", c), {})
