@@ -6,6 +6,7 @@
 #include "commands.h"
 #include "pkarta/io/atomic_file.h"
 #include "pkarta/analyses/fit.h"
+#include "pkarta/writers/fit_writer.h"
 #include "pkarta/chem/mixture_builder.h"
 
 namespace pkarta::cli {

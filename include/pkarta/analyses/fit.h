@@ -6,51 +6,27 @@
 // log10 Ksp of named salts, each at the reference temperature it has in the compound file
 // (points at other temperatures are corrected with the file's dH values, as everywhere).
 //
-// The minimiser is a Levenberg-Marquardt (damped Gauss-Newton) iteration on Eigen with a
-// forward-difference Jacobian; standard errors come from the covariance s^2 (J'WJ)^-1 scaled
+// The minimiser is levenberg_marquardt() (levenberg_marquardt.h) with a forward-difference
+// Jacobian; standard errors come from the covariance s^2 (J'WJ)^-1 scaled
 // by the residual variance s^2 = chi^2 / (m - n).
 #ifndef PKARTA_FIT_H_
 #define PKARTA_FIT_H_
 
 #include <Eigen/Core>
 
-#include <ostream>
 #include <string>
 #include <vector>
 
 #include "pkarta/base/error.h"
 #include "pkarta/chem/model.h"
+#include "pkarta/analyses/fit_statistics.h"
 #include "pkarta/analyses/profile.h"
+#include "pkarta/io/solubility_csv.h"  // FitPoint, the CSV reader
 
 namespace pkarta {
 
-/// One measured solubility used by the fit.
-struct FitPoint {
-  double pH = 7.0;
-  double solubility_mol_per_L = 0.0;  ///< > 0
-  double temperature_C = 25.0;
-  double log10_sd = 0.0;              ///< standard uncertainty of log10 S; 0: unweighted (1)
-  SourceLocation where;               ///< file:line of the point, for messages
-};
-
 /// The points of a compound file's measured-solubility block (unweighted).
 std::vector<FitPoint> fit_points_from_compound(const Compound& compound);
-
-/// Reads measured solubilities from CSV text (RFC 4180 fields, '#' comment lines and blank
-/// lines ignored). A header row is required, naming the columns in any order, case-insensitive:
-///   pH, value, unit                      required (unit as in compound files: mg/mL, ug/mL, M, mM...)
-///   temperature (or temperature_C)       optional, °C, default 25
-///   log_sd (or sd_log10)                 optional, standard uncertainty of log10 S (weights 1/sd^2)
-/// Unknown columns give a located warning. Mass units use the compound's molar mass.
-/// Throws InputError naming name:line:column for a missing column, a non-numeric cell, a
-/// solubility <= 0, a pH outside -1..15, an unknown unit or a row of the wrong length.
-/// Example: parse_solubility_csv("pH,value,unit\n2.0,25,mg/mL\n", "data.csv", 311.4, nullptr)
-std::vector<FitPoint> parse_solubility_csv(const std::string& text, const std::string& name,
-                                           double molar_mass_g_per_mol,
-                                           std::vector<std::string>* warnings);
-/// Reads a CSV file (see parse_solubility_csv). Throws InputError naming the file.
-std::vector<FitPoint> read_solubility_csv(const std::string& path, double molar_mass_g_per_mol,
-                                          std::vector<std::string>* warnings);
 
 /// A fitted quantity.
 struct FitParameter {
@@ -87,6 +63,13 @@ struct FitOptions {
   double poor_std_error = 0.5;
   /// Pairs with |correlation| above this are flagged.
   double strong_correlation = 0.98;
+  /// A parameter that moves no point by more than this (log10 S per unit of the parameter)
+  /// at the starting values is not determined by the data (e.g. every point more than 2 pH
+  /// units on the neutral side of a pKa): it is held at its starting value with a warning,
+  /// as is one whose estimate runs to the end of its search range. 0: never held.
+  double min_leverage = 0.01;
+  /// Lack-of-fit p-values below this give a warning.
+  double lack_of_fit_alpha = 0.05;
   bool is_valid(std::string* error) const;
 };
 
@@ -115,6 +98,13 @@ struct FitResult {
   int degrees_of_freedom = -1;         ///< points - parameters
   double rms_log10 = 0.0;              ///< sqrt(mean (observed - fitted)^2), unweighted
   double residual_sd = 0.0;            ///< sqrt(chi^2 / dof), weighted; NaN when dof = 0
+  /// Lack of fit (fit_statistics.h): "chi-square" when every point has a stated sd (and
+  /// dof > 0), else "runs" (residual signs; both signs present), else "none".
+  std::string lack_of_fit_test = "none";
+  double reduced_chi_square = 0.0;     ///< chi^2 / dof against the stated sd; NaN unless "chi-square"
+  double lack_of_fit_p = 0.0;          ///< p-value of the test named; NaN for "none"
+  RunsTest runs;                       ///< runs test of the residual signs (computed in every case)
+  std::vector<std::string> held;       ///< parameters held at their starting values (not determined)
   std::vector<FitResidual> residuals;
   std::vector<std::string> warnings;   ///< parameters not determined by the data, etc.
   Compound fitted;                     ///< the compound with the estimates in place
@@ -129,7 +119,9 @@ std::vector<FitParameter> default_fit_parameters(const Compound& compound, const
                                                  const std::vector<FitPoint>& points,
                                                  const FitOptions& options);
 
-/// Fits `parameters` (from parse_fit_parameters) of `compound` to `points`.
+/// Fits `parameters` (from parse_fit_parameters) of `compound` to `points`. Parameters the
+/// data do not determine (FitOptions::min_leverage, or an estimate at the end of its range) are
+/// held at their starting values (std_error NaN, listed in `held`, with a warning naming them).
 /// Throws InputError (located at the data's last point) when there are fewer points than
 /// parameters; numerical trouble is reported through status, message and warnings.
 /// Example: fit_solubility(c, lib, fit_points_from_compound(c), parse_fit_parameters("", c), {})
@@ -147,17 +139,10 @@ std::vector<double> fitted_curve_log10(const FitResult& result, const Library& l
 /// intrinsic-solubility value in its own unit and log-sd, salt ksp replacing any
 /// solubility-in-water) and a comment naming the fit above the <compound> element; only the
 /// attributes written change, every other byte of the file is kept (comments, layout). The
-/// text is checked by parsing it back. Throws InputError when the fitted
+/// text is checked by parsing it back (edit_compound_xml, io/compound_xml_edit.h). Throws InputError when the fitted
 /// file would not load (e.g. pKa values out of order).
 std::string fitted_compound_xml(const std::string& compound_path, const FitResult& result,
                                 const Library& library);
-
-void write_fit_text(const FitResult& result, std::ostream& out);
-/// Two CSV tables separated by an empty line: parameters (name, estimate, std_error), then
-/// residuals (pH, temperature, observed and fitted log10, limiting solid).
-void write_fit_csv(const FitResult& result, std::ostream& out);
-/// JSON keys (docs/commands.md): parameters[], correlation, rms_log10, residuals[], warnings[].
-void write_fit_json(const FitResult& result, std::ostream& out);
 
 }  // namespace pkarta
 
