@@ -23,13 +23,13 @@ struct CompoundValueEdit {
   double sd = 0.0;     ///< pKa sd or log10 sd written when finite and > 0 (not for Ksp)
 };
 
-/// The compound file `compound_path` with `edits` applied (in order) and the XML comment
+/// The compound file `compound_path` with `values` applied (in order) and the XML comment
 /// `comment` on its own line above the <compound> element ("--" in it is broken up). Only the
 /// attributes written change. `molar_mass_g_per_mol` and `s0_ref_temperature_C` convert the
 /// intrinsic solubility to the file's unit. The text is checked by parsing it back.
 /// Throws InputError naming the file when it cannot be edited or the result would not load.
 std::string edit_compound_xml(const std::string& compound_path,
-                              const std::vector<CompoundValueEdit>& edits,
+                              const std::vector<CompoundValueEdit>& values,
                               double molar_mass_g_per_mol, double s0_ref_temperature_C,
                               const std::string& comment, const Library& library);
 
