@@ -44,7 +44,9 @@ std::size_t demo_reports(const Library& lib, const std::string& dir, int uncerta
     req.classify_dose_mg = c.dose_mg;
     req.route = c.route;
     req.uncertainty_samples = uncertainty_samples;
-    const ReportData d = analyse_report(compound, lib, req, file, {}, "pkarta report");
+    RunRecord run;
+    run.command_line = "pkarta report";
+    const ReportData d = analyse_report(compound, lib, req, run);
     std::ostringstream out;
     write_report_html(d, c.file, out);
     bytes += out.str().size();

@@ -2,9 +2,33 @@
 
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/mixture_builder.h"
+#include "pkarta/io/sha256.h"
+#include "pkarta/io/text_file.h"
+#include "pkarta/io/xml_input.h"
 #include "pkarta/report/report.h"
 
 namespace pkarta::cli {
+
+namespace {
+
+InputFile hash_input(const std::string& role, const std::string& path, const std::string& text) {
+  return InputFile{role, path, sha256_hex(text), static_cast<std::uint64_t>(text.size())};
+}
+
+// The traceability record of a report run: the compound file, the built-in library, the
+// library files given, each with its SHA-256; the date (SOURCE_DATE_EPOCH when set).
+RunRecord gather_run_record(const std::string& compound_file, const std::vector<std::string>& library_files,
+                            const std::string& command_line) {
+  RunRecord run;
+  run.date_utc = report_date_utc();
+  run.command_line = command_line;
+  if (!compound_file.empty()) run.inputs.push_back(hash_input("compound", compound_file, read_text_file(compound_file)));
+  run.inputs.push_back(hash_input("library", "<built-in> compounds/library.xml", builtin_library_xml()));
+  for (const std::string& f : library_files) run.inputs.push_back(hash_input("library", f, read_text_file(f)));
+  return run;
+}
+
+}  // namespace
 
 void add_report_options(po::options_description& desc, ReportOptions& r) {
   desc.add_options()
@@ -77,7 +101,9 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
   } else if (r.form != "free") {
     form_molar_mass(compound, r.form, library);  // an unknown form is an error even without a dose
   }
-  const ReportData data = analyse_report(compound, library, req, r.compound_file, common.library_files, command_line);
+  std::string why;
+  if (!req.is_valid(&why)) throw InputError(why);  // before the run record, as the analysis would
+  const ReportData data = analyse_report(compound, library, req, gather_run_record(r.compound_file, common.library_files, command_line));
   std::vector<std::string> protect = {r.compound_file};
   protect.insert(protect.end(), common.library_files.begin(), common.library_files.end());
   std::vector<std::string> written = write_report_files(data, r.output, protect);

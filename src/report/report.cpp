@@ -13,7 +13,6 @@
 #include "pkarta/base/error.h"
 #include "pkarta/base/format.h"
 #include "pkarta/chem/mixture_builder.h"
-#include "pkarta/io/sha256.h"
 #include "pkarta/report/svg_chart.h"
 #include "pkarta/chem/water.h"
 #include "pkarta/io/xml_input.h"
@@ -27,11 +26,6 @@ using svg::xml_escape;
 
 // ---------------------------------------------------------------------------------------------
 // Analysis helpers
-
-InputFile hash_file(const std::string& role, const std::string& path) {
-  const std::string text = read_text_file(path);
-  return InputFile{role, path, sha256_hex(text), static_cast<std::uint64_t>(text.size())};
-}
 
 // ---------------------------------------------------------------------------------------------
 // Formatting helpers (writers)
@@ -241,8 +235,7 @@ std::string report_date_utc() {
 }
 
 ReportData analyse_report(const Compound& compound, const Library& library, const ReportRequest& request,
-                          const std::string& compound_file, const std::vector<std::string>& library_files,
-                          const std::string& command_line) {
+                          const RunRecord& run) {
   std::string why;
   if (!request.is_valid(&why)) throw InputError(why);
   ReportData d;
@@ -256,13 +249,9 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
   Provenance& p = d.provenance;
   p.library_id = library.id;
   p.library_version = library.version;
-  p.date_utc = report_date_utc();
-  p.command_line = command_line;
-  if (!compound_file.empty()) p.inputs.push_back(hash_file("compound", compound_file));
-  const std::string builtin = builtin_library_xml();
-  p.inputs.push_back(InputFile{"library", "<built-in> compounds/library.xml", sha256_hex(builtin),
-                               static_cast<std::uint64_t>(builtin.size())});
-  for (const std::string& f : library_files) p.inputs.push_back(hash_file("library", f));
+  p.date_utc = run.date_utc;
+  p.command_line = run.command_line;
+  p.inputs = run.inputs;
 
   // pH-solubility profile in water, pH held by HCl or NaOH, with pHmax.
   ProfileConditions cond;

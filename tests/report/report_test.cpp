@@ -22,6 +22,7 @@
 #include "pkarta/base/format.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/io/sha256.h"
+#include "pkarta/io/text_file.h"
 #include "pkarta/chem/units.h"
 #include "pkarta/io/xml_input.h"
 
@@ -118,7 +119,15 @@ Fixture demo_base_fixture() {
   req.target_pH = 5.0;
   req.classify_dose_mg = 100.0;
   req.route = "parenteral";
-  f.data = analyse_report(f.compound, f.library, req, file, {}, "pkarta report --compound demo-base.xml");
+  RunRecord run;
+  run.date_utc = report_date_utc();
+  run.command_line = "pkarta report --compound demo-base.xml";
+  const std::string text = read_text_file(file);
+  run.inputs.push_back(InputFile{"compound", file, sha256_hex(text), static_cast<std::uint64_t>(text.size())});
+  const std::string builtin = builtin_library_xml();
+  run.inputs.push_back(InputFile{"library", "<built-in> compounds/library.xml", sha256_hex(builtin),
+                                 static_cast<std::uint64_t>(builtin.size())});
+  f.data = analyse_report(f.compound, f.library, req, run);
   std::ostringstream out;
   write_report_html(f.data, "demo-base", out);
   f.html = out.str();
@@ -449,7 +458,9 @@ TEST(Report, MarkupInTheCompoundIsEscapedEverywhere) {
   req.dose_text = "1mg/mL";
   req.dose_mol_per_L = 1.0 / 300.0;
   req.profile_step_pH = 0.5;
-  const ReportData d = analyse_report(c, lib, req, file, {}, "pkarta report --compound " + file);
+  RunRecord run;
+  run.command_line = "pkarta report --compound " + file;
+  const ReportData d = analyse_report(c, lib, req, run);
   const std::vector<std::string> written = write_report_files(d, dir + "/evil.html", {file});
   const std::string html = slurp(dir + "/evil.html");
   EXPECT_EQ(html.find("<script"), std::string::npos);
@@ -477,7 +488,7 @@ TEST(Report, WithoutDoseOrTargetOnlyTheirSectionsAreLeftOut) {
   const Compound c = load_compound_file(file, lib, nullptr);
   ReportRequest req;
   req.uncertainty_samples = 0;
-  const ReportData d = analyse_report(c, lib, req, file, {}, "");
+  const ReportData d = analyse_report(c, lib, req, RunRecord{});
   EXPECT_FALSE(d.dose_in_water || d.screen || d.recipe || d.dilution || d.classification || d.uncertainty);
   std::ostringstream out;
   write_report_html(d, "", out);

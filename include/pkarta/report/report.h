@@ -127,12 +127,19 @@ struct ReportData {
   std::vector<std::string> warnings;
 };
 
-/// Runs the analyses the request asks for. `compound_file` and `library_files` are hashed for
-/// the traceability block (the built-in library by its embedded text). Throws InputError for an
-/// invalid request (named field), an unknown form, or unreadable files.
+/// What the caller gathered about the run for the traceability block: the input files with
+/// their digests (in report order), the report date and the command line. The analysis reads
+/// no file and no environment; it copies these into ReportData::provenance.
+struct RunRecord {
+  std::vector<InputFile> inputs;
+  std::string date_utc;
+  std::string command_line;
+};
+
+/// Runs the analyses the request asks for. Throws InputError for an invalid request (named
+/// field) or an unknown form.
 ReportData analyse_report(const Compound& compound, const Library& library, const ReportRequest& request,
-                          const std::string& compound_file, const std::vector<std::string>& library_files,
-                          const std::string& command_line);
+                          const RunRecord& run);
 
 /// The smallest value of the 1-2-5 series (..., 1, 2, 5, 10, ...) at or above `x` (> 0).
 double round_up_125(double x);
