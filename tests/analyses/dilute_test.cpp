@@ -26,7 +26,7 @@ using pkarta_test::temp_dir;
 using pkarta_test::write_file;
 using pkarta_test::slurp;
 
-constexpr double kBalanceTolerance = 1e-10;  // DESIGN.md section 2: every returned state
+constexpr double kBalanceTolerance = 1e-10;  // every returned state (docs/model.md, Solver)
 
 // Invented weak base for these checks: pKa 8.0, log10 S0 -5.5 mol/L, molar mass 300, no salts.
 Compound invented_base() {
@@ -128,7 +128,7 @@ TEST(Dilute, WeakBaseAtLowPhRisksPrecipitationInPlasmaNotInSaline) {
     EXPECT_NE(plasma.points[i].equilibrium_solid, "none");
   }
   // At pH 7.4 the free base's solubility is S0 (1 + 10^(pKa - pH)) (Henderson-Hasselbalch,
-  // Avdeef 2003; check-values.md 5.1): within activity effects of the HH value at that pH.
+  // Avdeef 2003): within activity effects of the HH value at that pH.
   const DilutionPoint& p = plasma.points.back();
   const double hh = std::pow(10.0, -5.5) * (1.0 + std::pow(10.0, 8.0 - p.pH));
   EXPECT_NEAR(std::log10(p.solubility_mol_per_L), std::log10(hh), 0.1);
@@ -138,7 +138,7 @@ TEST(Dilute, WeakBaseAtLowPhRisksPrecipitationInPlasmaNotInSaline) {
   EXPECT_TRUE(note);
 }
 
-// The supersaturation ratio is the mixture's saturation ratio (DESIGN.md section 2), and the
+// The supersaturation ratio is the mixture's saturation ratio (docs/model.md), and the
 // solubility is the dose over it.
 TEST(Dilute, SupersaturationIsTheSaturationRatioOfTheMixture) {
   const Library lib = builtin_library();

@@ -184,8 +184,8 @@ TEST(FitRecovery, PlateauOnlyIsTheMeanWithItsStandardError) {
 // ----- published drugs ---------------------------------------------------------------------
 
 // Ciprofloxacin, ampholyte: pKa 6.16 (acid) and 8.62 (base), log S0 -3.72 (Avdeef 2003,
-// Absorption and Drug Development, Fig. 6.3a; check-values.md 6.1 [found]). Data: the
-// Henderson-Hasselbalch points computed from those constants in check-values.md 6.1 (rounded
+// Absorption and Drug Development, Fig. 6.3a). Data: the
+// Henderson-Hasselbalch points computed from those published constants (rounded
 // to 0.001). The fit, started away from them, must return the published constants within the
 // precision they are given to (0.01).
 TEST(FitPublished, CiprofloxacinAvdeef2003) {
@@ -205,7 +205,7 @@ TEST(FitPublished, CiprofloxacinAvdeef2003) {
 }
 
 // Indomethacin (acid, pKa 4.42, log S0 -5.58) and miconazole (base, pKa 6.07, log S0 -5.85):
-// Avdeef 2003, Figs. 6.1a and 6.2a; points from check-values.md 6.1 [found constants].
+// Avdeef 2003, Figs. 6.1a and 6.2a; points computed from the published constants.
 TEST(FitPublished, IndomethacinAndMiconazoleAvdeef2003) {
   const Library lib = builtin_library();
   {
@@ -227,10 +227,10 @@ TEST(FitPublished, IndomethacinAndMiconazoleAvdeef2003) {
   }
 }
 
-// Ibuprofen exercise with a salt plateau (check-values.md 5.2 [found inputs]): pKa 4.43,
+// Ibuprofen exercise with a salt plateau (Avdeef 2003, published inputs): pKa 4.43,
 // S(pH 0.5) = S0 = 5.52e-5 M, S(pH 10) = 4.39e-3 M (sodium salt plateau), and the HH value at
 // pH 4 computed there, 7.57e-5 M. Three points, three parameters: the fit is exact and must
-// give pKa 4.43, S0 5.52e-5 M and pHmax 6.33 (computed in check-values.md from the inputs),
+// give pKa 4.43, S0 5.52e-5 M and pHmax 6.33 (computed from the inputs),
 // with the warning that no standard errors can be estimated.
 TEST(FitPublished, IbuprofenExerciseWithSaltPlateau) {
   const Library lib = builtin_library();

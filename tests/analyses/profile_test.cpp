@@ -74,10 +74,10 @@ void expect_closed_form(const Compound& c, F closed_form, const ProfileCondition
 }
 
 // --- Henderson-Hasselbalch closed forms ---------------------------------------------------
-// Avdeef 2003, Absorption and Drug Development, section 6.1 (check-values.md 5.1): acid
+// Avdeef 2003, Absorption and Drug Development, section 6.1: acid
 // S = S0 (1 + 10^(pH - pKa)); base S = S0 (1 + 10^(pKa - pH)); ampholyte (eq. 6.7)
 // S = S0 (1 + 10^(pH - pKa2) + 10^(pKa1 - pH)); diacidic base
-// S = S0 (1 + 10^(pKa,hi - pH) + 10^(pKa,hi + pKa,lo - 2 pH)) (standard form, [memory]).
+// S = S0 (1 + 10^(pKa,hi - pH) + 10^(pKa,hi + pKa,lo - 2 pH)) (standard form, Avdeef 2003).
 // Constants: indomethacin, miconazole, ciprofloxacin as given in Avdeef 2003, Figs. 6.1a-6.3a.
 
 TEST(ProfileIdeal, MonoproticAcidMatchesHendersonHasselbalch) {
@@ -141,7 +141,7 @@ TEST(ProfileIdeal, DaviesModeReportsTheIdealCurveBeside) {
   }
 }
 
-// --- Published HH points for real drugs (check-values.md 6.1, computed from Avdeef 2003) -----
+// --- Published HH points for real drugs (computed from Avdeef 2003) -----
 
 TEST(ProfileReference, CiprofloxacinIndomethacinMiconazoleLogS) {
   struct Case {
@@ -182,7 +182,7 @@ TEST(ProfileReference, CiprofloxacinIndomethacinMiconazoleLogS) {
   EXPECT_NEAR(p.points[best].pH, 7.39, 1e-9);
 }
 
-// --- Worked example: ibuprofen (check-values.md 5.2) ---------------------------------------
+// --- Worked example: ibuprofen (Avdeef 2003) ---------------------------------------
 // pKa 4.43, S0 = S(pH 0.5) = 5.52e-5 M, plateau S(pH 10) = 4.39e-3 M at 25 °C: S(pH 4) =
 // 7.57e-5 M; at pH 9 the HH value, 2.05 M, exceeds the plateau; pHmax 6.33. The exercise takes
 // the plateau as the sodium salt's solubility without added sodium, so Ksp = (4.39e-3)^2 in
@@ -214,7 +214,7 @@ TEST(ProfileReference, IbuprofenWorkedExample) {
 
 // --- pHmax --------------------------------------------------------------------------------
 // Base salt BH+ X- without excess counterion: pHmax = pKa + log10(S0 / sqrt(Ksp)) (Kramer and
-// Flynn 1972; Bogardus and Blackwood 1979; Serajuddin 2007, check-values.md 5.1). pKa 10,
+// Flynn 1972; Bogardus and Blackwood 1979; Serajuddin 2007). pKa 10,
 // S0 1e-4 M, Ksp 1e-2: pHmax 7.000, where [H+] and [OH-] are 1e-6 of [BH+] (ideal limit).
 // Acid salt M+ A-: pHmax = pKa + log10(sqrt(Ksp) / S0); pKa 4, S0 1e-4, Ksp 1e-2: 7.000.
 
@@ -378,7 +378,7 @@ TEST(ProfileSaltOnly, PermanentCationChlorideDissolvesAtRootKsp) {
 }
 
 // --- Agreement with the closed-system solver ------------------------------------------------
-// A profile point (pH, S, titrant) rebuilt as a closed mixture (DESIGN.md section 2): twice S
+// A profile point (pH, S, titrant) rebuilt as a closed mixture (docs/model.md): twice S
 // of free form, the titrant, plus the counterion that the precipitated salt took out of
 // solution; solve() must return the same pH, dissolved amount and solid. Checked inside the
 // Davies range (I <= 0.5 mol/L; beyond 1 mol/L the profile holds the coefficients at I = 1).

@@ -30,12 +30,12 @@ using pkarta_test::temp_dir;
 using pkarta_test::write_file;
 using pkarta_test::slurp;
 
-// Debye-Hückel A at 25 °C, 0.5108 (check-values.md 3: Malmberg and Maryott 1956 permittivity
+// Debye-Hückel A at 25 °C, 0.5108 (Malmberg and Maryott 1956 permittivity
 // with the Kell density) and the Davies (1962) bracket, for the hand computations.
 constexpr double kA25 = 0.5108;
 double davies_f(double I) { return std::sqrt(I) / (1.0 + std::sqrt(I)) - 0.3 * I; }
 
-// The USP tables state pH to one decimal; check-values.md 7 asks for agreement within 0.05.
+// The USP tables state pH to one decimal; common practice asks for agreement within 0.05.
 constexpr double kPharmacopeialTolerance = 0.05;
 
 class RecipeTest : public ::testing::Test {
@@ -55,7 +55,7 @@ class RecipeTest : public ::testing::Test {
 TEST_F(RecipeTest, UspPhosphateBufferRowsGiveTheirStatedPh) {
   // USP "Buffer Solutions", Phosphate Buffer: 50 mL 0.2 M KH2PO4 + x mL 0.2 M NaOH diluted to
   // 200 mL, i.e. KH2PO4 50 mM + NaOH x mM: pH 6.0 (5.6 mL), 6.8 (22.4), 7.0 (29.1), 7.4 (39.1)
-  // ([memory], check-values.md 7; computed there 6.02, 6.79, 7.01, 7.41).
+  // (recalled from USP, to be verified; computed 6.02, 6.79, 7.01, 7.41).
   const struct {
     double naoh_mL, pH;
   } rows[] = {{5.6, 6.0}, {22.4, 6.8}, {29.1, 7.0}, {39.1, 7.4}};
@@ -67,7 +67,7 @@ TEST_F(RecipeTest, UspPhosphateBufferRowsGiveTheirStatedPh) {
 
 TEST_F(RecipeTest, UspHydrochloricAcidBufferPh12) {
   // USP Hydrochloric Acid Buffer pH 1.2: 50 mL 0.2 M KCl + 85.0 mL 0.2 M HCl diluted to 200 mL
-  // ([memory], check-values.md 7; computed there pH 1.19 at I = 0.135 with Davies).
+  // (recalled from USP, to be verified; computed pH 1.19 at I = 0.135 with Davies).
   EXPECT_NEAR(mix_pH({{"KCl", 0.050}, {"HCl", 0.085}}), 1.2, kPharmacopeialTolerance);
 }
 
@@ -97,7 +97,7 @@ TEST_F(RecipeTest, TitrantRecipeBracketsTheUspNaohVolumes) {
 }
 
 TEST_F(RecipeTest, MolarMassesFromTheFormulaRoutineMatchCheckValues) {
-  // check-values.md 9.2, column A (current conventional atomic weights), tolerance 0.01 g/mol.
+  // IUPAC CIAAW (current conventional atomic weights), tolerance 0.01 g/mol.
   const struct {
     const char* id;
     double mass;
@@ -115,7 +115,7 @@ TEST_F(RecipeTest, PhosphatePh7MassesMatchAHandComputation) {
   // 0.05 M phosphate pH 7.0, 1 L, from NaH2PO4.2H2O (a) and Na2HPO4.12H2O (b), by hand:
   // Henderson-Hasselbalch with Davies, pH = pK2 + log10(b/a) + log10(gamma2/gamma1)
   // = pK2 + log10(b/a) - 3 A f(I), with I = a + 3 b (Na+ a + 2b, H2PO4- a, HPO4(2-) 4b over 2),
-  // pK2 = 7.198 (Goldberg et al. 2002, check-values.md 2.1). [H+], [OH-], H3PO4 and PO4(3-)
+  // pK2 = 7.198 (Goldberg, Kishore and Lennen 2002, J. Phys. Chem. Ref. Data 31, 231). [H+], [OH-], H3PO4 and PO4(3-)
   // are below 1e-4 of the totals and left out.
   const double c = 0.05, pk2 = 7.198, target = 7.0;
   double a = c / 2, b = c / 2;
@@ -150,7 +150,7 @@ TEST_F(RecipeTest, PhosphatePh7MassesMatchAHandComputation) {
 TEST_F(RecipeTest, TrisWithHydrochloricAcidMatchesAHandComputation) {
   // 50 mM tris base brought to pH 8.0 with 1 M HCl, by hand: for TrisH+ = Tris + H+,
   // pH = pKa + log10([Tris]/[TrisH+]) - log10 gamma1 = pKa + log10(ratio) + A f(I), I = [Cl-] = t,
-  // t = C / (1 + ratio); pKa 8.072 (Goldberg et al. 2002, check-values.md 2.1).
+  // t = C / (1 + ratio); pKa 8.072 (Goldberg, Kishore and Lennen 2002, J. Phys. Chem. Ref. Data 31, 231).
   const double c = 0.05, pka = 8.072, target = 8.0;
   double t = c / 2;
   for (int k = 0; k < 100; ++k) t = c / (1 + std::pow(10.0, target - pka - kA25 * davies_f(t)));
@@ -227,7 +227,7 @@ TEST_F(RecipeTest, RecipesFedBackThroughMixGiveTheirTargetPh) {
 
 TEST_F(RecipeTest, IsotonicDiluteBufferNeedsAboutNinePerMilleSodiumChloride) {
   // 0.9 % w/v NaCl (154 mM) is the isotonic saline, 286-288 mOsm/kg with the osmotic
-  // coefficient 0.93 (check-values.md 8). A 1 mM phosphate buffer made to 290 mOsm/kg with
+  // coefficient 0.93 (common practice). A 1 mM phosphate buffer made to 290 mOsm/kg with
   // NaCl therefore needs about 9 g/L of NaCl: within 2 % of 0.9 %.
   RecipeOptions o;
   o.buffer = "phosphate";

@@ -27,7 +27,7 @@ using pkarta_test::temp_dir;
 using pkarta_test::write_file;
 using pkarta_test::slurp;
 
-// Debye-Hückel A at 25 °C, 0.5108 (check-values.md 3: from Malmberg and Maryott 1956 with the
+// Debye-Hückel A at 25 °C, 0.5108 (from Malmberg and Maryott 1956 with the
 // Kell density) and the Davies (1962) bracket, written out here for the hand computations.
 constexpr double kA25 = 0.5108;
 double davies_f(double I) { return std::sqrt(I) / (1.0 + std::sqrt(I)) - 0.3 * I; }
@@ -55,7 +55,7 @@ class Screen : public ::testing::Test {
 TEST_F(Screen, EqualPartsAtPkaHoldPkaWithinTheActivityCorrection) {
   // Henderson-Hasselbalch with Davies activities: for HA/A- at equal parts,
   // pH = pKa + log10 gamma(A-) = pKa - A f(I); for H2PO4-/HPO4(2-), pH = pK2 - 3 A f(I).
-  // Acetate pKa 4.756, phosphate pK2 7.198 (Goldberg et al. 2002, check-values.md 2.1).
+  // Acetate pKa 4.756, phosphate pK2 7.198 (Goldberg, Kishore and Lennen 2002, J. Phys. Chem. Ref. Data 31, 231).
   struct Case {
     const char* acid;
     const char* base;
@@ -85,7 +85,7 @@ TEST_F(Screen, BufferAloneIsTitratedToHalfNeutralisationAtItsApparentPka) {
   // Acetic acid C plus NaOH t: equal parts when t = C/2 - [H+] (charge balance), where the pH
   // is pKa - A f(I) with I = t + [H+] (Henderson-Hasselbalch with Davies, by hand).
   const double c = 0.05;
-  const double pka = 4.756;  // check-values.md 2.1
+  const double pka = 4.756;  // Goldberg, Kishore and Lennen 2002
   double t = c / 2, pH = pka;
   for (int k = 0; k < 50; ++k) {
     pH = pka - kA25 * davies_f(t + std::pow(10.0, -pH));
@@ -183,7 +183,7 @@ TEST_F(Screen, SaltDoseShiftsTheApparentPkaAndMinConcIsTheRobustEnd) {
 }
 
 TEST_F(Screen, MinimumConcentrationIsConsistent) {
-  // At min_conc the drift is within the tolerance; at 0.99 min_conc it is not (DESIGN.md 4).
+  // At min_conc the drift is within the tolerance; at 0.99 min_conc it is not (docs/model.md).
   struct Case {
     const Compound* c;
     double dose_mg;
@@ -234,7 +234,7 @@ TEST_F(Screen, NotAchievableReportsValuesAtMaxConc) {
 
 TEST_F(Screen, TrisShiftsAbout003PerDegreeWhilePhosphateShiftsLittle) {
   // Tris dpKa/dT = -0.028 per K from dH = 47.45 kJ/mol (Goldberg et al. 2002), -0.031 (Good et
-  // al. 1966), "about 0.03 per degree" (check-values.md 2.2): the screen's 5 and 40 °C columns
+  // al. 1966), "about 0.03 per degree" (common practice): the screen's 5 and 40 °C columns
   // must show a slope within -0.034 to -0.024 per °C. Phosphate pK2: -0.0021 per K (Goldberg);
   // the Ph. Eur. 0.025/0.025 phosphate standard changes by -0.0028 per °C (Ph. Eur. 5.0
   // Table 2.2.3.-2): slope within -0.006 to 0.
@@ -286,7 +286,7 @@ TEST_F(Screen, DoseAboveTheHendersonHasselbalchSolubilityIsNotSoluble) {
 }
 
 TEST_F(Screen, OutsideRangeWhenNoPkaWithinOneUnit) {
-  // DESIGN.md 4: outside-range when no pKa(T) lies within target +/- 1. At pH 7.4: acetate
+  // outside-range when no pKa(T) lies within target +/- 1. At pH 7.4: acetate
   // (4.756), lactate (3.86), borate (9.237) are outside; phosphate (7.198), HEPES (7.564) inside.
   ScreenOptions opt;
   opt.target_pH = 7.4;
@@ -353,7 +353,7 @@ TEST_F(Screen, DoseRangeReportsTheWorstPh) {
 }
 
 TEST_F(Screen, BatchInParallelIsIdenticalToSerial) {
-  // DESIGN.md / issue: results of a parallel batch are identical to serial runs.
+  // Results of a parallel batch are identical to serial runs.
   ScreenOptions opt;
   opt.target_pH = 6.0;
   opt.dose_range_fraction = 0.1;

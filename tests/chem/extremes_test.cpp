@@ -18,7 +18,7 @@ namespace {
 constexpr int kSingleSystemCases = 100000;
 constexpr int kDrugCases = 100000;
 constexpr int kFiftySystemCases = 5000;
-constexpr double kMaxResidual = 1e-10;         // DESIGN.md section 2, every returned state
+constexpr double kMaxResidual = 1e-10;         // every returned state (docs/model.md, Solver)
 
 class Generator {
  public:

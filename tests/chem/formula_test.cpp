@@ -8,7 +8,7 @@
 namespace pkarta {
 namespace {
 
-// Tolerance 0.01 g/mol: the conventional atomic weights (check-values.md 9.2, column A,
+// Tolerance 0.01 g/mol: the conventional atomic weights (IUPAC CIAAW standard atomic weights,
 // computed from the CIAAW 2021 / IUPAC abridged table).
 constexpr double kTol = 0.01;
 
@@ -23,7 +23,7 @@ TEST(MolarMass, PhosphateSaltsAgreeWithConventionalAtomicWeights) {
 }
 
 TEST(MolarMass, OrganicBufferReagents) {
-  // check-values.md 9.2 column A; handbook values in the last column agree within 0.01.
+  // IUPAC CIAAW conventional atomic weights; handbook values in the last column agree within 0.01.
   EXPECT_NEAR(molar_mass_g_per_mol("C6H8O7"), 192.123, kTol);
   EXPECT_NEAR(molar_mass_g_per_mol("C6H8O7.H2O"), 210.138, kTol);
   EXPECT_NEAR(molar_mass_g_per_mol("Na3C6H5O7.2H2O"), 294.098, kTol);

@@ -2,7 +2,7 @@
 //
 // Source of pH(PS): Buck et al., "Measurement of pH. Definition, standards, and procedures
 // (IUPAC Recommendations 2002)", Pure Appl. Chem. 74, 2169 (2002), primary-standard table
-// (grid values recalled [memory]; cross-checked at 25 °C by Staples & Bates 1969, J. Res. NBS
+// (grid values recalled from IUPAC (Buck et al. 2002, Pure Appl. Chem. 74, 2169), to be verified; cross-checked at 25 °C by Staples & Bates 1969, J. Res. NBS
 // 73A, 37 (citrate 3.776, carbonate 10.012, borax 9.180), Hamer, Pinching & Acree 1946 (KHP
 // 4.005), Bower, Paabo & Bates 1961 (7.414 at 25 °C, 7.382 at 38 °C) and Ph. Eur. 5.0
 // Table 2.2.3.-2 to two decimals). The standards are defined on the Bates-Guggenheim
@@ -88,7 +88,7 @@ TEST_F(PrimaryStandards, PhAt5CWithin003) {
     ASSERT_TRUE(e.usable()) << s.name;
     std::printf("  %-40s  5 C: pkarta %.3f  IUPAC %.3f\n", s.name, e.pH, s.ph5);
     // KHP at 5 °C: the NBS equations (Hamer 1946, Hetzer 1977) give 4.004-4.005 against the
-    // recalled IUPAC 3.998; check-values suggests 0.008 below 15 °C, inside our 0.03.
+    // recalled IUPAC 3.998, to be verified; a difference up to 0.008 below 15 °C stays inside our 0.03.
     EXPECT_NEAR(e.pH, s.ph5, 0.03) << s.name;
   }
 }

@@ -15,7 +15,7 @@ TEST(Amount, ParsesEveryUnitOfTheCommandLine) {
   EXPECT_DOUBLE_EQ(parse_amount("10mg/mL").to_mol_per_L(200, 25), 0.05);
   EXPECT_DOUBLE_EQ(parse_amount("1.5g/L").to_mol_per_L(150, 25), 0.01);
   EXPECT_DOUBLE_EQ(parse_amount("5ug/mL").to_mol_per_L(500, 25), 1e-5);
-  // 0.9 %w/v NaCl = 9 g/L = 0.154 mol/L (common practice; check-values.md section 8).
+  // 0.9 %w/v NaCl = 9 g/L = 0.154 mol/L (common practice).
   EXPECT_NEAR(parse_amount("0.9%w/v").to_mol_per_L(58.44, 25), 0.154, 0.0005);
   EXPECT_DOUBLE_EQ(parse_amount("2e-3M").to_mol_per_L(0, 25), 2e-3);
 }

@@ -1,4 +1,4 @@
-// Water properties and the Davies model against the published tables (check-values.md §3).
+// Water properties and the Davies model against the published tables (Marshall and Franck 1981; Kell 1975; Malmberg and Maryott 1956).
 #include "pkarta/chem/water.h"
 
 #include <gtest/gtest.h>
@@ -36,14 +36,14 @@ TEST(Water, DielectricConstantMalmbergMaryott) {
 }
 
 TEST(Davies, AAt25And37) {
-  // A = 1.82483e6 sqrt(rho)/(eps T)^1.5: 0.5108 at 25 °C, 0.5215 at 37 °C (check-values §3.3).
+  // A = 1.82483e6 sqrt(rho)/(eps T)^1.5: 0.5108 at 25 °C, 0.5215 at 37 °C (Malmberg and Maryott 1956 permittivity, Kell 1975 density).
   EXPECT_NEAR(davies_a(25), 0.5108, 0.0005);
   EXPECT_NEAR(davies_a(37), 0.5215, 0.001);
   EXPECT_NEAR(davies_a(0), 0.4918, 0.001);
 }
 
 TEST(Davies, ActivityCoefficientsAtA05108) {
-  // Davies (1962) with A = 0.5108 (check-values §3.4, computed): z=1: 0.9018 (I=0.01),
+  // Davies (1962) with A = 0.5108 (computed): z=1: 0.9018 (I=0.01),
   // 0.8209 (0.05), 0.7809 (0.10), 0.7461 (0.20); z=2: 0.6613, 0.4542, 0.3719; z=3 0.1080 (0.1).
   auto g = [](int z, double I) { return std::pow(10.0, -0.5108 * z * z * davies_bracket(I)); };
   EXPECT_NEAR(g(1, 0.01), 0.9018, 2e-4);
@@ -58,7 +58,7 @@ TEST(Davies, ActivityCoefficientsAtA05108) {
 }
 
 TEST(VantHoff, TrisAndPhosphate) {
-  // Goldberg, Kishore & Lennen 2002 inputs (check-values §2.1, [memory]), computed pK:
+  // Goldberg, Kishore & Lennen 2002 inputs (recalled from J. Phys. Chem. Ref. Data 31, 231, to be verified), computed pK:
   // Tris 8.072, dH 47.45, dCp -59: 8.677 (5 °C), 7.753 (37 °C); tolerance 0.02.
   EXPECT_NEAR(pk_at_temperature(8.072, 25, 47.45, -59, 5), 8.677, 0.02);
   EXPECT_NEAR(pk_at_temperature(8.072, 25, 47.45, -59, 37), 7.753, 0.02);
@@ -68,7 +68,7 @@ TEST(VantHoff, TrisAndPhosphate) {
   const double slope = (pk_at_temperature(8.072, 25, 47.45, 0, 25.01) -
                         pk_at_temperature(8.072, 25, 47.45, 0, 24.99)) / 0.02;
   EXPECT_NEAR(slope, -0.0279, 0.0003);
-  // Classic emf values (Bates & Hetzer 1961, [memory]): TrisH+ 8.850 at 0 °C.
+  // Classic emf values (Bates and Hetzer 1961, J. Phys. Chem. 65, 667; recalled, to be verified): TrisH+ 8.850 at 0 °C.
   EXPECT_NEAR(pk_at_temperature(8.072, 25, 47.45, -59, 0), 8.850, 0.02);
 }
 

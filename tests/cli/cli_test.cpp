@@ -41,7 +41,7 @@ TEST(Cli, MixWithTheDemoBase) {
 }
 
 TEST(Cli, MixComparesSeveralTemperatures) {
-  // Phosphate 0.025/0.025 mol/kg: 6.951 (5 °C), 6.865 (25 °C), 6.841 (37 °C) (IUPAC 2002 [memory];
+  // Phosphate 0.025/0.025 mol/kg: 6.951 (5 °C), 6.865 (25 °C), 6.841 (37 °C) (IUPAC, Buck et al. 2002; recalled, to be verified;
   // Ph. Eur. 5.0 Table 2.2.3.-2: 6.87 at 25 °C). The text table lists the three states.
   const RunResult r = run("mix --add KH2PO4=0.025mol/kg --add Na2HPO4=0.025mol/kg --temp 5,25,37 --format csv");
   ASSERT_EQ(r.code, 0) << r.err;
