@@ -35,6 +35,7 @@
 #include "pkarta/analyses/screen.h"
 #include "pkarta/analyses/uncertainty.h"
 #include "pkarta/writers/fit_writer.h"
+#include "pkarta/writers/mix_writer.h"
 #include "pkarta/report/report.h"
 #include "pkarta/report/svg_chart.h"
 

@@ -6,6 +6,7 @@
 #include "cli_common.h"
 #include "commands.h"
 #include "pkarta/analyses/mix.h"
+#include "pkarta/writers/mix_writer.h"
 
 namespace pkarta::cli {
 

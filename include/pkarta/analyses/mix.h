@@ -1,8 +1,7 @@
-// `pkarta mix`: one closed-system equilibrium, with capacity and osmolarity, and its writers.
+// `pkarta mix`: one closed-system equilibrium, with capacity and osmolarity.
 #ifndef PKARTA_MIX_H_
 #define PKARTA_MIX_H_
 
-#include <ostream>
 #include <string>
 #include <vector>
 
@@ -24,10 +23,6 @@ inline constexpr double kOsmoticCoefficient = 0.93;
 
 /// Solves the mixture and derives capacity and the osmolality estimate.
 MixResult analyse_mix(const Mixture& mixture, std::vector<std::string> inputs);
-
-void write_mix_text(const MixResult& result, std::ostream& out);
-void write_mix_csv(const MixResult& result, std::ostream& out);
-void write_mix_json(const MixResult& result, std::ostream& out);
 
 }  // namespace pkarta
 

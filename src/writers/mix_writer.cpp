@@ -1,0 +1,103 @@
+#include "pkarta/writers/mix_writer.h"
+
+#include <nlohmann/json.hpp>
+
+#include "pkarta/base/format.h"
+
+namespace pkarta {
+
+void write_mix_text(const MixResult& r, std::ostream& out) {
+  const Equilibrium& e = r.equilibrium;
+  out << "Closed-system equilibrium at " << fixed(e.temperature_C, 1) << " °C\n";
+  if (!r.inputs.empty()) {
+    out << "  contents: ";
+    for (std::size_t i = 0; i < r.inputs.size(); ++i) out << (i ? ", " : "") << r.inputs[i];
+    out << "\n";
+  }
+  out << "\n";
+  TextTable summary({"quantity", "value"});
+  summary.add_row({"pH", fixed(e.pH, 3)});
+  summary.add_row({"ionic strength (mol/L)", sig(e.ionic_strength_mol_per_L, 4)});
+  summary.add_row({"buffer capacity (mol/L per pH)", sig(r.capacity_mol_per_L_per_pH, 4)});
+  summary.add_row({"osmolarity, ideal (mOsm/L)", fixed(e.osmolarity_mOsm_per_L, 1)});
+  summary.add_row({"osmolality estimate (mOsm/kg), to be measured", fixed(r.osmolality_estimate_mOsm_per_kg, 1)});
+  summary.write(out);
+  if (e.drug) {
+    const DrugState& d = *e.drug;
+    out << "\nDrug" << (r.drug_name.empty() ? "" : " (" + r.drug_name + ")") << "\n";
+    TextTable dt({"quantity", "value"});
+    dt.add_row({"dose (mol/L)", sig(d.dose_mol_per_L, 4)});
+    dt.add_row({"dissolved (mol/L)", sig(d.dissolved_mol_per_L, 4)});
+    dt.add_row({"dissolved, as free form (mg/mL)", sig(d.dissolved_mg_per_mL, 4)});
+    dt.add_row({"solid remaining", d.solid});
+    dt.add_row({"saturation ratio (whole dose dissolved)", sig(d.saturation_ratio, 4)});
+    dt.write(out);
+  }
+  out << "\nSpecies\n";
+  TextTable st({"species", "charge", "conc (mol/L)", "activity coeff."});
+  for (const Species& s : e.species) {
+    st.add_row({s.name, std::to_string(s.charge), sig(s.conc_mol_per_L, 4), fixed(s.activity_coefficient, 4)});
+  }
+  st.write(out);
+  if (!e.warnings.empty()) {
+    out << "\n";
+    for (const std::string& w : e.warnings) out << "warning: " << w << "\n";
+  }
+  out << "\nActivity model: Davies; pH = -log10 a(H+). " << caution_text() << "\n";
+}
+
+void write_mix_csv(const MixResult& r, std::ostream& out) {
+  const Equilibrium& e = r.equilibrium;
+  write_csv_row(out, {"quantity", "value", "unit"});
+  write_csv_row(out, {"pH", fixed(e.pH, 4), ""});
+  write_csv_row(out, {"temperature", fixed(e.temperature_C, 2), "C"});
+  write_csv_row(out, {"ionic_strength", sig(e.ionic_strength_mol_per_L, 6), "mol/L"});
+  write_csv_row(out, {"osmolarity", fixed(e.osmolarity_mOsm_per_L, 2), "mOsm/L"});
+  write_csv_row(out, {"capacity", sig(r.capacity_mol_per_L_per_pH, 6), "mol/L per pH"});
+  if (e.drug) {
+    write_csv_row(out, {"drug_dose", sig(e.drug->dose_mol_per_L, 6), "mol/L"});
+    write_csv_row(out, {"drug_dissolved", sig(e.drug->dissolved_mol_per_L, 6), "mol/L"});
+    write_csv_row(out, {"drug_solid", e.drug->solid, ""});
+    write_csv_row(out, {"drug_saturation_ratio", sig(e.drug->saturation_ratio, 6), ""});
+  }
+  out << "\r\n";
+  write_csv_row(out, {"species", "system", "charge", "conc (mol/L)", "activity coefficient"});
+  for (const Species& s : e.species) {
+    write_csv_row(out, {s.name, s.system, std::to_string(s.charge), sig(s.conc_mol_per_L, 6),
+                        fixed(s.activity_coefficient, 6)});
+  }
+}
+
+void write_mix_json(const MixResult& r, std::ostream& out) {
+  const Equilibrium& e = r.equilibrium;
+  nlohmann::ordered_json j;
+  j["pH"] = e.pH;
+  j["temperature_C"] = e.temperature_C;
+  j["ionic_strength_mol_per_L"] = e.ionic_strength_mol_per_L;
+  j["osmolarity_mOsm_per_L"] = e.osmolarity_mOsm_per_L;
+  j["osmolality_estimate_mOsm_per_kg"] = r.osmolality_estimate_mOsm_per_kg;
+  j["capacity_mol_per_L_per_pH"] = r.capacity_mol_per_L_per_pH;
+  nlohmann::ordered_json sp = nlohmann::ordered_json::array();
+  for (const Species& s : e.species) {
+    sp.push_back({{"name", s.name},
+                  {"system", s.system},
+                  {"charge", s.charge},
+                  {"conc_mol_per_L", s.conc_mol_per_L},
+                  {"activity_coefficient", s.activity_coefficient}});
+  }
+  j["species"] = sp;
+  if (e.drug) {
+    j["drug"] = {{"dose_mol_per_L", e.drug->dose_mol_per_L},
+                 {"dissolved_mol_per_L", e.drug->dissolved_mol_per_L},
+                 {"dissolved_mg_per_mL", e.drug->dissolved_mg_per_mL},
+                 {"solid", e.drug->solid},
+                 {"saturation_ratio", e.drug->saturation_ratio}};
+  } else {
+    j["drug"] = nullptr;
+  }
+  j["warnings"] = e.warnings;
+  j["caution"] = caution_text();
+  out << j.dump(2) << "\n";
+}
+
+}  // namespace pkarta
