@@ -1,6 +1,7 @@
 #include "pkarta/io/atomic_file.h"
 
 #include <fcntl.h>
+#include <sys/file.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -8,6 +9,9 @@
 #include <cstdio>
 #include <cstring>
 #include <filesystem>
+#include <fstream>
+#include <set>
+#include <sstream>
 #include <system_error>
 
 #include "pkarta/base/error.h"
@@ -109,6 +113,133 @@ void write_file_atomically(const std::string& path, std::string_view content,
     ::unlink(tmp.c_str());
     fail(err);
   }
+}
+
+namespace {
+
+// Writes a whole file (no temporary: used inside a temporary folder).
+void write_plain(const fs::path& path, std::string_view content) {
+  const int fd = ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0666);
+  if (fd < 0) throw std::system_error(errno, std::generic_category(), "cannot write " + path.string());
+  const char* p = content.data();
+  std::size_t left = content.size();
+  while (left > 0) {
+    const ssize_t n = ::write(fd, p, left);
+    if (n < 0 && errno == EINTR) continue;
+    if (n < 0) {
+      const int err = errno;
+      ::close(fd);
+      throw std::system_error(err, std::generic_category(), "cannot write " + path.string());
+    }
+    p += n;
+    left -= static_cast<std::size_t>(n);
+  }
+  if (::close(fd) != 0) throw std::system_error(errno, std::generic_category(), "cannot write " + path.string());
+}
+
+// The names a set's manifest lists (empty when there is none).
+std::set<std::string> manifest_names(const fs::path& folder) {
+  std::set<std::string> names;
+  std::ifstream in(folder / kSetManifest);
+  std::string line;
+  while (std::getline(in, line)) {
+    if (!line.empty()) names.insert(line);
+  }
+  return names;
+}
+
+// Holds an exclusive lock on a folder while it lives (flock on the folder itself).
+class FolderLock {
+ public:
+  explicit FolderLock(const fs::path& dir) : fd_(::open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC)) {
+    if (fd_ >= 0) {
+      while (::flock(fd_, LOCK_EX) != 0 && errno == EINTR) {
+      }
+    }
+  }
+  ~FolderLock() {
+    if (fd_ >= 0) ::close(fd_);
+  }
+  FolderLock(const FolderLock&) = delete;
+  FolderLock& operator=(const FolderLock&) = delete;
+
+ private:
+  int fd_;
+};
+
+}  // namespace
+
+void write_file_set(const std::string& main_path, std::string_view main_content, const std::string& folder_path,
+                    const std::vector<SetFile>& files, const std::vector<std::string>& inputs_to_protect) {
+  refuse_to_overwrite_inputs(main_path, inputs_to_protect);
+  const fs::path folder(folder_path);
+  const std::string folder_name = folder.filename().string();
+  if (folder_name.empty() || folder_name == "." || folder_name == "..") {
+    throw InputError(SourceLocation{main_path, 0, 0},
+                     "the tables would go into the folder '" + folder_path + "'; choose an output name such as report.html");
+  }
+  const fs::path dir = folder.has_parent_path() ? folder.parent_path() : fs::path(".");
+  const FolderLock lock(dir);
+  std::error_code ec;
+  const bool had_folder = fs::exists(folder, ec);
+  if (had_folder) {
+    if (!fs::is_directory(folder, ec)) {
+      throw InputError(SourceLocation{folder_path, 0, 0},
+                       "the tables' folder is " + non_regular_kind(folder_path) + " or a file; choose another output name");
+    }
+    const std::set<std::string> ours = manifest_names(folder);
+    for (const fs::directory_entry& e : fs::directory_iterator(folder, ec)) {
+      const std::string name = e.path().filename().string();
+      if (name != kSetManifest && ours.count(name) == 0) {
+        throw InputError(SourceLocation{folder_path, 0, 0},
+                         "the folder holds files pkarta did not write (" + name +
+                             "); choose another output name or move them");
+      }
+    }
+  }
+  // 1. The new folder, complete, under a temporary name.
+  fs::path staged;
+  for (int attempt = 0; attempt < 1000; ++attempt) {
+    staged = dir / ("." + folder_name + "." + std::to_string(::getpid()) + "-" + std::to_string(attempt) + ".tmp");
+    if (::mkdir(staged.c_str(), 0777) == 0) break;
+    if (errno != EEXIST) throw std::system_error(errno, std::generic_category(), "cannot write " + folder_path);
+    staged.clear();
+  }
+  if (staged.empty()) throw std::system_error(EEXIST, std::generic_category(), "cannot write " + folder_path);
+  fs::path staged_main;
+  try {
+    std::ostringstream manifest;
+    for (const SetFile& f : files) {
+      write_plain(staged / f.name, f.content);
+      manifest << f.name << "\n";
+    }
+    write_plain(staged / kSetManifest, manifest.str());
+    // 2. The main file, under a temporary name too.
+    staged_main = dir / ("." + fs::path(main_path).filename().string() + "." + std::to_string(::getpid()) + ".tmp");
+    fs::remove(staged_main, ec);
+    write_plain(staged_main, main_content);
+    struct stat old_stat {};
+    if (::stat(main_path.c_str(), &old_stat) == 0) {
+      (void)::chmod(staged_main.c_str(), old_stat.st_mode & 07777);
+    }
+    // 3. Folder and main file into place, one right after the other.
+    if (had_folder) {
+      if (::renameat2(AT_FDCWD, staged.c_str(), AT_FDCWD, folder.c_str(), RENAME_EXCHANGE) != 0) {
+        throw std::system_error(errno, std::generic_category(), "cannot write " + folder_path);
+      }
+    } else if (::rename(staged.c_str(), folder.c_str()) != 0) {
+      throw std::system_error(errno, std::generic_category(), "cannot write " + folder_path);
+    }
+    if (::rename(staged_main.c_str(), main_path.c_str()) != 0) {
+      throw std::system_error(errno, std::generic_category(), "cannot write " + main_path);
+    }
+  } catch (...) {
+    fs::remove_all(staged, ec);
+    if (!staged_main.empty()) fs::remove(staged_main, ec);
+    throw;
+  }
+  // 4. The old tables (now under the temporary name) go.
+  fs::remove_all(staged, ec);
 }
 
 }  // namespace pkarta

@@ -1304,23 +1304,15 @@ std::vector<std::string> write_report_files(const ReportData& data, const std::s
   const fs::path html(html_path);
   const std::string stem = html.stem().string();
   const fs::path folder = html.parent_path() / stem;
-  refuse_to_overwrite_inputs(html_path, inputs_to_protect);
-  // The HTML's folder must exist (a mistyped folder is not created); the CSV folder is made.
-  if (html.has_parent_path() && !fs::is_directory(html.parent_path())) {
-    throw std::system_error(ENOENT, std::generic_category(), "cannot write " + html_path);
-  }
-  std::error_code ec;
-  fs::create_directories(folder, ec);
-  if (ec) throw std::system_error(ec, "cannot create folder " + folder.string());
+  std::vector<SetFile> tables;
   std::vector<std::string> written;
   for (const ReportTable& t : report_tables(data)) {
-    const std::string path = (folder / t.file).string();
-    write_file_atomically(path, table_csv(t), inputs_to_protect);
-    written.push_back(path);
+    tables.push_back({t.file, table_csv(t)});
+    written.push_back((folder / t.file).string());
   }
   std::ostringstream out;
   write_report_html(data, stem, out);
-  write_file_atomically(html_path, out.str(), inputs_to_protect);
+  write_file_set(html_path, out.str(), folder.string(), tables, inputs_to_protect);
   written.push_back(html_path);
   return written;
 }

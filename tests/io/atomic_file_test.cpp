@@ -2,6 +2,9 @@
 #include "pkarta/io/atomic_file.h"
 
 #include <gtest/gtest.h>
+#include <sys/wait.h>
+#include <unistd.h>
+#include <vector>
 #include <iterator>
 #include <sys/sysmacros.h>
 #include <sys/stat.h>
@@ -128,3 +131,77 @@ TEST(AtomicFile, OverwrittenFileKeepsItsModeAndALinkStaysALink) {
 }
 
 }  // namespace
+
+// --- Sets (a report and its table folder) ---------------------------------------------------
+namespace {
+
+std::string read_all(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  return std::string((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+}
+
+std::vector<pkarta::SetFile> tables(const std::string& tag, int n) {
+  std::vector<pkarta::SetFile> t;
+  for (int i = 0; i < n; ++i) t.push_back({"t" + std::to_string(i) + ".csv", tag + "\n"});
+  return t;
+}
+
+}  // namespace
+
+TEST(FileSet, ReplacesTheWholeSetAndDropsStaleTables) {
+  const std::string dir = fresh_dir("set");
+  pkarta::write_file_set(dir + "/r.html", "first", dir + "/r", tables("first", 5), {});
+  pkarta::write_file_set(dir + "/r.html", "second", dir + "/r", tables("second", 2), {});
+  EXPECT_EQ(read_all(dir + "/r.html"), "second");
+  EXPECT_EQ(read_all(dir + "/r/t1.csv"), "second\n");
+  EXPECT_FALSE(fs::exists(dir + "/r/t4.csv")) << "a table of the earlier, larger set was left";
+  int entries = 0;
+  for ([[maybe_unused]] const auto& e : fs::directory_iterator(dir)) ++entries;
+  EXPECT_EQ(entries, 2) << "temporary files or folders were left";
+}
+
+TEST(FileSet, RefusesAFolderWithFilesItDidNotWriteAndTheDotDotName) {
+  const std::string dir = fresh_dir("foreign");
+  fs::create_directories(dir + "/d");
+  { std::ofstream(dir + "/d/profile.csv") << "the user's own table"; }
+  EXPECT_THROW(pkarta::write_file_set(dir + "/d.html", "x", dir + "/d", tables("x", 1), {}), pkarta::InputError);
+  EXPECT_EQ(read_all(dir + "/d/profile.csv"), "the user's own table");
+  EXPECT_FALSE(fs::exists(dir + "/d.html"));
+  // `-o d/..html`: the tables would go into d/.. itself.
+  EXPECT_THROW(pkarta::write_file_set(dir + "/d/..html", "x", dir + "/d/..", tables("x", 1), {}),
+               pkarta::InputError);
+  EXPECT_EQ(read_all(dir + "/d/profile.csv"), "the user's own table");
+}
+
+TEST(FileSet, EightConcurrentWritersLeaveOneCompleteSet) {
+  const std::string dir = fresh_dir("parallel");
+  std::vector<pid_t> children;
+  for (int w = 0; w < 8; ++w) {
+    const pid_t pid = fork();
+    if (pid == 0) {
+      const std::string tag = "writer" + std::to_string(w);
+      try {
+        for (int k = 0; k < 5; ++k) pkarta::write_file_set(dir + "/r.html", tag, dir + "/r", tables(tag, 3 + w % 3), {});
+      } catch (...) {
+        _exit(1);
+      }
+      _exit(0);
+    }
+    children.push_back(pid);
+  }
+  for (pid_t pid : children) {
+    int status = 0;
+    waitpid(pid, &status, 0);
+    EXPECT_TRUE(WIFEXITED(status) && WEXITSTATUS(status) == 0);
+  }
+  const std::string tag = read_all(dir + "/r.html");
+  ASSERT_EQ(tag.rfind("writer", 0), 0u);
+  const int n = 3 + std::stoi(tag.substr(6)) % 3;
+  int csv = 0;
+  for (const auto& e : fs::directory_iterator(dir + "/r")) {
+    if (e.path().extension() != ".csv") continue;
+    ++csv;
+    EXPECT_EQ(read_all(e.path().string()), tag + "\n") << "a table of another run beside the HTML";
+  }
+  EXPECT_EQ(csv, n);
+}

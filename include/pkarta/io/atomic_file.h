@@ -32,6 +32,29 @@ void write_file_atomically(const std::string& path, std::string_view content,
 /// Commands call it before they compute, so a bad output path costs nothing and writes nothing.
 void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::string>& inputs);
 
+/// One file of a set: its name inside the set's folder and its content.
+struct SetFile {
+  std::string name;
+  std::string content;
+};
+
+/// Name of the list of files kept in a set's folder, so that pkarta knows which files it wrote.
+inline constexpr const char* kSetManifest = ".pkarta-files";
+
+/// Writes a set: `main_path` (e.g. an HTML report) and beside it the folder `folder_path` with
+/// `files` (its CSV tables), as one unit. The whole new folder is written under a temporary
+/// name first and then exchanged with the old one in one rename (Linux renameat2 with
+/// RENAME_EXCHANGE), and the main file is renamed into place right after, so a reader or a
+/// kill sees the old set or the new set; the only window where tables and main file belong to
+/// different runs is between those two renames (microseconds). Stale files of an earlier,
+/// larger set go with the old folder. Concurrent writers in one folder are serialised by a lock
+/// on that folder, so eight writers to the same path leave one complete set.
+/// Refuses (InputError, before writing anything) a folder that holds files pkarta did not write
+/// (no manifest lists them), a folder name "." or "..", and everything refuse_to_overwrite_inputs
+/// refuses. A failed run removes what it wrote and leaves the old set as it was.
+void write_file_set(const std::string& main_path, std::string_view main_content, const std::string& folder_path,
+                    const std::vector<SetFile>& files, const std::vector<std::string>& inputs_to_protect);
+
 }  // namespace pkarta
 
 #endif  // PKARTA_ATOMIC_FILE_H_

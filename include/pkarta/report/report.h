@@ -168,9 +168,9 @@ std::string table_csv(const ReportTable& table);
 void write_report_html(const ReportData& data, const std::string& csv_folder, std::ostream& out);
 
 /// Writes `html_path` and, beside it, the folder NAME/ (NAME = html file name without
-/// extension) with one CSV file per table, each through a temporary file and a rename; the CSV
-/// files come first, so a complete HTML file always has its tables. Refuses (InputError) to
-/// overwrite any of `inputs_to_protect`; write failures throw std::system_error naming the file.
+/// extension) with one CSV file per table, as one set (write_file_set: the old set or the new
+/// one, never a mix; a folder with files pkarta did not write is refused). Refuses (InputError)
+/// to overwrite any of `inputs_to_protect`; write failures throw std::system_error naming the file.
 /// Returns the paths written (CSV files, then the HTML file).
 std::vector<std::string> write_report_files(const ReportData& data, const std::string& html_path,
                                             const std::vector<std::string>& inputs_to_protect);
