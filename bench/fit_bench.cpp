@@ -1,4 +1,4 @@
-// Benchmarks of fit and Monte Carlo bands (Google Benchmark). Figures are quoted in DEVELOPERS.md.
+// Benchmarks of fit and Monte Carlo bands (Google Benchmark). Figures are quoted in docs/performance.md.
 #include <benchmark/benchmark.h>
 
 #include <cmath>

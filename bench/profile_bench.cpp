@@ -1,4 +1,4 @@
-// Benchmark of the pH-solubility profile (figure quoted in DEVELOPERS.md).
+// Benchmark of the pH-solubility profile (figure quoted in docs/performance.md).
 #include <benchmark/benchmark.h>
 
 #include "pkarta/chem/mixture_builder.h"

@@ -1,4 +1,4 @@
-// Benchmarks of the buffer screen (Google Benchmark). Figures are quoted in DEVELOPERS.md.
+// Benchmarks of the buffer screen (Google Benchmark). Figures are quoted in docs/performance.md.
 #include <benchmark/benchmark.h>
 
 #include <algorithm>

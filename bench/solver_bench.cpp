@@ -1,4 +1,4 @@
-// Benchmarks (Google Benchmark). Figures are quoted in DEVELOPERS.md.
+// Benchmarks (Google Benchmark). Figures are quoted in docs/performance.md.
 #include <benchmark/benchmark.h>
 
 #include <random>

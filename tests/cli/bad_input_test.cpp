@@ -1,4 +1,4 @@
-// The table of bad inputs of DEVELOPERS.md ("Hardening"): options, compound files, library
+// The table of bad inputs of docs/hardening.md ("Bad inputs"): options, compound files, library
 // files and data the model does not cover. Each case is run through the pkarta binary; it must
 // exit with the stated code, say the stated words on stderr and print nothing on stdout.
 // The test prints one line per case, the source of the table.
