@@ -4,12 +4,9 @@
 
 #include "cli_common.h"
 #include "commands.h"
-#include <cmath>
-
-#include <nlohmann/json.hpp>
-
 #include "pkarta/analyses/profile.h"
 #include "pkarta/analyses/uncertainty.h"
+#include "pkarta/writers/profile_writer.h"
 #include "progress_bar.h"
 
 namespace pkarta::cli {
@@ -149,32 +146,11 @@ int run_profile(const Args& args) {
       bands = profile_bands(c, lib, ph, cond, samples, static_cast<std::uint64_t>(seed_value), run);
     }
     if (common.format == "json") {
-      if (samples > 0) {
-        std::ostringstream raw;
-        write_profile_json(p, raw);
-        nlohmann::ordered_json j = nlohmann::ordered_json::parse(raw.str());
-        for (std::size_t i = 0; i < j["points"].size() && i < bands.pH.size(); ++i) {
-          j["points"][i]["solubility_p05_mol_per_L"] = std::pow(10.0, bands.p05_log10_mol_per_L[i]);
-          j["points"][i]["solubility_p50_mol_per_L"] = std::pow(10.0, bands.p50_log10_mol_per_L[i]);
-          j["points"][i]["solubility_p95_mol_per_L"] = std::pow(10.0, bands.p95_log10_mol_per_L[i]);
-        }
-        j["uncertainty"] = {{"samples", samples}, {"seed", static_cast<std::uint64_t>(seed_value)}};
-        std::cout << j.dump(2) << "\n";
-      } else {
-        write_profile_json(p, std::cout);
-      }
+      write_profile_json(p, bands, std::cout);
     } else if (common.format == "csv") {
-      write_profile_csv(p, std::cout);
-      if (samples > 0) {
-        std::cout << "\r\n";
-        write_profile_bands_csv(bands, std::cout);
-      }
+      write_profile_csv(p, bands, std::cout);
     } else {
-      write_profile_text(p, std::cout, explicit_grid || vm.count("points") ? 0.0 : 0.5);
-      if (samples > 0) {
-        std::cout << "\n";
-        write_profile_bands_text(bands, std::cout);
-      }
+      write_profile_text(p, bands, std::cout, explicit_grid || vm.count("points") ? 0.0 : 0.5);
     }
     if (common.format != "text") {
       for (const std::string& w : p.warnings) std::cerr << "pkarta: warning: " << w << "\n";

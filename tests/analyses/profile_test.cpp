@@ -13,6 +13,7 @@
 
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/analyses/profile.h"
+#include "pkarta/writers/profile_writer.h"
 #include "pkarta/chem/water.h"
 #include "pkarta/io/xml_input.h"
 

@@ -16,7 +16,6 @@
 #define PKARTA_PROFILE_H_
 
 #include <memory>
-#include <ostream>
 #include <string>
 #include <vector>
 
@@ -160,14 +159,6 @@ struct Profile {
 Profile compute_profile(const Compound& compound, const Library& library,
                         const ProfileConditions& conditions, const ProfileGrid& grid,
                         std::vector<std::string> medium_contents = {});
-
-/// Text: header, pHmax, derived Ksp, the table, notes, warnings and the caution. With
-/// row_interval_pH > 0 only rows whose pH is a multiple of it are printed (0: every row).
-void write_profile_text(const Profile& profile, std::ostream& out, double row_interval_pH = 0.0);
-/// CSV (RFC 4180): the points table, then blocks for pHmax, derived Ksp and notes.
-void write_profile_csv(const Profile& profile, std::ostream& out);
-/// JSON: keys of docs/commands.md plus species, derived_ksp, notes, warnings, caution.
-void write_profile_json(const Profile& profile, std::ostream& out);
 
 }  // namespace pkarta
 
