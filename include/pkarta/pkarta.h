@@ -34,6 +34,7 @@
 #include "pkarta/analyses/recipe.h"
 #include "pkarta/analyses/screen.h"
 #include "pkarta/analyses/uncertainty.h"
+#include "pkarta/writers/classify_writer.h"
 #include "pkarta/writers/fit_writer.h"
 #include "pkarta/writers/mix_writer.h"
 #include "pkarta/writers/profile_writer.h"

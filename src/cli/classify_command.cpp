@@ -5,6 +5,7 @@
 #include "commands.h"
 #include "pkarta/analyses/classify.h"
 #include "pkarta/analyses/profile.h"
+#include "pkarta/writers/classify_writer.h"
 
 namespace pkarta::cli {
 

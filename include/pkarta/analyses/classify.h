@@ -14,7 +14,6 @@
 #ifndef PKARTA_CLASSIFY_H_
 #define PKARTA_CLASSIFY_H_
 
-#include <ostream>
 #include <string>
 #include <vector>
 
@@ -91,12 +90,6 @@ inline const char* const kClassifyMedia[] = {"hcl-1.2", "acetate-4.5", "phosphat
 /// Classifies the compound's solubility at the dose. Throws InputError for invalid options
 /// (naming the field), an unknown form, or a titrant that is not a strong acid or base.
 ClassifyResult classify(const Compound& compound, const Library& library, const ClassifyOptions& options);
-
-void write_classify_text(const ClassifyResult& result, std::ostream& out);
-/// CSV (RFC 4180): the points table, then the summary, the media and the notes.
-void write_classify_csv(const ClassifyResult& result, std::ostream& out);
-/// JSON: keys of docs/commands.md plus dose, convention, media, notes, warnings, caution.
-void write_classify_json(const ClassifyResult& result, std::ostream& out);
 
 }  // namespace pkarta
 
