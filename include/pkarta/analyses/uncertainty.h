@@ -71,11 +71,6 @@ ProfileBands profile_bands(const Compound& compound, const Library& library,
                            const std::vector<double>& pH_grid, const ProfileConditions& conditions,
                            int samples, std::uint64_t seed, const MonteCarloRun& run = {});
 
-/// Text table of the bands (pH, nominal, 5 %, 50 %, 95 % in mol/L and the band width in log10).
-void write_profile_bands_text(const ProfileBands& bands, std::ostream& out);
-/// CSV: pH, solubility_mol_per_L (nominal), p05/p50/p95 _mol_per_L.
-void write_profile_bands_csv(const ProfileBands& bands, std::ostream& out);
-
 /// Bands of one buffer's min_conc over the samples.
 struct ScreenBand {
   std::string buffer;                 ///< buffer id

@@ -6,6 +6,7 @@
 
 #include "pkarta/analyses/profile.h"
 #include "pkarta/analyses/uncertainty.h"
+#include "pkarta/writers/uncertainty_writer.h"
 
 namespace pkarta {
 
