@@ -115,17 +115,19 @@ class BufferRun {
     return p;
   }
 
-  // The buffer at `prep` plus the dose (scaled by dose_factor) in the template mixture.
-  const Mixture& mixture(const BufferPreparation& prep, double dose_factor = 1.0) {
+  // The buffer at `prep` plus the dose (scaled by dose_factor) in the template mixture, plus
+  // `challenge` mol/L of strong acid (> 0, the acid titrant) or strong base (< 0).
+  const Mixture& mixture(const BufferPreparation& prep, double dose_factor = 1.0, double challenge = 0.0) {
     mix_.systems[0].total_mol_per_L = prep.conc_mol_per_L;
+    const double acid = (prep.titrant == acid_.id ? prep.titrant_mol_per_L : 0.0) + std::max(challenge, 0.0);
+    const double base = (prep.titrant == base_.id ? prep.titrant_mol_per_L : 0.0) + std::max(-challenge, 0.0);
     for (std::size_t k = 0; k < mix_.ions.size(); ++k) {
       double c = base_ion_conc_[k] * dose_factor;  // the drug's counterion scales with the dose
-      for (const Titrant* t : {&acid_, &base_}) {
-        if (t->id != prep.titrant) continue;
+      for (const auto& [t, amount] : {std::pair<const Titrant*, double>{&acid_, acid}, {&base_, base}}) {
+        if (amount <= 0) continue;
         for (const IonAmount& i : t->ions) {
-          if (i.id == mix_.ions[k].id) c += i.conc_mol_per_L * prep.titrant_mol_per_L;
+          if (i.id == mix_.ions[k].id) c += i.conc_mol_per_L * amount;
         }
-        break;
       }
       mix_.ions[k].conc_mol_per_L = c;
     }
@@ -133,11 +135,54 @@ class BufferRun {
     return mix_;
   }
 
+  // The preparation at total conc: premade, the buffer alone at the target; adjusted, the
+  // titrant that brings buffer plus dose to the target (Newton steps on the signed titrant
+  // amount with the buffer capacity of the formulation as slope).
+  BufferPreparation prepare_for(double conc, double target, ScreenPreparation how) {
+    BufferPreparation p = prepare(conc, target);
+    if (how == ScreenPreparation::kPremade || !p.converged || !mix_.drug) return p;
+    // Signed strong charge of the titrant per litre (acid titrant negative, base positive).
+    auto set = [&](double s) {
+      p.titrant = s > 0 ? base_.id : (s < 0 ? acid_.id : "");
+      p.titrant_mol_per_L = s > 0 ? s / base_.net_charge : (s < 0 ? s / acid_.net_charge : 0.0);
+    };
+    double signed_base = p.titrant == base_.id ? p.titrant_mol_per_L * base_.net_charge
+                                        : p.titrant_mol_per_L * acid_.net_charge;
+    set(signed_base);
+    double guess = target;
+    p.converged = false;
+    for (int it = 0; it < 60; ++it) {
+      const Mixture& m = mixture(p);
+      EquilibriumModel model(m);
+      const StateSummary s = model.solve(options_, guess);
+      if (!s.converged) return p;
+      guess = s.pH;
+      if (std::fabs(s.pH - target) < 1e-7) {
+        p.converged = true;
+        p.ionic_strength_mol_per_L = s.ionic_strength_mol_per_L;
+        break;
+      }
+      const double beta = std::max(buffer_capacity(m), 1e-12);
+      double step = beta * (target - s.pH);
+      // Newton on a sigmoid: keep each step within the capacity over one pH unit.
+      const double cap = beta * 1.0;
+      step = std::clamp(step, -cap, cap);
+      signed_base += step;
+      set(signed_base);
+    }
+    return p;
+  }
+
   // pH after the drug at total buffer concentration conc (NaN when a solve fails).
-  double ph_after(double conc, double target, double guess, double dose_factor = 1.0) {
-    const BufferPreparation prep = prepare(conc, target);
+  double ph_after(double conc, double target, double guess, double dose_factor = 1.0,
+                  ScreenPreparation how = ScreenPreparation::kPremade, double challenge = 0.0) {
+    const BufferPreparation prep = prepare_for(conc, target, how);
     if (!prep.converged) return kNaN;
-    EquilibriumModel model(mixture(prep, dose_factor));
+    return ph_of(prep, guess, dose_factor, challenge);
+  }
+
+  double ph_of(const BufferPreparation& prep, double guess, double dose_factor = 1.0, double challenge = 0.0) {
+    EquilibriumModel model(mixture(prep, dose_factor, challenge));
     const StateSummary s = model.solve(options_, guess);
     return s.converged ? s.pH : kNaN;
   }
@@ -244,11 +289,27 @@ bool ScreenOptions::is_valid(std::string* error) const {
     return fail("rel_precision", rel_precision, "within 0 to 1e-3");
   }
   if (!(pka_window_pH > 0.0)) return fail("pka_window_pH", pka_window_pH, "> 0");
+  if (!(challenge_mol_per_L >= 0.0 && challenge_mol_per_L < 10.0)) {
+    return fail("challenge_mol_per_L", challenge_mol_per_L, "within 0 to 10");
+  }
+  if (!(min_capacity_mol_per_L_per_pH >= 0.0 && std::isfinite(min_capacity_mol_per_L_per_pH))) {
+    return fail("min_capacity_mol_per_L_per_pH", min_capacity_mol_per_L_per_pH, ">= 0");
+  }
+  if (max_drift_pH && !(*max_drift_pH > 0.0 && std::isfinite(*max_drift_pH))) {
+    return fail("max_drift_pH", *max_drift_pH, "> 0");
+  }
+  if (!(round_step_mol_per_L >= 0.0 && std::isfinite(round_step_mol_per_L))) {
+    return fail("round_step_mol_per_L", round_step_mol_per_L, ">= 0");
+  }
   if (std::find(known_routes().begin(), known_routes().end(), route) == known_routes().end()) {
     *error = "ScreenOptions::route = \"" + route + "\", must be one of any, oral, parenteral, ophthalmic, topical";
     return false;
   }
   return true;
+}
+
+const char* screen_preparation_name(ScreenPreparation preparation) {
+  return preparation == ScreenPreparation::kAdjusted ? "adjusted" : "premade";
 }
 
 const char* screen_status_name(ScreenStatus status) {
@@ -285,7 +346,7 @@ double ph_after_drug(const Library& library, const Buffer& buffer, double conc_m
                      const Compound& compound, double dose_mol_per_L, const std::string& form,
                      const ScreenOptions& options) {
   BufferRun run(library, buffer, &compound, dose_mol_per_L, form, options.temperature_C, options.activity);
-  return run.ph_after(conc_mol_per_L, options.target_pH, options.target_pH);
+  return run.ph_after(conc_mol_per_L, options.target_pH, options.target_pH, 1.0, options.preparation);
 }
 
 double screen_solubility_at_target(const Library& library, const Compound& compound,
@@ -316,6 +377,92 @@ std::vector<const Buffer*> screen_candidates(const Library& library, const Scree
   return out;
 }
 
+namespace {
+
+// One criterion: a test of the formulation at total buffer concentration C.
+struct CriterionTest {
+  ScreenCriterion info;
+  std::function<double(double conc)> value;  // NaN when a solve fails
+};
+
+bool passes(const ScreenCriterion& c, double v) {
+  return std::isfinite(v) && v >= c.limit_low && v <= c.limit_high;
+}
+
+// Walk down from max-conc in steps of a quarter decade while the criterion holds, then bisect
+// on log C between the last step inside and the first outside. The drift falls as the buffer
+// grows for the protolytic effect of the dose, but the ionic strength a salt dose brings also
+// shifts a charged buffer's apparent pKa, so |drift| can dip through zero at low C; the walk
+// reports the lower end of the range that reaches up to max-conc, the one that holds when the
+// buffer is made a little stronger.
+void search_minimum(CriterionTest& test, double max_conc, const ScreenOptions& options) {
+  ScreenCriterion& c = test.info;
+  double hi = max_conc;
+  if (!passes(c, test.value(hi))) return;
+  const double floor = std::min(options.min_conc_mol_per_L, hi);
+  const double step = std::pow(10.0, -kWalkStepDecades);
+  double lo = hi;
+  bool found_outside = false;
+  while (lo > floor) {
+    const double next = std::max(lo * step, floor);
+    if (!passes(c, test.value(next))) {
+      found_outside = true;
+      hi = lo;
+      lo = next;
+      break;
+    }
+    lo = next;
+  }
+  if (!found_outside) {
+    c.min_conc_mol_per_L = floor;
+    c.min_conc_at_lower_bound = true;
+    return;
+  }
+  while (hi / lo - 1.0 > options.rel_precision) {
+    const double mid = std::sqrt(lo * hi);
+    if (passes(c, test.value(mid))) hi = mid;
+    else lo = mid;
+  }
+  c.min_conc_mol_per_L = hi;
+}
+
+ScreenCriterion make_criterion(const char* id, const char* quantity, double low, double high) {
+  ScreenCriterion c;
+  c.id = id;
+  c.quantity = quantity;
+  c.limit_low = low;
+  c.limit_high = high;
+  return c;
+}
+
+}  // namespace
+
+const ScreenCriterion* ScreenResult::criterion(const std::string& id) const {
+  for (const ScreenCriterion& c : criteria) {
+    if (c.id == id) return &c;
+  }
+  return nullptr;
+}
+
+double round_up_strength(double min_conc, double max_conc, double step) {
+  double v;
+  if (step > 0) {
+    v = std::ceil(min_conc / step * (1 - 1e-9)) * step;
+    if (v < min_conc) v += step;
+  } else {
+    v = 1e-3;
+    const double mults[] = {1.0, 2.0, 5.0};
+    for (int decade = -3; decade <= 3 && v < min_conc * (1 - 1e-9); ++decade) {
+      for (double m : mults) {
+        v = m * std::pow(10.0, decade);
+        if (v >= min_conc * (1 - 1e-9)) break;
+      }
+    }
+    v = std::max(v, min_conc);
+  }
+  return std::min(v, max_conc);
+}
+
 ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const ScreenJob& job,
                            double solubility_at_target_mol_per_L, const ScreenOptions& options) {
   ScreenResult r;
@@ -326,6 +473,7 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
   const double target = options.target_pH;
   const double tol = options.tolerance_pH;
   const double T = options.temperature_C;
+  const ScreenPreparation how = options.preparation;
 
   const AcidBaseSystem& sys = library.system(buffer.system);
   double nearest = kNaN;
@@ -338,52 +486,114 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
 
   BufferRun run(library, buffer, &job.compound, job.dose_mol_per_L, job.form, T, options.activity);
 
-  // Search. Walk down from max-conc in steps of a quarter decade while the drift stays within
-  // the tolerance, then bisect on log C between the last step inside and the first outside.
-  // The drift falls as the buffer grows for the protolytic effect of the dose, but the ionic
-  // strength a salt dose brings also shifts a charged buffer's apparent pKa, so |drift| can
-  // dip through zero at low C; the walk reports the lower end of the range that reaches up
-  // to max-conc, the one that holds when the buffer is made a little stronger.
-  double hi = buffer.max_conc_mol_per_L;
-  double last_pH = run.ph_after(hi, target, target);
-  const bool achievable = within(last_pH, target, tol);
-  if (!std::isfinite(last_pH)) r.warnings.push_back("the equilibrium did not converge at max-conc");
-  if (achievable) {
-    const double floor = std::min(options.min_conc_mol_per_L, hi);
-    const double step = std::pow(10.0, -kWalkStepDecades);
-    double lo = hi;
-    bool found_outside = false;
-    double guess = last_pH;
-    while (lo > floor) {
-      const double next = std::max(lo * step, floor);
-      const double ph = run.ph_after(next, target, guess);
-      if (std::isfinite(ph)) guess = ph;
-      if (!within(ph, target, tol)) {
-        found_outside = true;
-        hi = lo;
-        lo = next;
-        break;
-      }
-      lo = next;
+  // The criteria, each a value of the formulation at total buffer concentration C.
+  std::vector<CriterionTest> tests;
+  tests.push_back({make_criterion("dose", "pH", target - tol, target + tol),
+                   [&](double c) { return run.ph_after(c, target, target, 1.0, how); }});
+  const double f = options.dose_range_fraction;
+  auto worst_in_range = [&](double c) {
+    const BufferPreparation prep = run.prepare_for(c, target, how);
+    if (!prep.converged) return kNaN;
+    const double nominal = run.ph_of(prep, target);
+    double worst = nominal;
+    for (double k : {-1.0, -0.5, 0.5, 1.0}) {
+      const double ph = run.ph_of(prep, nominal, 1.0 + k * f);
+      if (!std::isfinite(ph)) return kNaN;
+      if (std::fabs(ph - target) > std::fabs(worst - target)) worst = ph;
     }
-    if (!found_outside) {
-      hi = floor;
-      r.min_conc_at_lower_bound = true;
-    } else {
-      while (hi / lo - 1.0 > options.rel_precision) {
-        const double mid = std::sqrt(lo * hi);
-        const double ph = run.ph_after(mid, target, guess);
-        if (std::isfinite(ph)) guess = ph;
-        if (within(ph, target, tol)) hi = mid;
-        else lo = mid;
-      }
-    }
-    r.min_conc_mol_per_L = hi;
+    return worst;
+  };
+  if (f > 0) tests.push_back({make_criterion("dose-range", "worst pH", target - tol, target + tol), worst_in_range});
+  const double load = options.challenge_mol_per_L;
+  auto challenged = [&](double c, double amount) {
+    const BufferPreparation prep = run.prepare_for(c, target, how);
+    if (!prep.converged) return kNaN;
+    const double nominal = run.ph_of(prep, target);
+    return std::isfinite(nominal) ? run.ph_of(prep, nominal, 1.0, amount) : kNaN;
+  };
+  if (load > 0) {
+    tests.push_back({make_criterion("acid-challenge", "pH", target - tol, target + tol),
+                     [&](double c) { return challenged(c, load); }});
+    tests.push_back({make_criterion("base-challenge", "pH", target - tol, target + tol),
+                     [&](double c) { return challenged(c, -load); }});
   }
-  r.conc_used_mol_per_L = hi;
+  auto capacity = [&](double c) {
+    const BufferPreparation prep = run.prepare_for(c, target, how);
+    return prep.converged ? buffer_capacity(run.mixture(prep)) : kNaN;
+  };
+  if (options.min_capacity_mol_per_L_per_pH > 0) {
+    tests.push_back({make_criterion("min-capacity", "mol/L per pH", options.min_capacity_mol_per_L_per_pH, kInf),
+                     capacity});
+  }
+  auto storage_drift = [&](double c) {
+    const BufferPreparation prep = run.prepare_for(c, target, how);
+    if (!prep.converged) return kNaN;
+    const double nominal = run.ph_of(prep, target);
+    Mixture m = run.mixture(prep);
+    double worst = 0.0;
+    for (double temp : {options.low_temperature_C, options.high_temperature_C}) {
+      m.temperature_C = temp;
+      EquilibriumModel model(m);
+      const StateSummary s = model.solve(SolverOptions{}, nominal);
+      if (!s.converged) return kNaN;
+      worst = std::max(worst, std::fabs(s.pH - target));
+    }
+    return worst;
+  };
+  if (options.max_drift_pH) {
+    tests.push_back({make_criterion("storage-drift", "max |pH - target| at the storage ends", 0.0, *options.max_drift_pH),
+                     storage_drift});
+  }
+
+  const double max_conc = buffer.max_conc_mol_per_L;
+  bool achievable = true;
+  double min_conc = 0.0;
+  bool at_lower_bound = true;
+  for (CriterionTest& t : tests) {
+    search_minimum(t, max_conc, options);
+    const ScreenCriterion& c = t.info;
+    if (!c.min_conc_mol_per_L) {
+      if (achievable) r.binding = c.id;  // the first criterion failing at max-conc
+      achievable = false;
+      continue;
+    }
+    if (achievable && (r.binding.empty() || *c.min_conc_mol_per_L > min_conc)) {
+      r.binding = c.id;
+      min_conc = *c.min_conc_mol_per_L;
+    }
+    at_lower_bound = at_lower_bound && c.min_conc_at_lower_bound;
+  }
+  if (!std::isfinite(tests.front().value(max_conc))) {
+    r.warnings.push_back("the equilibrium did not converge at max-conc");
+  }
+
+  double used = max_conc;
+  if (achievable) {
+    r.min_conc_mol_per_L = min_conc;
+    r.min_conc_at_lower_bound = at_lower_bound;
+    // The recommended strength: rounded up; should a criterion not hold there (a criterion
+    // need not be monotone in C), the next practical value up, max-conc at most.
+    double rec = round_up_strength(min_conc, max_conc, options.round_step_mol_per_L);
+    for (int k = 0; k < 40; ++k) {
+      bool all = true;
+      for (CriterionTest& t : tests) all = all && passes(t.info, t.value(rec));
+      if (all || rec >= max_conc) break;
+      rec = round_up_strength(rec * (1 + 1e-6), max_conc, options.round_step_mol_per_L);
+    }
+    r.recommended_conc_mol_per_L = rec;
+    used = rec;
+  }
+  r.conc_used_mol_per_L = used;
+
+  // Every criterion's value and verdict at the strength used.
+  for (CriterionTest& t : tests) {
+    t.info.value = t.value(used);
+    t.info.pass = passes(t.info, t.info.value);
+    r.criteria.push_back(t.info);
+  }
 
   // The final solution at the concentration used.
-  const BufferPreparation prep = run.prepare(hi, target);
+  const BufferPreparation prep = run.prepare_for(used, target, how);
   r.titrant = prep.titrant;
   r.titrant_mol_per_L = prep.titrant_mol_per_L;
   const Mixture final_mix = run.mixture(prep);
@@ -409,16 +619,12 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
   };
   r.pH_at_5C = ph_at(options.low_temperature_C);
   r.pH_at_40C = ph_at(options.high_temperature_C);
+  r.pH_after_acid_challenge = load > 0 ? challenged(used, load) : kNaN;
+  r.pH_after_base_challenge = load > 0 ? challenged(used, -load) : kNaN;
 
-  if (options.dose_range_fraction > 0) {
-    const double f = options.dose_range_fraction;
-    double worst = r.pH_after_drug;
-    for (double k : {-1.0, -0.5, 0.5, 1.0}) {
-      const double ph = run.ph_after(hi, target, r.pH_after_drug, 1.0 + k * f);
-      if (!std::isfinite(ph) || std::fabs(ph - target) > std::fabs(worst - target)) worst = ph;
-    }
-    r.worst_pH_in_dose_range = worst;
-    r.dose_range_within_tolerance = within(worst, target, tol);
+  if (f > 0) {
+    r.worst_pH_in_dose_range = worst_in_range(used);
+    r.dose_range_within_tolerance = within(*r.worst_pH_in_dose_range, target, tol);
   }
 
   if (outside) r.status = ScreenStatus::kOutsideRange;
@@ -461,6 +667,11 @@ ScreenReport report_header(const ScreenJob& job, const ScreenOptions& options) {
   rep.dose_mol_per_L = job.dose_mol_per_L;
   rep.dose_range_fraction = options.dose_range_fraction;
   rep.route = options.route;
+  rep.preparation = options.preparation;
+  rep.challenge_mol_per_L = options.challenge_mol_per_L;
+  rep.min_capacity_mol_per_L_per_pH = options.min_capacity_mol_per_L_per_pH;
+  rep.max_drift_pH = options.max_drift_pH;
+  rep.round_step_mol_per_L = options.round_step_mol_per_L;
   return rep;
 }
 
@@ -583,17 +794,84 @@ std::string form_text(const ScreenReport& rep) { return rep.form == "free" ? "fr
 
 const char* kMethodNote =
     "Each buffer: its system at total concentration C in the net-neutral form, plus the one "
-    "titrant that brings it alone to the target pH at the run temperature; then the dose (with "
-    "its salt's counterion) is added and the closed system equilibrated, solids allowed. min "
-    "conc: smallest C from 1e-6 M to the buffer's max-conc that holds the target within the "
-    "tolerance; values are at min conc, or at max-conc when none is found. pH at 5 and 40 °C: "
-    "the same totals re-equilibrated. outside-range: no pKa(T) within target +/- 1. "
-    "dose-not-soluble: the dose exceeds the drug's solubility in water at the target pH. "
-    "Davies activities; thermodynamic pKa (I = 0) corrected for temperature by van 't Hoff.";
+    "titrant that brings it alone to the target pH at the run temperature (preparation premade), "
+    "or that brings buffer and dose together to the target (adjusted); then the dose (with its "
+    "salt's counterion) is added and the closed system equilibrated, solids allowed. Criteria, "
+    "each met by the smallest C from 1e-6 M to the buffer's max-conc above which it holds: the "
+    "dose (pH within the tolerance), the dose range (worst pH within it), an acid and a base "
+    "challenge (strong acid, then strong base, added to the finished formulation: pH within the "
+    "tolerance; about challenge / capacity for small loads), optionally a minimum capacity and "
+    "the pH at the storage temperatures. min conc: the largest of these minima (set by: its "
+    "criterion); recommended: min conc rounded up to a practical strength (1-2-5 series in mM "
+    "from 1 mM unless --round is given), at most max-conc; values are at the recommended strength, "
+    "or at max-conc when none is found. pH at 5 and 40 °C: the same totals re-equilibrated. "
+    "outside-range: no pKa(T) within target +/- 1. dose-not-soluble: the dose exceeds the drug's "
+    "solubility in water at the target pH. Davies activities; thermodynamic pKa (I = 0) corrected "
+    "for temperature by van 't Hoff.";
 
 const char* kOsmolalityNote =
     "Osmolarity is ideal (sum of dissolved species); osmolality estimate = 0.93 x osmolarity / "
     "density of water, an estimate that must be measured.";
+
+std::string criterion_value_text(const ScreenCriterion& c) {
+  if (!std::isfinite(c.value)) return "n/a";
+  if (c.id == "min-capacity") return sig(1e3 * c.value, 3) + " mM/pH";
+  if (c.id == "storage-drift") return fixed(c.value, 3) + " pH";
+  return "pH " + fixed(c.value, 3);
+}
+
+// Per buffer that was searched: each criterion's value and verdict at the strength used.
+void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
+  bool any = false;
+  for (const ScreenResult& r : rep.results) {
+    if (r.criteria.empty() || r.status == ScreenStatus::kOutsideRange) continue;
+    if (!any) out << "\n  criteria (value at the strength shown, pass/fail, minimum strength meeting it):\n";
+    any = true;
+    std::string line = "  " + r.buffer + " at " + sig(1e3 * r.conc_used_mol_per_L, 3) + " mM" +
+                       (r.recommended_conc_mol_per_L ? "" : " (max-conc)") + ":";
+    for (const ScreenCriterion& c : r.criteria) {
+      line += " " + c.id + " " + criterion_value_text(c) + " " + (c.pass ? "pass" : "FAIL") + " (" +
+              (c.min_conc_mol_per_L ? (c.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *c.min_conc_mol_per_L, 3) + " mM"
+                                    : "not met") + ");";
+    }
+    line.pop_back();
+    out << line << "\n";
+  }
+}
+
+}  // namespace
+
+void write_screen_near_misses(const ScreenReport& rep, std::ostream& out) {
+  for (const ScreenResult& r : rep.results) {
+    if (r.status == ScreenStatus::kOk) return;
+  }
+  std::vector<const ScreenResult*> near;
+  for (const ScreenResult& r : rep.results) {
+    if (r.status != ScreenStatus::kOutsideRange && std::isfinite(r.pH_drift)) near.push_back(&r);
+  }
+  std::stable_sort(near.begin(), near.end(), [](const ScreenResult* a, const ScreenResult* b) {
+    return std::fabs(a->pH_drift) < std::fabs(b->pH_drift);
+  });
+  out << "\n  no buffer is ok";
+  if (near.empty()) {
+    out << " and none has a pKa within 1 of the target\n";
+    return;
+  }
+  out << "; closest candidates at their max-conc:\n";
+  for (std::size_t k = 0; k < near.size() && k < 3; ++k) {
+    const ScreenResult& r = *near[k];
+    std::string fails;
+    for (const ScreenCriterion& c : r.criteria) {
+      if (!c.pass) fails += (fails.empty() ? "" : ", ") + c.id + " (" + criterion_value_text(c) + ")";
+    }
+    if (r.status == ScreenStatus::kDoseNotSoluble) fails += (fails.empty() ? "" : ", ") + std::string("dose not soluble");
+    out << "  " << r.buffer << " " << sig(1e3 * r.max_conc_mol_per_L, 3) << " mM: pH after drug "
+        << fixed(r.pH_after_drug, 3) << " (" << (r.pH_drift >= 0 ? "+" : "") << fixed(r.pH_drift, 3)
+        << "); fails " << (fails.empty() ? "none" : fails) << "\n";
+  }
+}
+
+namespace {
 
 nlohmann::ordered_json opt_number(const std::optional<double>& v) {
   if (!v || !std::isfinite(*v)) return nullptr;
@@ -617,6 +895,10 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
   j["dose_mol_per_L"] = rep.dose_mol_per_L;
   if (rep.dose_range_fraction > 0) j["dose_range_fraction"] = rep.dose_range_fraction;
   j["route"] = rep.route;
+  j["preparation"] = screen_preparation_name(rep.preparation);
+  j["challenge_mol_per_L"] = rep.challenge_mol_per_L;
+  if (rep.min_capacity_mol_per_L_per_pH > 0) j["min_capacity_mol_per_L_per_pH"] = rep.min_capacity_mol_per_L_per_pH;
+  if (rep.max_drift_pH) j["max_drift_pH"] = *rep.max_drift_pH;
   j["solubility_at_target_pH_mol_per_L"] = number(rep.solubility_at_target_mol_per_L);
   nlohmann::ordered_json results = nlohmann::ordered_json::array();
   int rank = 0;
@@ -646,6 +928,23 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
       x["worst_pH_in_dose_range"] = opt_number(r.worst_pH_in_dose_range);
       x["dose_range_within_tolerance"] = r.dose_range_within_tolerance;
     }
+    x["binding"] = r.binding.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.binding);
+    x["recommended_conc_mol_per_L"] = opt_number(r.recommended_conc_mol_per_L);
+    x["pH_after_acid_challenge"] = number(r.pH_after_acid_challenge);
+    x["pH_after_base_challenge"] = number(r.pH_after_base_challenge);
+    nlohmann::ordered_json crit = nlohmann::ordered_json::object();
+    for (const ScreenCriterion& c : r.criteria) {
+      nlohmann::ordered_json y;
+      y["quantity"] = c.quantity;
+      y["value"] = number(c.value);
+      y["limit_low"] = number(c.limit_low);
+      y["limit_high"] = number(c.limit_high);
+      y["pass"] = c.pass;
+      y["min_conc_mol_per_L"] = opt_number(c.min_conc_mol_per_L);
+      crit[c.id] = y;
+    }
+    x["criteria"] = crit;
+    x["route_flags"] = r.route_flags;
     x["routes"] = r.routes;
     x["warnings"] = r.warnings;
     results.push_back(x);
@@ -687,10 +986,26 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     out << "  target pH " << fixed(rep.target_pH, 2) << " +/- " << fixed(rep.tolerance_pH, 2) << " at "
         << fixed(rep.temperature_C, 1) << " °C; route: " << rep.route << "; solubility in water at pH "
         << fixed(rep.target_pH, 2) << ": " << sig(rep.solubility_at_target_mol_per_L, 3) << " mol/L\n\n";
-    std::vector<std::string> head = {"rank", "buffer", "status", "min conc (mM)", "pH after drug",
-                                     "capacity (mM/pH)", "I (mM)", "osmolarity (mOsm/L)",
+    out << "  preparation: " << screen_preparation_name(rep.preparation) << "; challenge: "
+        << (rep.challenge_mol_per_L > 0 ? sig(1e3 * rep.challenge_mol_per_L, 3) + " mM strong acid and base" : "off");
+    if (rep.min_capacity_mol_per_L_per_pH > 0) {
+      out << "; min capacity " << sig(1e3 * rep.min_capacity_mol_per_L_per_pH, 3) << " mM/pH";
+    }
+    if (rep.max_drift_pH) out << "; max drift in storage " << fixed(*rep.max_drift_pH, 2) << " pH";
+    out << "\n\n";
+    const bool challenge = rep.challenge_mol_per_L > 0;
+    std::vector<std::string> head = {"rank", "buffer", "status", "min conc (mM)", "recommended (mM)", "set by",
+                                     "pH after drug"};
+    if (challenge) {
+      head.push_back("pH +acid");
+      head.push_back("pH +base");
+    }
+    for (const char* h : {"capacity (mM/pH)", "I (mM)", "osmolality (mOsm/kg)"}) head.push_back(h);
+    for (const std::string& h : std::vector<std::string>{
                                      "pH " + fixed(rep.low_temperature_C, 0) + " °C",
-                                     "pH " + fixed(rep.high_temperature_C, 0) + " °C", "drug solid"};
+                                     "pH " + fixed(rep.high_temperature_C, 0) + " °C", "drug solid"}) {
+      head.push_back(h);
+    }
     const bool dose_range = rep.dose_range_fraction > 0;
     if (dose_range) head.push_back("worst pH, dose +/-" + fixed(100 * rep.dose_range_fraction, 0) + "%");
     head.push_back("routes");
@@ -700,15 +1015,29 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
       std::vector<std::string> row = {
           std::to_string(++rank), r.buffer, screen_status_name(r.status),
           r.min_conc_mol_per_L ? (r.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *r.min_conc_mol_per_L, 3) : "n/a",
-          fixed(r.pH_after_drug, 3), sig(1e3 * r.capacity_mol_per_L_per_pH, 3),
-          sig(1e3 * r.ionic_strength_mol_per_L, 3), fixed(r.osmolarity_mOsm_per_L, 1),
-          fixed(r.pH_at_5C, 3), fixed(r.pH_at_40C, 3), r.drug_solid};
+          r.recommended_conc_mol_per_L ? sig(1e3 * *r.recommended_conc_mol_per_L, 3) : "n/a",
+          r.recommended_conc_mol_per_L ? r.binding : (r.binding.empty() ? "" : "fails " + r.binding),
+          fixed(r.pH_after_drug, 3)};
+      if (challenge) {
+        row.push_back(fixed(r.pH_after_acid_challenge, 3));
+        row.push_back(fixed(r.pH_after_base_challenge, 3));
+      }
+      for (const std::string& v : {sig(1e3 * r.capacity_mol_per_L_per_pH, 3), sig(1e3 * r.ionic_strength_mol_per_L, 3),
+                                   fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 0),
+                                   fixed(r.pH_at_5C, 3), fixed(r.pH_at_40C, 3), r.drug_solid}) {
+        row.push_back(v);
+      }
       if (dose_range) row.push_back(r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 3) : "n/a");
       row.push_back(routes_text(r.routes));
       t.add_row(row);
     }
     t.write(out);
+    write_screen_criteria(rep, out);
+    write_screen_near_misses(rep, out);
     std::vector<std::string> notes;
+    for (const ScreenResult& r : rep.results) {
+      for (const std::string& w : r.route_flags) notes.push_back(r.buffer + ": " + w);
+    }
     for (const ScreenResult& r : rep.results) {
       for (const std::string& w : r.warnings) {
         if (!is_solid_warning(w)) notes.push_back(r.buffer + ": " + w);  // shown in the solid column
@@ -733,7 +1062,9 @@ void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& ou
                       "rank", "buffer", "status", "min conc (mol/L)", "conc used (mol/L)", "max conc (mol/L)",
                       "titrant", "titrant (mol/L)", "pH after drug", "pH drift", "capacity (mol/L per pH)",
                       "ionic strength (mol/L)", "osmolarity (mOsm/L)", "osmolality estimate (mOsm/kg)",
-                      "pH at 5 C", "pH at 40 C", "drug solid", "worst pH in dose range", "routes"});
+                      "pH at 5 C", "pH at 40 C", "drug solid", "worst pH in dose range", "routes",
+                      "recommended conc (mol/L)", "binding", "pH after acid challenge",
+                      "pH after base challenge", "preparation", "challenge (mol/L)"});
   for (const ScreenReport& rep : reports) {
     int rank = 0;
     for (const ScreenResult& r : rep.results) {
@@ -748,7 +1079,11 @@ void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& ou
                           fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 2),
                           fixed(r.pH_at_5C, 4), fixed(r.pH_at_40C, 4), r.drug_solid,
                           r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 4) : "",
-                          routes_text(r.routes)});
+                          routes_text(r.routes),
+                          r.recommended_conc_mol_per_L ? sig(*r.recommended_conc_mol_per_L, 6) : "", r.binding,
+                          std::isfinite(r.pH_after_acid_challenge) ? fixed(r.pH_after_acid_challenge, 4) : "",
+                          std::isfinite(r.pH_after_base_challenge) ? fixed(r.pH_after_base_challenge, 4) : "",
+                          screen_preparation_name(rep.preparation), sig(rep.challenge_mol_per_L, 6)});
     }
   }
   out << "\r\n";

@@ -17,6 +17,16 @@
 // min_conc is the lower end of the range of C that reaches up to max-conc, so that a slightly
 // stronger buffer also holds the target. A narrower window at lower C, where the pH merely
 // crosses the target, is not reported.
+//
+// The same search is made for each criterion a formulation must meet (ScreenCriterion): the
+// dose (above); the whole dose range (worst pH over dose x (1 +/- f, 1 +/- f/2)); an acid and a
+// base challenge (strong acid, then strong base, added to the finished formulation: pH within
+// the tolerance; for small loads the shift is about challenge / beta, van Slyke 1922, J. Biol.
+// Chem. 52:525); an optional minimum capacity; optionally the pH at the storage temperatures.
+// min_conc is the largest of their minima (the criterion giving it is `binding`), and the
+// recommended strength is that rounded up to a practical value (round_up_strength). With
+// preparation "adjusted" the titrant is solved with the dose in, so the dose criterion holds by
+// construction and the others are judged on that formulation.
 #ifndef PKARTA_SCREEN_H_
 #define PKARTA_SCREEN_H_
 
@@ -33,6 +43,12 @@
 
 namespace pkarta {
 
+/// How a formulation is made (see ScreenOptions::preparation).
+enum class ScreenPreparation { kPremade, kAdjusted };
+
+/// "premade" or "adjusted".
+const char* screen_preparation_name(ScreenPreparation preparation);
+
 /// What a screen is asked.
 struct ScreenOptions {
   double target_pH = 7.0;              ///< pH to hold (0-14)
@@ -47,6 +63,22 @@ struct ScreenOptions {
   double low_temperature_C = 5.0;      ///< storage temperature re-equilibrated (pH_at_5C)
   double high_temperature_C = 40.0;    ///< accelerated-condition temperature (pH_at_40C)
   ActivityModel activity = ActivityModel::kDavies;
+  /// How the formulation is made: kPremade, the buffer brought to the target pH alone and the
+  /// dose dissolved in it; kAdjusted, buffer system and dose dissolved together and the pH
+  /// brought to the target with the buffer's titrant (so the dose itself moves no pH).
+  ScreenPreparation preparation = ScreenPreparation::kPremade;
+  /// Strong acid (the buffer's acid titrant) and, separately, strong base added to the finished
+  /// formulation must leave its pH within the tolerance; 0 turns the two criteria off. 1 mM is a
+  /// default of the tool, not a rule.
+  double challenge_mol_per_L = 1e-3;
+  /// Buffer capacity the formulation must have at least (mol/L per pH); 0: not a criterion.
+  double min_capacity_mol_per_L_per_pH = 0.0;
+  /// With a value: the pH at low_ and high_temperature_C (storage ends) must lie within this of
+  /// the target. Without: the storage pH is reported only.
+  std::optional<double> max_drift_pH;
+  /// Recommended strength: the minimum rounded up to a multiple of this (mol/L); 0: to the
+  /// 1-2-5 series in mM starting at 1 mM.
+  double round_step_mol_per_L = 0.0;
   /// False with a message naming the field ("ScreenOptions::tolerance_pH = 0, must be > 0").
   bool is_valid(std::string* error) const;
 };
@@ -88,6 +120,20 @@ double ph_after_drug(const Library& library, const Buffer& buffer, double conc_m
                      const Compound& compound, double dose_mol_per_L, const std::string& form,
                      const ScreenOptions& options);
 
+/// One criterion of the screen for one buffer: the smallest buffer concentration that meets it
+/// (as for the dose, the lower end of the range reaching up to max-conc), and its value and
+/// verdict at the recommended strength (at max-conc when no strength is recommended).
+struct ScreenCriterion {
+  std::string id;              ///< dose, dose-range, acid-challenge, base-challenge, min-capacity, storage-drift
+  std::string quantity;        ///< what `value` is ("pH", "worst pH", "mol/L per pH", "max |pH - target|")
+  std::optional<double> min_conc_mol_per_L;  ///< absent when even max-conc fails it
+  bool min_conc_at_lower_bound = false;
+  double value = 0.0;          ///< at the concentration used
+  double limit_low = 0.0;      ///< pass when limit_low <= value <= limit_high
+  double limit_high = 0.0;
+  bool pass = false;
+};
+
 /// One buffer's line of the screen.
 struct ScreenResult {
   std::string buffer;                    ///< buffer id
@@ -95,9 +141,9 @@ struct ScreenResult {
   ScreenStatus status = ScreenStatus::kNotAchievable;
   std::vector<std::string> routes;       ///< routes the library lists for the buffer
   double max_conc_mol_per_L = 0.0;
-  std::optional<double> min_conc_mol_per_L;  ///< absent when even max-conc drifts too far
+  std::optional<double> min_conc_mol_per_L;  ///< largest over the criteria; absent when one fails at max-conc
   bool min_conc_at_lower_bound = false;  ///< the dose alone holds the target (min_conc = 1e-6 M)
-  double conc_used_mol_per_L = 0.0;      ///< min_conc, or max-conc when none is found
+  double conc_used_mol_per_L = 0.0;      ///< the recommended strength, or max-conc when none is found
   std::string titrant;                   ///< reagent bringing the buffer to the target
   double titrant_mol_per_L = 0.0;        ///< at conc_used
   double nearest_pka = 0.0;              ///< pKa(T) of the buffer nearest the target
@@ -111,7 +157,15 @@ struct ScreenResult {
   std::string drug_solid = "none";       ///< solid left at conc_used ("none", "free", salt id, ...)
   std::optional<double> worst_pH_in_dose_range;  ///< when dose_range_fraction > 0
   bool dose_range_within_tolerance = true;
+  std::string binding;                   ///< criterion setting min_conc (or failing at max-conc)
+  std::optional<double> recommended_conc_mol_per_L;  ///< min_conc rounded up, at most max-conc
+  double pH_after_acid_challenge = 0.0;  ///< at conc_used (NaN when the challenge is off)
+  double pH_after_base_challenge = 0.0;
+  std::vector<ScreenCriterion> criteria; ///< every active criterion, in the order of the ids above
+  std::vector<std::string> route_flags;  ///< strengths or osmolality beyond the route's common practice
   std::vector<std::string> warnings;
+  /// The criterion of `criteria` with this id, or nullptr.
+  const ScreenCriterion* criterion(const std::string& id) const;
   /// pH_at_40C - pH_at_5C: the temperature drift used in the ranking.
   double temperature_drift_pH() const { return pH_at_40C - pH_at_5C; }
 };
@@ -132,6 +186,11 @@ struct ScreenReport {
   double dose_range_fraction = 0.0;
   double solubility_at_target_mol_per_L = 0.0;  ///< in water at the target pH (profile)
   std::string route = "any";
+  ScreenPreparation preparation = ScreenPreparation::kPremade;
+  double challenge_mol_per_L = 0.0;
+  double min_capacity_mol_per_L_per_pH = 0.0;
+  std::optional<double> max_drift_pH;
+  double round_step_mol_per_L = 0.0;
   std::vector<ScreenResult> results;
   std::vector<std::string> warnings;
 };
@@ -176,6 +235,10 @@ struct BatchOptions {
 std::vector<ScreenReport> screen_batch(const Library& library, const std::vector<ScreenJob>& jobs,
                                        const ScreenOptions& options, const BatchOptions& batch = {});
 
+/// The recommended strength for a minimum: rounded up to a multiple of step_mol_per_L (> 0), or
+/// to the 1-2-5 series in mM from 1 mM (step 0); never below the minimum, never above max-conc.
+double round_up_strength(double min_conc_mol_per_L, double max_conc_mol_per_L, double step_mol_per_L = 0.0);
+
 /// Parses a dose range: "10%", "+/-10%", "±10%" or "0.1" give 0.1. Throws InputError (without
 /// location) unless the result lies in [0, 1).
 double parse_dose_range(std::string_view text);
@@ -183,6 +246,9 @@ double parse_dose_range(std::string_view text);
 /// Writers: text tables, CSV (one row per compound and buffer), JSON (docs/commands.md
 /// keys; one compound gives the stable object, several give {"screens": [...]}).
 void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out);
+/// When no buffer is ok: the closest candidates (pH deviation at max-conc, criteria failing);
+/// nothing otherwise.
+void write_screen_near_misses(const ScreenReport& rep, std::ostream& out);
 void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out);
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
 
