@@ -104,7 +104,8 @@ int run_screen(const Args& args) {
     CommonOptions common;
     std::vector<std::string> compounds;
     std::string dose, form = "free", target, tolerance = "0.1", buffers = "all", route = "any",
-                temp = "25", dose_range, threads = "0", uncertainty = "0", seed = "1";
+                temp = "25", dose_range, threads = "0", uncertainty = "0", seed = "1",
+                preparation = "premade", challenge = "1mM", min_capacity, storage = "5,40", max_drift, round;
     po::options_description desc("screen options");
     desc.add_options()
         ("compound", po::value(&compounds)->composing(),
@@ -117,6 +118,17 @@ int run_screen(const Args& args) {
         ("route", po::value(&route)->default_value("any"), "oral, parenteral, ophthalmic, topical or any")
         ("temp", po::value(&temp)->default_value("25"), "run temperature, °C")
         ("dose-range", po::value(&dose_range), "also report the worst pH for the dose +/- this (10% or 0.1)")
+        ("preparation", po::value(&preparation)->default_value("premade"),
+         "premade: buffer made at the target pH, dose dissolved in it; adjusted: buffer and dose "
+         "dissolved, pH brought to the target with the buffer's titrant")
+        ("challenge", po::value(&challenge)->default_value("1mM"),
+         "strong acid and, separately, strong base added to the finished formulation must leave its "
+         "pH within the tolerance; 0 turns this off")
+        ("min-capacity", po::value(&min_capacity), "buffer capacity required, mol/L per pH (e.g. 0.01 or 10mM)")
+        ("storage", po::value(&storage)->default_value("5,40"), "storage temperatures, °C: LOW,HIGH (pH reported at both)")
+        ("max-drift", po::value(&max_drift), "the pH at both storage temperatures must lie within this of the target")
+        ("round", po::value(&round), "round the recommended strength up to a multiple of this (e.g. 5mM); "
+         "default: 1-2-5 series in mM from 1 mM")
         ("threads", po::value(&threads)->default_value("0"), "worker threads for a batch (0: all cores)")
         ("uncertainty", po::value(&uncertainty)->default_value("0"),
          "Monte Carlo samples over the pKa sd and S0 log-sd: 5/50/95 % bands of min conc (one compound)")
@@ -127,7 +139,8 @@ int run_screen(const Args& args) {
       print_help(std::cout,
                  "pkarta screen --compound F --dose AMOUNT [--form free|SALT] --target-ph P "
                  "[--tolerance 0.1] [--buffers all|ID,ID] [--route oral|parenteral|ophthalmic|any] "
-                 "[--temp C] [--dose-range 10%]",
+                 "[--temp C] [--dose-range 10%] [--preparation premade|adjusted] [--challenge 1mM] "
+                 "[--min-capacity B] [--storage 5,40] [--max-drift PH] [--round STEP]",
                  desc);
       return 0;
     }
@@ -154,6 +167,52 @@ int run_screen(const Args& args) {
       } catch (const InputError& e) {
         throw InputError(SourceLocation{"--dose-range", 0, 0}, e.message());
       }
+    }
+    if (preparation == "premade") opt.preparation = ScreenPreparation::kPremade;
+    else if (preparation == "adjusted") opt.preparation = ScreenPreparation::kAdjusted;
+    else throw InputError(SourceLocation{"--preparation", 0, 0}, "expected premade or adjusted, got \"" + preparation + "\"");
+    // A strength in mol/L: a plain number is mol/L, or an amount in mM/M.
+    auto strength = [](const char* option, const std::string& text) {
+      try {
+        const double v = parse_number(text, option);
+        if (!(v >= 0)) throw InputError(SourceLocation{option, 0, 0}, "expected a value >= 0, got " + text);
+        return v;
+      } catch (const InputError&) {
+      }
+      const Amount a = option_amount(option, text);
+      if (a.is_mass_based()) {
+        throw InputError(SourceLocation{option, 0, 0}, "expected a concentration such as 1mM or 0.001, got " + text);
+      }
+      return a.to_mol_per_L(0.0, 25.0);
+    };
+    opt.challenge_mol_per_L = strength("--challenge", challenge);
+    if (!(opt.challenge_mol_per_L < 10.0)) {
+      throw InputError(SourceLocation{"--challenge", 0, 0}, "the challenge must be below 10 M");
+    }
+    if (!min_capacity.empty()) {
+      opt.min_capacity_mol_per_L_per_pH = strength("--min-capacity", min_capacity);
+      if (!(opt.min_capacity_mol_per_L_per_pH > 0)) {
+        throw InputError(SourceLocation{"--min-capacity", 0, 0}, "the minimum capacity must be > 0");
+      }
+    }
+    {
+      const std::vector<std::string> ends = split_list(storage);
+      if (ends.size() != 2) {
+        throw InputError(SourceLocation{"--storage", 0, 0}, "expected two temperatures LOW,HIGH in °C, e.g. 5,40");
+      }
+      opt.low_temperature_C = option_temperature("--storage", ends[0]);
+      opt.high_temperature_C = option_temperature("--storage", ends[1]);
+      if (!(opt.low_temperature_C < opt.high_temperature_C)) {
+        throw InputError(SourceLocation{"--storage", 0, 0}, "the first temperature must be the lower, e.g. 5,40");
+      }
+    }
+    if (!max_drift.empty()) {
+      opt.max_drift_pH = option_number("--max-drift", max_drift, -1e9, 1e9);
+      if (!(*opt.max_drift_pH > 0)) throw InputError(SourceLocation{"--max-drift", 0, 0}, "the drift must be > 0 (pH units)");
+    }
+    if (!round.empty()) {
+      opt.round_step_mol_per_L = strength("--round", round);
+      if (!(opt.round_step_mol_per_L > 0)) throw InputError(SourceLocation{"--round", 0, 0}, "the step must be > 0");
     }
     const double samples_value = option_number("--uncertainty", uncertainty, 0, 1e6);
     const int samples = static_cast<int>(samples_value);

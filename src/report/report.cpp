@@ -314,12 +314,11 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
       }
     }
   }
-  if (lead && lead->min_conc_mol_per_L) {
-    const Buffer& buffer = library.buffer(lead->buffer);
+  if (lead && lead->recommended_conc_mol_per_L) {
     RecipeOptions ro;
     ro.buffer = lead->buffer;
     ro.pH = *request.target_pH;
-    ro.conc_mol_per_L = std::min(round_up_125(std::max(*lead->min_conc_mol_per_L, 1e-3)), buffer.max_conc_mol_per_L);
+    ro.conc_mol_per_L = *lead->recommended_conc_mol_per_L;  // the screen's one recommended strength
     ro.volume_L = request.recipe_volume_L;
     ro.temperature_C = request.temperature_C;
     ro.isotonic = request.route == "parenteral" || request.route == "ophthalmic";
@@ -532,7 +531,7 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                    "Buffer screen: target pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) + " after the dose, " +
                        fixed(sr.temperature_C, 1) + " °C, " +
                        (sr.route == "any" ? std::string("every buffer of the library") : "buffers the library lists for " + sr.route + " use"),
-                   {"buffer", "status", "min conc (mM)", "titrant", "titrant (mM)", "nearest pKa", "pH after dose",
+                   {"buffer", "status", "min conc (mM)", "recommended (mM)", "set by", "titrant", "titrant (mM)", "nearest pKa", "pH after dose",
                     "capacity (mM per pH)", "osmolarity (mOsm/L)", "pH at " + fixed(sr.low_temperature_C, 0) + " °C",
                     "pH at " + fixed(sr.high_temperature_C, 0) + " °C", "solid left"}, {}};
     for (const ScreenResult& r : sr.results) {
@@ -541,7 +540,10 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
       std::string conc_text = r.min_conc_mol_per_L ? sig(*r.min_conc_mol_per_L * 1e3, 3) : "";
       if (r.status == ScreenStatus::kNotAchievable) conc_text = "> " + sig(r.max_conc_mol_per_L * 1e3, 3);
       if (r.min_conc_at_lower_bound) conc_text = "< " + sig(conc * 1e3, 3);
-      st.rows.push_back({r.buffer, screen_status_name(r.status), computed ? conc_text : "", computed ? r.titrant : "",
+      const std::string rec_text = r.recommended_conc_mol_per_L ? sig(*r.recommended_conc_mol_per_L * 1e3, 3) : "";
+      const std::string set_by = r.recommended_conc_mol_per_L ? r.binding : (r.binding.empty() ? "" : "fails " + r.binding);
+      st.rows.push_back({r.buffer, screen_status_name(r.status), computed ? conc_text : "", computed ? rec_text : "",
+                         computed ? set_by : "", computed ? r.titrant : "",
                          computed ? sig(r.titrant_mol_per_L * 1e3, 3) : "", fixed(r.nearest_pka, 2),
                          computed ? fixed(r.pH_after_drug, 2) : "",
                          computed ? sig(r.capacity_mol_per_L_per_pH * 1e3, 3) : "",
@@ -819,10 +821,11 @@ svg::Chart drift_chart(const ReportData& d) {
   ch.bands.push_back(svg::Band{svg::Band::Orientation::kHorizontal, target - tol, target + tol,
                                "target pH " + fixed(target, 2) + " ± " + fixed(tol, 2), 1, 0.30});
   if (const ScreenResult* lead = leading_buffer(d)) {
-    if (lead->min_conc_mol_per_L) {
-      ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, *lead->min_conc_mol_per_L * 1e3,
-                                      lead->name + " needs " + sig(*lead->min_conc_mol_per_L * 1e3, 3) + " mM", 7, true,
-                                      true});
+    if (lead->recommended_conc_mol_per_L) {
+      ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kVertical, *lead->recommended_conc_mol_per_L * 1e3,
+                                      lead->name + " " + sig(*lead->recommended_conc_mol_per_L * 1e3, 3) +
+                                          " mM (set by " + lead->binding + ")",
+                                      7, true, true});
     }
   }
   ch.description = "pH reached after adding the dose to each leading buffer prepared at the target pH, against the "
@@ -911,16 +914,13 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   if (d.screen) {
     const ScreenReport& sr = *d.screen;
     const ScreenResult* lead = leading_buffer(d);
-    if (lead && lead->min_conc_at_lower_bound) {
-      key(out, "lead", "Recommended buffer", lead->name + ", any strength",
-          "The dose with the titrant alone holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) +
-              "; choose the strength by other needs (capacity on storage, tonicity)",
-          "Highlighted first row of the buffer screen (" + number("screen") + ").");
-    } else if (lead) {
-      key(out, "lead", "Recommended buffer", lead->name + " " + sig(*lead->min_conc_mol_per_L * 1e3, 3) + " mM",
-          "Holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) + " with the dose: pH " +
-              fixed(lead->pH_after_drug, 2) + " (" + fixed(lead->pH_at_5C, 2) + " at " + fixed(sr.low_temperature_C, 0) +
-              " °C, " + fixed(lead->pH_at_40C, 2) + " at " + fixed(sr.high_temperature_C, 0) + " °C)",
+    if (lead && lead->recommended_conc_mol_per_L) {
+      key(out, "lead", "Recommended buffer", lead->name + " " + sig(*lead->recommended_conc_mol_per_L * 1e3, 3) + " mM",
+          "Strength set by the " + lead->binding + " criterion (minimum " + sig(*lead->min_conc_mol_per_L * 1e3, 3) +
+              " mM, rounded up); holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) +
+              " with the dose: pH " + fixed(lead->pH_after_drug, 2) + " (" + fixed(lead->pH_at_5C, 2) + " at " +
+              fixed(sr.low_temperature_C, 0) + " °C, " + fixed(lead->pH_at_40C, 2) + " at " +
+              fixed(sr.high_temperature_C, 0) + " °C)",
           "Highlighted first row of the buffer screen (" + number("screen") + ").");
     } else {
       key(out, "lead", "Recommended buffer", "none",
@@ -1069,14 +1069,18 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     out << "<section id=\"screen\">\n";
     heading("screen");
     out << "<p>Each buffer is prepared alone at the target pH (its net-neutral form plus HCl or NaOH), then the dose is "
-           "added and the closed system equilibrated. The minimum concentration is the weakest buffer whose pH stays "
-           "within the tolerance; buffers are ranked by that concentration, then by their pH change between "
+           "added and the closed system equilibrated. The minimum concentration is the weakest buffer that meets every "
+           "criterion: the pH after the dose within the tolerance"
+        << (sr.challenge_mol_per_L > 0 ? ", and after " + sig(sr.challenge_mol_per_L * 1e3, 3) +
+                                             " mM of strong acid or of strong base added to the formulation"
+                                       : std::string())
+        << "; the recommended strength is that rounded up to the 1-2-5 series in mM (set by: the criterion that "
+           "decides). Buffers are ranked by the minimum concentration, then by their pH change between "
         << fixed(sr.low_temperature_C, 0) << " and " << fixed(sr.high_temperature_C, 0) << " °C.</p>\n";
     if (const ScreenResult* lead = leading_buffer(d)) {
       out << "<p class=\"lead-statement\"><strong>Leading buffer: " << esc(lead->name) << " at "
-          << (lead->min_conc_at_lower_bound ? "any strength (from " : "")
-          << esc(sig(*lead->min_conc_mol_per_L * 1e3, 3)) << " mM" << (lead->min_conc_at_lower_bound ? ")" : "")
-          << "</strong>, brought to pH " << fixed(sr.target_pH, 2)
+          << esc(sig(lead->recommended_conc_mol_per_L.value_or(lead->conc_used_mol_per_L) * 1e3, 3)) << " mM"
+          << "</strong> (set by " << esc(lead->binding) << "), brought to pH " << fixed(sr.target_pH, 2)
           << " with " << esc(lead->titrant.empty() ? std::string("no titrant") : lead->titrant) << "; pH after the dose "
           << fixed(lead->pH_after_drug, 2) << ", osmolarity " << fixed(lead->osmolarity_mOsm_per_L, 1)
           << " mOsm/L (ideal).</p>\n";
@@ -1106,7 +1110,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
       svg::write_svg(drift_chart(d), out);
       out << "<figcaption><strong>How to read it.</strong> Each line is one leading buffer: the pH it reaches once the "
              "dose is dissolved, against its concentration. Where a line enters the shaded band the buffer holds the "
-             "target; the black line marks the strength the leading buffer needs.</figcaption>\n</figure>\n";
+             "target; the black line marks the strength recommended for the leading buffer, which may lie above where its line enters the band when another criterion (a challenge, the dose range) decides.</figcaption>\n</figure>\n";
     }
     out << "</section>\n";
   }
@@ -1116,8 +1120,8 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
     out << "<section id=\"recipe\">\n";
     heading("recipe");
     out << "<p class=\"lead-statement\"><strong>" << esc(r.buffer_name) << " " << esc(sig(r.conc_mol_per_L * 1e3, 3))
-        << " mM, pH " << fixed(r.target_pH, 2) << "</strong>: the leading buffer at its minimum strength rounded up to "
-           "the 1-2-5 series"
+        << " mM, pH " << fixed(r.target_pH, 2) << "</strong>: the leading buffer at the strength the screen recommends"
+        << (leading_buffer(d) ? " (set by the " + leading_buffer(d)->binding + " criterion)" : std::string())
         << (r.isotonic ? std::string(", made isotonic with ") + (d.recipe_tonicity_note.empty() ? "sodium chloride" : "dextrose") +
                              " (osmolality estimated, to be measured)"
                        : std::string())

@@ -207,11 +207,25 @@ TEST(Report, SummaryGivesDosePhmaxAndWhereToFindThem) {
   EXPECT_NEAR(fixture().data.profile.ph_max[0].pH, 6.2, 0.1);
   EXPECT_EQ(keys["pHmax"], fixed(fixture().data.profile.ph_max[0].pH, 2));
   EXPECT_EQ(keys["Dose in water alone"].rfind("pH ", 0), 0u);
-  // The recommended buffer is the first ok result of the screen, at its minimum strength.
+  // The recommended buffer is the first ok result of the screen, at its recommended strength
+  // (the largest minimum over the criteria, rounded up), and the recipe uses the same number.
   ASSERT_TRUE(fixture().data.screen);
   const ScreenResult& lead = fixture().data.screen->results.at(0);
   ASSERT_EQ(lead.status, ScreenStatus::kOk);
-  EXPECT_EQ(keys["Recommended buffer"], lead.name + " " + sig(*lead.min_conc_mol_per_L * 1e3, 3) + " mM");
+  ASSERT_TRUE(lead.recommended_conc_mol_per_L);
+  EXPECT_GE(*lead.recommended_conc_mol_per_L, *lead.min_conc_mol_per_L);
+  EXPECT_EQ(keys["Recommended buffer"], lead.name + " " + sig(*lead.recommended_conc_mol_per_L * 1e3, 3) + " mM");
+  ASSERT_TRUE(fixture().data.recipe);
+  EXPECT_DOUBLE_EQ(fixture().data.recipe->conc_mol_per_L, *lead.recommended_conc_mol_per_L);
+  bool table_seen = false;
+  for (const ReportTable& t : report_tables(fixture().data)) {
+    if (t.file != "screen.csv") continue;
+    table_seen = true;
+    EXPECT_EQ(t.header.at(3), "recommended (mM)");
+    EXPECT_EQ(t.rows.at(0).at(3), sig(*lead.recommended_conc_mol_per_L * 1e3, 3));
+    EXPECT_EQ(t.rows.at(0).at(4), lead.binding);
+  }
+  EXPECT_TRUE(table_seen);
 }
 
 TEST(Report, ClassificationSectionGivesTheVerdictAndItsPoints) {
@@ -307,7 +321,8 @@ TEST(Report, ScreenSectionHighlightsTheLeadingBufferAndDrawsTheDrift) {
   EXPECT_EQ(labels, (std::set<std::string>{"buffer concentration (mM, log scale)", "pH after the dose"}));
   EXPECT_EQ(chart.select_nodes(".//g[@class='band']").size(), 1u);
   const std::string needs = chart.select_node(".//g[@class='reference-line']").node().attribute("data-label").value();
-  EXPECT_EQ(needs, sr.results[0].name + " needs " + sig(*sr.results[0].min_conc_mol_per_L * 1e3, 3) + " mM");
+  EXPECT_EQ(needs, sr.results[0].name + " " + sig(*sr.results[0].recommended_conc_mol_per_L * 1e3, 3) + " mM (set by " +
+                       sr.results[0].binding + ")");
   EXPECT_EQ(fixture().data.drift[0].buffer, sr.results[0].buffer);
 }
 
