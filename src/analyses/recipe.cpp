@@ -269,7 +269,8 @@ Recipe make_recipe(const Library& library, const RecipeOptions& o) {
     if (!e.usable()) throw std::runtime_error("the recipe's equilibrium did not converge: " + e.message);
     if (!o.isotonic) break;
     // Osmolality estimate phi * osmolarity / rho = target: the salt's particles make up the rest.
-    const double want_mOsm_per_L = kIsotonicTarget_mOsm_per_kg * rho / kOsmoticCoefficient;
+    const double want_mOsm_per_L =
+        kIsotonicTarget_mOsm_per_kg * rho / kOsmoticCoefficient - o.other_solutes_mOsm_per_L;
     const double s_new =
         std::max(0.0, s + (want_mOsm_per_L - e.osmolarity_mOsm_per_L) / 1000.0 / salt.particles);
     if (s == 0.0 && s_new == 0.0) {
@@ -286,7 +287,18 @@ Recipe make_recipe(const Library& library, const RecipeOptions& o) {
   out.osmolality_estimate_mOsm_per_kg = kOsmoticCoefficient * e.osmolarity_mOsm_per_L / rho;
   out.capacity_mol_per_L_per_pH = buffer_capacity(recipe_mixture(library, out, o.activity));
   out.isotonic = o.isotonic;
-  if (o.isotonic) out.tonicity_method = kTonicityMethod;
+  if (o.isotonic) {
+    out.tonicity_method = kTonicityMethod;
+    if (o.tonicity_reagent != "NaCl") {
+      // The same sizing with another reagent: name it.
+      std::string m = kTonicityMethod;
+      for (std::size_t at = m.find("NaCl"); at != std::string::npos; at = m.find("NaCl", at + o.tonicity_reagent.size())) {
+        if (m.compare(at, 19, "NaCl at physiologic") == 0) continue;
+        m.replace(at, 4, o.tonicity_reagent);
+      }
+      out.tonicity_method = m;
+    }
+  }
   if (hypertonic) {
     out.warnings.push_back("the buffer alone is already above 290 mOsm/kg (estimate " +
                            fmt("%.0f", out.osmolality_estimate_mOsm_per_kg) + "): no NaCl added");
@@ -399,10 +411,17 @@ const char* kModelNote =
 
 }  // namespace
 
+std::string tonicity_id(const Recipe& r) {
+  for (const RecipeReagent& x : r.reagents) {
+    if (x.role == "tonicity") return x.id;
+  }
+  return "NaCl";
+}
+
 void write_recipe_text(const Recipe& r, std::ostream& out) {
   out << "Recipe: " << r.buffer_name << " buffer, pH " << fixed(r.target_pH, 2) << ", "
       << sig(1000.0 * r.conc_mol_per_L, 4) << " mM " << r.system << ", " << volume_text(r.volume_L) << " at "
-      << fixed(r.temperature_C, 1) << " °C" << (r.isotonic ? ", made isotonic with NaCl" : "") << "\n\n";
+      << fixed(r.temperature_C, 1) << " °C" << (r.isotonic ? ", made isotonic with " + tonicity_id(r) : std::string()) << "\n\n";
   TextTable t({"reagent", "formula", "role", "M (g/mol)", "amount (mmol)", "mass (g)"});
   for (const RecipeReagent& x : r.reagents) {
     t.add_row({x.id, x.formula, x.role, fixed(x.molar_mass_g_per_mol, 3), sig(1000.0 * x.amount_mol, 5),

@@ -5,13 +5,15 @@
 #include "commands.h"
 #include "pkarta/base/error.h"
 #include "pkarta/analyses/recipe.h"
+#include "pkarta/analyses/recipe_formulation.h"
+#include "pkarta/chem/mixture_builder.h"
 
 namespace pkarta::cli {
 
 int run_recipe(const Args& args) {
   return guarded([&] {
     CommonOptions common;
-    std::string buffer, ph, conc, volume = "1L", temp = "25", reagents;
+    std::string buffer, ph, conc, volume = "1L", temp = "25", reagents, compound, dose, form = "free", preparation = "premade";
     bool isotonic = false, titrant = false;
     po::options_description desc("recipe options");
     desc.add_options()
@@ -23,13 +25,20 @@ int run_recipe(const Args& args) {
         ("isotonic", po::bool_switch(&isotonic), "add NaCl to about 290 mOsm/kg (estimate; measure it)")
         ("reagents", po::value(&reagents),
          "ACID,BASE reagent ids to weigh (hydrates as wanted), or one id with --titrant")
-        ("titrant", po::bool_switch(&titrant), "one reagent plus 1 M HCl or NaOH instead of a pair");
+        ("titrant", po::bool_switch(&titrant), "one reagent plus 1 M HCl or NaOH instead of a pair")
+        ("compound", po::value(&compound), "compound XML file: the recipe of the formulation with its dose")
+        ("dose", po::value(&dose), "dose as an amount of the form weighed, e.g. 5mg/mL (with --compound)")
+        ("form", po::value(&form)->default_value("free"), "form of the drug weighed: free or a salt id")
+        ("preparation", po::value(&preparation)->default_value("premade"),
+         "premade: buffer made at the pH, drug dissolved in it; adjusted: buffer reagent and drug "
+         "dissolved, pH brought to target with the titrant (with --compound)");
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
                  "pkarta recipe --buffer ID --ph P --conc AMOUNT [--volume 1L] [--temp C] [--isotonic] "
-                 "[--reagents ACID,BASE] [--titrant]",
+                 "[--reagents ACID,BASE] [--titrant] [--compound F --dose AMOUNT [--form SALT] "
+                 "[--preparation premade|adjusted]]",
                  desc);
       return 0;
     }
@@ -87,6 +96,37 @@ int run_recipe(const Args& args) {
       } catch (const InputError& e) {
         throw InputError(SourceLocation{"--reagents", 0, 0}, e.message());
       }
+    }
+    if (compound.empty() != dose.empty()) {
+      throw InputError(SourceLocation{compound.empty() ? "--compound" : "--dose", 0, 0},
+                       "--compound and --dose go together (the recipe of a formulation)");
+    }
+    if (preparation != "premade" && preparation != "adjusted") {
+      throw InputError(SourceLocation{"--preparation", 0, 0}, "expected premade or adjusted, got \"" + preparation + "\"");
+    }
+    if (!compound.empty()) {
+      const Compound drug = load_compound(compound, lib);
+      const Amount dose_amount = option_amount("--dose", dose);
+      if (!(dose_amount.value > 0)) throw InputError(SourceLocation{"--dose", 0, 0}, "the dose must be > 0");
+      double dose_mol = 0.0;
+      try {
+        dose_mol = dose_conc_mol_per_L(lib, drug, form, dose_amount, o.temperature_C);
+      } catch (const InputError& e) {
+        throw InputError(SourceLocation{"--form", 0, 0}, e.message());
+      }
+      Formulation f;
+      try {
+        f = make_formulation(lib, o, drug, dose_mol, form,
+                             preparation == "adjusted" ? ScreenPreparation::kAdjusted : ScreenPreparation::kPremade);
+      } catch (const InputError& e) {
+        const std::string& field = e.where().file;
+        const std::string option = field == "pH" ? "--ph" : field.empty() ? "--buffer" : "--" + field;
+        throw InputError(SourceLocation{option, 0, 0}, e.message());
+      }
+      if (common.format == "json") write_formulation_json(f, std::cout);
+      else if (common.format == "csv") write_formulation_csv(f, std::cout);
+      else write_formulation_text(f, std::cout);
+      return 0;
     }
     Recipe r;
     try {

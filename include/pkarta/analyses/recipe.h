@@ -43,6 +43,8 @@ struct RecipeOptions {
   double titrant_conc_mol_per_L = 1.0;
   bool isotonic = false;              ///< add NaCl to reach kIsotonicTarget_mOsm_per_kg (estimate)
   std::string tonicity_reagent = "NaCl";
+  /// Osmolarity of solutes added later (a dose), counted when the tonicity reagent is sized.
+  double other_solutes_mOsm_per_L = 0.0;
   ActivityModel activity = ActivityModel::kDavies;
   /// False with a message naming the field ("RecipeOptions::volume_L = 0, must be > 0").
   bool is_valid(std::string* error) const;
