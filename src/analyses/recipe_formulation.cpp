@@ -84,7 +84,7 @@ Formulation build(const Library& library, RecipeOptions o, const Compound& compo
   for (int round = 0; round < 3 && o.isotonic; ++round) {
     Mixture with = recipe_mixture(library, r, o.activity);
     add_drug(with, library, compound, dose, form);
-    o.other_solutes_mOsm_per_L += osmolarity_of(with) - osmolarity_of(recipe_mixture(library, r, o.activity));
+    o.other_solutes_mOsm_per_L = osmolarity_of(with) - osmolarity_of(recipe_mixture(library, r, o.activity));
     r = make_recipe(library, o);
   }
   if (how == ScreenPreparation::kAdjusted) {
