@@ -379,6 +379,34 @@ std::vector<const Buffer*> screen_candidates(const Library& library, const Scree
 
 namespace {
 
+// Common practice for a route (not rules): buffer strengths above max_strength and osmolality
+// estimates above max_osmolality are flagged.
+struct RouteLimits {
+  const char* route;
+  double max_strength_mol_per_L;
+  double max_osmolality_mOsm_per_kg;
+};
+constexpr RouteLimits kRouteLimits[] = {{"parenteral", 0.05, 600.0}, {"ophthalmic", 0.05, 600.0}};
+
+std::vector<std::string> route_flags(const std::string& route, const ScreenResult& r, double temperature_C) {
+  std::vector<std::string> flags;
+  for (const RouteLimits& l : kRouteLimits) {
+    if (route != l.route) continue;
+    if (r.conc_used_mol_per_L > l.max_strength_mol_per_L * (1 + 1e-9)) {
+      flags.push_back("strength " + sig(1e3 * r.conc_used_mol_per_L, 3) + " mM is above the " +
+                      sig(1e3 * l.max_strength_mol_per_L, 3) + " mM common for " + route +
+                      " products (common practice, not a rule)");
+    }
+    const double osm = kOsmoticCoefficient * r.osmolarity_mOsm_per_L / water_density_kg_per_L(temperature_C);
+    if (osm > l.max_osmolality_mOsm_per_kg) {
+      flags.push_back("osmolality estimate " + fixed(osm, 0) + " mOsm/kg is above the " +
+                      fixed(l.max_osmolality_mOsm_per_kg, 0) + " mOsm/kg usual for " + route +
+                      " products (common practice, not a rule)");
+    }
+  }
+  return flags;
+}
+
 // One criterion: a test of the formulation at total buffer concentration C.
 struct CriterionTest {
   ScreenCriterion info;
@@ -631,6 +659,7 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
   else if (solubility_at_target_mol_per_L < job.dose_mol_per_L) r.status = ScreenStatus::kDoseNotSoluble;
   else if (!achievable) r.status = ScreenStatus::kNotAchievable;
   else r.status = ScreenStatus::kOk;
+  if (r.status == ScreenStatus::kOk) r.route_flags = route_flags(options.route, r, options.temperature_C);
   return r;
 }
 
@@ -719,6 +748,19 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
     rank_screen_results(rep.results);
     if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
       rep.warnings.push_back("the dose exceeds the drug's solubility in water at the target pH");
+    }
+    if (rep.route == "parenteral" || rep.route == "ophthalmic") {
+      for (const ScreenResult& r : rep.results) {
+        if (r.status != ScreenStatus::kOk) continue;
+        const double osm = kOsmoticCoefficient * r.osmolarity_mOsm_per_L / water_density_kg_per_L(rep.temperature_C);
+        if (osm < 250.0) {
+          rep.warnings.push_back("the leading buffer's osmolality estimate, " + fixed(osm, 0) +
+                                 " mOsm/kg, is below the 250 mOsm/kg usual for " + rep.route +
+                                 " products (common practice, not a rule): add a tonicity reagent "
+                                 "(pkarta recipe --isotonic)");
+        }
+        break;
+      }
     }
   }
   return reports;
