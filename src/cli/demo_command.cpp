@@ -42,7 +42,8 @@ std::string summary_line(const ReportData& d) {
         break;
       }
     }
-    s += lead ? " leading buffer " + lead->name + " " + sig(*lead->min_conc_mol_per_L * 1e3, 3) + " mM;"
+    s += lead ? " leading buffer " + lead->name + " " + sig(*lead->recommended_conc_mol_per_L * 1e3, 3) + " mM (set by " +
+                    lead->binding + ");"
               : std::string(" no buffer holds the target;");
   }
   if (d.dose_in_water && d.dose_in_water->equilibrium.drug) {
