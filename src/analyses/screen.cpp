@@ -891,7 +891,21 @@ void write_screen_near_misses(const ScreenReport& rep, std::ostream& out) {
   for (const ScreenResult& r : rep.results) {
     if (r.status != ScreenStatus::kOutsideRange && std::isfinite(r.pH_drift)) near.push_back(&r);
   }
-  std::stable_sort(near.begin(), near.end(), [](const ScreenResult* a, const ScreenResult* b) {
+  // How far a buffer misses at max-conc: the largest distance of a failing criterion's value
+  // beyond its limits (pH units for the pH criteria), then the pH deviation after the dose.
+  auto miss = [](const ScreenResult* r) {
+    double m = 0.0;
+    for (const ScreenCriterion& c : r->criteria) {
+      if (c.pass) continue;
+      if (!std::isfinite(c.value)) return kInf;
+      const double d = c.value < c.limit_low ? c.limit_low - c.value : c.value - c.limit_high;
+      m = std::max(m, c.id == "min-capacity" ? d / std::max(c.limit_low, 1e-30) : d);
+    }
+    return m;
+  };
+  std::stable_sort(near.begin(), near.end(), [&](const ScreenResult* a, const ScreenResult* b) {
+    const double ma = miss(a), mb = miss(b);
+    if (ma != mb) return ma < mb;
     return std::fabs(a->pH_drift) < std::fabs(b->pH_drift);
   });
   out << "\n  no buffer is ok";

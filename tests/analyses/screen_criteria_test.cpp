@@ -4,6 +4,7 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <sstream>
 #include <string>
 
 #include "pkarta/analyses/screen.h"
@@ -198,6 +199,25 @@ TEST_F(ScreenCriteria, RecommendedStrengthIsPractical) {
     EXPECT_LE(*r.recommended_conc_mol_per_L, r.max_conc_mol_per_L);
     EXPECT_DOUBLE_EQ(r.conc_used_mol_per_L, *r.recommended_conc_mol_per_L);
   }
+}
+
+TEST_F(ScreenCriteria, NearMissesNameTheClosestCandidatesAndWhatFails) {
+  // 5 mM of acid or base within 0.1 pH needs a capacity near 50 mM per pH (van Slyke), more
+  // than any buffer at its max-conc gives here: none is ok, and the closest are named.
+  ScreenOptions o = demo_options();
+  o.challenge_mol_per_L = 5e-3;
+  const ScreenReport rep = screen(lib_, demo_job(), o);
+  for (const ScreenResult& r : rep.results) EXPECT_NE(r.status, ScreenStatus::kOk) << r.buffer;
+  std::ostringstream out;
+  write_screen_near_misses(rep, out);
+  const std::string text = out.str();
+  EXPECT_NE(text.find("no buffer is ok; closest candidates at their max-conc"), std::string::npos) << text;
+  // Acetate (max-conc 100 mM, capacity about 50 mM per pH) fails only the base challenge.
+  EXPECT_NE(text.find("acetate 100 mM: pH after drug 5.000"), std::string::npos) << text;
+  EXPECT_NE(text.find("fails base-challenge (pH 5.10"), std::string::npos) << text;
+  std::ostringstream none;
+  write_screen_near_misses(screen(lib_, demo_job(), demo_options()), none);
+  EXPECT_EQ(none.str(), "");
 }
 
 }  // namespace
