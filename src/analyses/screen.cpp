@@ -379,34 +379,6 @@ std::vector<const Buffer*> screen_candidates(const Library& library, const Scree
 
 namespace {
 
-// Common practice for a route (not rules): buffer strengths above max_strength and osmolality
-// estimates above max_osmolality are flagged.
-struct RouteLimits {
-  const char* route;
-  double max_strength_mol_per_L;
-  double max_osmolality_mOsm_per_kg;
-};
-constexpr RouteLimits kRouteLimits[] = {{"parenteral", 0.05, 600.0}, {"ophthalmic", 0.05, 600.0}};
-
-std::vector<std::string> route_flags(const std::string& route, const ScreenResult& r, double temperature_C) {
-  std::vector<std::string> flags;
-  for (const RouteLimits& l : kRouteLimits) {
-    if (route != l.route) continue;
-    if (r.conc_used_mol_per_L > l.max_strength_mol_per_L * (1 + 1e-9)) {
-      flags.push_back("strength " + sig(1e3 * r.conc_used_mol_per_L, 3) + " mM is above the " +
-                      sig(1e3 * l.max_strength_mol_per_L, 3) + " mM common for " + route +
-                      " products (common practice, not a rule)");
-    }
-    const double osm = kOsmoticCoefficient * r.osmolarity_mOsm_per_L / water_density_kg_per_L(temperature_C);
-    if (osm > l.max_osmolality_mOsm_per_kg) {
-      flags.push_back("osmolality estimate " + fixed(osm, 0) + " mOsm/kg is above the " +
-                      fixed(l.max_osmolality_mOsm_per_kg, 0) + " mOsm/kg usual for " + route +
-                      " products (common practice, not a rule)");
-    }
-  }
-  return flags;
-}
-
 // One criterion: a test of the formulation at total buffer concentration C.
 struct CriterionTest {
   ScreenCriterion info;
@@ -470,25 +442,6 @@ const ScreenCriterion* ScreenResult::criterion(const std::string& id) const {
     if (c.id == id) return &c;
   }
   return nullptr;
-}
-
-double round_up_strength(double min_conc, double max_conc, double step) {
-  double v;
-  if (step > 0) {
-    v = std::ceil(min_conc / step * (1 - 1e-9)) * step;
-    if (v < min_conc) v += step;
-  } else {
-    v = 1e-3;
-    const double mults[] = {1.0, 2.0, 5.0};
-    for (int decade = -3; decade <= 3 && v < min_conc * (1 - 1e-9); ++decade) {
-      for (double m : mults) {
-        v = m * std::pow(10.0, decade);
-        if (v >= min_conc * (1 - 1e-9)) break;
-      }
-    }
-    v = std::max(v, min_conc);
-  }
-  return std::min(v, max_conc);
 }
 
 ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const ScreenJob& job,
@@ -659,7 +612,7 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
   else if (solubility_at_target_mol_per_L < job.dose_mol_per_L) r.status = ScreenStatus::kDoseNotSoluble;
   else if (!achievable) r.status = ScreenStatus::kNotAchievable;
   else r.status = ScreenStatus::kOk;
-  if (r.status == ScreenStatus::kOk) r.route_flags = route_flags(options.route, r, options.temperature_C);
+  if (r.status == ScreenStatus::kOk) r.route_flags = screen_route_flags(options.route, r, options.temperature_C);
   return r;
 }
 
@@ -855,13 +808,6 @@ const char* kOsmolalityNote =
     "Osmolarity is ideal (sum of dissolved species); osmolality estimate = 0.93 x osmolarity / "
     "density of water, an estimate that must be measured.";
 
-std::string criterion_value_text(const ScreenCriterion& c) {
-  if (!std::isfinite(c.value)) return "n/a";
-  if (c.id == "min-capacity") return sig(1e3 * c.value, 3) + " mM/pH";
-  if (c.id == "storage-drift") return fixed(c.value, 3) + " pH";
-  return "pH " + fixed(c.value, 3);
-}
-
 // Per buffer that was searched: each criterion's value and verdict at the strength used.
 void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
   bool any = false;
@@ -872,7 +818,7 @@ void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
     std::string line = "  " + r.buffer + " at " + sig(1e3 * r.conc_used_mol_per_L, 3) + " mM" +
                        (r.recommended_conc_mol_per_L ? "" : " (max-conc)") + ":";
     for (const ScreenCriterion& c : r.criteria) {
-      line += " " + c.id + " " + criterion_value_text(c) + " " + (c.pass ? "pass" : "FAIL") + " (" +
+      line += " " + c.id + " " + screen_criterion_value_text(c) + " " + (c.pass ? "pass" : "FAIL") + " (" +
               (c.min_conc_mol_per_L ? (c.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *c.min_conc_mol_per_L, 3) + " mM"
                                     : "not met") + ");";
     }
@@ -880,54 +826,6 @@ void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
     out << line << "\n";
   }
 }
-
-}  // namespace
-
-void write_screen_near_misses(const ScreenReport& rep, std::ostream& out) {
-  for (const ScreenResult& r : rep.results) {
-    if (r.status == ScreenStatus::kOk) return;
-  }
-  std::vector<const ScreenResult*> near;
-  for (const ScreenResult& r : rep.results) {
-    if (r.status != ScreenStatus::kOutsideRange && std::isfinite(r.pH_drift)) near.push_back(&r);
-  }
-  // How far a buffer misses at max-conc: the largest distance of a failing criterion's value
-  // beyond its limits (pH units for the pH criteria), then the pH deviation after the dose.
-  auto miss = [](const ScreenResult* r) {
-    double m = 0.0;
-    for (const ScreenCriterion& c : r->criteria) {
-      if (c.pass) continue;
-      if (!std::isfinite(c.value)) return kInf;
-      const double d = c.value < c.limit_low ? c.limit_low - c.value : c.value - c.limit_high;
-      m = std::max(m, c.id == "min-capacity" ? d / std::max(c.limit_low, 1e-30) : d);
-    }
-    return m;
-  };
-  std::stable_sort(near.begin(), near.end(), [&](const ScreenResult* a, const ScreenResult* b) {
-    const double ma = miss(a), mb = miss(b);
-    if (ma != mb) return ma < mb;
-    return std::fabs(a->pH_drift) < std::fabs(b->pH_drift);
-  });
-  out << "\n  no buffer is ok";
-  if (near.empty()) {
-    out << " and none has a pKa within 1 of the target\n";
-    return;
-  }
-  out << "; closest candidates at their max-conc:\n";
-  for (std::size_t k = 0; k < near.size() && k < 3; ++k) {
-    const ScreenResult& r = *near[k];
-    std::string fails;
-    for (const ScreenCriterion& c : r.criteria) {
-      if (!c.pass) fails += (fails.empty() ? "" : ", ") + c.id + " (" + criterion_value_text(c) + ")";
-    }
-    if (r.status == ScreenStatus::kDoseNotSoluble) fails += (fails.empty() ? "" : ", ") + std::string("dose not soluble");
-    out << "  " << r.buffer << " " << sig(1e3 * r.max_conc_mol_per_L, 3) << " mM: pH after drug "
-        << fixed(r.pH_after_drug, 3) << " (" << (r.pH_drift >= 0 ? "+" : "") << fixed(r.pH_drift, 3)
-        << "); fails " << (fails.empty() ? "none" : fails) << "\n";
-  }
-}
-
-namespace {
 
 nlohmann::ordered_json opt_number(const std::optional<double>& v) {
   if (!v || !std::isfinite(*v)) return nullptr;

@@ -239,6 +239,14 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
 /// to the 1-2-5 series in mM from 1 mM (step 0); never below the minimum, never above max-conc.
 double round_up_strength(double min_conc_mol_per_L, double max_conc_mol_per_L, double step_mol_per_L = 0.0);
 
+/// Strengths above a route's common practice and osmolality estimates above its usual range
+/// (parenteral, ophthalmic: 50 mM, 600 mOsm/kg; common practice, not rules), as sentences.
+std::vector<std::string> screen_route_flags(const std::string& route, const ScreenResult& result,
+                                            double temperature_C);
+
+/// A criterion's value as text ("pH 4.927", "14.1 mM/pH", "0.040 pH").
+std::string screen_criterion_value_text(const ScreenCriterion& criterion);
+
 /// Parses a dose range: "10%", "+/-10%", "±10%" or "0.1" give 0.1. Throws InputError (without
 /// location) unless the result lies in [0, 1).
 double parse_dose_range(std::string_view text);
