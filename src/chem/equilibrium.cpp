@@ -431,9 +431,13 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
       if (!(tot[l] > 0)) return false;
       mu[l] = std::log(tot[l]);
     }
+    // Warm start from the last solution of the same active set (the previous evaluation).
+    if (subset == warm_subset_) {
+      for (int l = 0; l < ncl; ++l) mu[l] = std::min(warm_mu_[l], mu[l] + 1.0);
+    }
     const int dim = ncl + ns;
     bool converged = false;
-    for (int it = 0; it < 200 && !converged; ++it) {
+    for (int it = 0; it < 60 && !converged; ++it) {
       double a[2 * kMaxComp][2 * kMaxComp + 1] = {};
       double c[kMaxComp];
       for (int l = 0; l < ncl; ++l) {
@@ -477,6 +481,10 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
     }
     d = std::exp(mu[0]);
     for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
+    if (undersaturated_except(subset, alpha, d, x, kEps)) {
+      warm_subset_ = subset;
+      for (int l = 0; l < ncl; ++l) warm_mu_[l] = mu[l];
+    }
   }
   if (!undersaturated_except(subset, alpha, d, x, kEps)) return false;
   p.dissolved = d;

@@ -22,6 +22,8 @@ inline constexpr int kMaxPka = 8;
 
 /// Maximum number of salts of one compound.
 inline constexpr int kMaxSalts = 8;
+/// Components of the solid partition: the drug and up to one counterion per salt.
+inline constexpr int kMaxSolidComponents = 1 + kMaxSalts;
 
 enum class ActivityModel { kDavies, kIdeal };
 
@@ -235,6 +237,8 @@ class EquilibriumModel {
   std::vector<int> comp_ion_;                // ion index of component c >= 1 (comp_ion_[0] = -1)
   std::vector<std::uint32_t> subsets_;       // candidate active sets (bit 0 free, bit k+1 salt k)
   mutable std::uint32_t last_subset_ = 0;    // the active set found last (tried first)
+  mutable std::uint32_t warm_subset_ = 0;    // active set of warm_mu_ (general solve)
+  mutable std::array<double, kMaxSolidComponents> warm_mu_{};
 };
 
 /// Solves a mixture and returns the full state (species list, drug state, warnings).
