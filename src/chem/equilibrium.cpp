@@ -14,11 +14,60 @@ constexpr int kGammaOffset = 16;  // gamma_ table covers charges -16..+16
 constexpr double kPhLow = -3.0;   // bracket of every solve: charge balance > 0 here ...
 constexpr double kPhHigh = 17.0;  // ... and < 0 here, for totals up to 10 mol/L
 constexpr double kEps = 1e-12;    // relative slack of the phase-consistency checks
-// Largest relative charge residual of a returned state (docs/model.md, "Solver"). The bracketed
-// solve also stops where the charge balance jumps across zero without a root, which happens
-// where no set of solids the model covers (free form and at most one salt) is consistent.
+// Largest relative charge residual of a returned state (docs/model.md, "Solver").
 constexpr double kMaxChargeResidual = 1e-10;
+constexpr int kMaxComp = 1 + kMaxSalts;  // partition components: the drug and each counterion
+
+/// x^k for a small positive integer k, by multiplication (x^1 is x itself).
+inline double ipow(double x, int k) {
+  double r = x;
+  for (int i = 1; i < k; ++i) r *= x;
+  return r;
+}
+
+/// Solves the dense system a x = b (n <= 2 kMaxComp) by Gaussian elimination with partial
+/// pivoting; false when it is singular.
+bool solve_dense(int n, double (*a)[2 * kMaxComp + 1], double* x) {
+  for (int c = 0; c < n; ++c) {
+    int piv = c;
+    for (int r = c + 1; r < n; ++r) {
+      if (std::fabs(a[r][c]) > std::fabs(a[piv][c])) piv = r;
+    }
+    if (!(std::fabs(a[piv][c]) > 1e-300)) return false;
+    if (piv != c) {
+      for (int k = c; k <= n; ++k) std::swap(a[piv][k], a[c][k]);
+    }
+    for (int r = c + 1; r < n; ++r) {
+      const double f = a[r][c] / a[c][c];
+      if (f == 0.0) continue;
+      for (int k = c; k <= n; ++k) a[r][k] -= f * a[c][k];
+    }
+  }
+  for (int r = n - 1; r >= 0; --r) {
+    double v = a[r][n];
+    for (int k = r + 1; k < n; ++k) v -= a[r][k] * x[k];
+    x[r] = v / a[r][r];
+  }
+  return true;
+}
 }  // namespace
+
+int SolidSet::count() const {
+  int k = free ? 1 : 0;
+  for (std::uint32_t b = salts; b; b &= b - 1) ++k;
+  return k;
+}
+
+std::string to_string(const SolidSet& solids, const Compound& compound) {
+  if (solids.empty()) return "none";
+  std::string out = solids.free ? "free" : "";
+  for (std::size_t k = 0; k < compound.salts.size() && k < 32; ++k) {
+    if (!solids.has_salt(static_cast<int>(k))) continue;
+    if (!out.empty()) out += "+";
+    out += compound.salts[k].id;
+  }
+  return out;
+}
 
 void Mixture::add_ion(const std::string& id, int charge, double amount_mol_per_L) {
   for (IonAmount& i : ions) {
@@ -96,25 +145,88 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     drug_neutral_ = d.compound.has_intrinsic_solubility ? d.compound.system.neutral_index() : -1;
     s0_ = d.compound.has_intrinsic_solubility ? d.compound.s0_at(temperature_C_)
                                               : std::numeric_limits<double>::infinity();
-    for (const Salt& salt : d.compound.salts) {
+    comp_ion_.push_back(-1);
+    for (std::size_t idx = 0; idx < d.compound.salts.size(); ++idx) {
+      const Salt& salt = d.compound.salts[idx];
       int ion = -1;
       for (std::size_t k = 0; k < m.ions.size(); ++k) {
         if (m.ions[k].id == salt.counterion) ion = static_cast<int>(k);
       }
       if (ion < 0 || !salt.ksp) continue;  // no counterion present: this salt cannot form
       const int zc = m.ions[ion].charge;
-      const int j = drug_.z0 + zc;  // species of charge -zc
-      if (j < 0 || j > drug_.n || (zc != 1 && zc != -1)) {
+      const int balance = -zc * salt.counterion_count;
+      const int zd = salt.drug_count > 0 ? balance / salt.drug_count : 0;
+      const int j = drug_.z0 - zd;  // species of charge zd
+      if (zc == 0 || salt.drug_count < 1 || salt.counterion_count < 1 ||
+          zd * salt.drug_count != balance || j < 0 || j > drug_.n) {
         throw InputError("salt '" + salt.id + "' of '" + d.compound.id +
-                         "': the compound has no species of charge " + std::to_string(-zc) +
-                         " to pair 1:1 with " + salt.counterion);
+                         "': the compound has no species of charge " +
+                         (zd * salt.drug_count == balance ? std::to_string(zd) : std::to_string(balance) + "/" + std::to_string(salt.drug_count)) +
+                         " to pair " + salt.stoichiometry() + " with " + salt.counterion);
+      }
+      if (static_cast<int>(salts_.size()) >= kMaxSalts || idx >= 32) {
+        throw InputError("compound '" + d.compound.id + "' has more than " +
+                         std::to_string(kMaxSalts) + " salts whose counterion is present");
       }
       SaltPhase p;
+      p.index = static_cast<int>(idx);
       p.ion = ion;
       p.species = j;
+      p.m = salt.drug_count;
+      p.n = salt.counterion_count;
+      p.zd = zd;
+      p.zx = zc;
       p.ksp = salt_ksp_at(salt, temperature_C_);
+      for (std::size_t c = 1; c < comp_ion_.size(); ++c) {
+        if (comp_ion_[c] == ion) p.comp = static_cast<int>(c);
+      }
+      if (p.comp < 0) {
+        p.comp = static_cast<int>(comp_ion_.size());
+        comp_ion_.push_back(ion);
+      }
       salts_.push_back(p);
     }
+    // Candidate active sets: bit 0 the free form, bit k+1 model salt k. A set is a candidate
+    // when its solids' stoichiometric vectors (over the drug and the counterions) are
+    // independent: at fixed pH at most as many solids as components coexist (phase rule).
+    const bool free_possible = drug_neutral_ >= 0 && std::isfinite(s0_);
+    const int ns = static_cast<int>(salts_.size());
+    const int nc = static_cast<int>(comp_ion_.size());
+    std::vector<std::pair<int, std::uint32_t>> sets;
+    for (std::uint32_t mask = 1; mask < (1u << (ns + 1)); ++mask) {
+      if ((mask & 1u) && !free_possible) continue;
+      double a[kMaxComp][kMaxComp] = {};
+      int rows = 0;
+      for (int b = 0; b <= ns; ++b) {
+        if (!((mask >> b) & 1u)) continue;
+        if (b == 0) {
+          a[rows][0] = 1.0;
+        } else {
+          a[rows][0] = salts_[b - 1].m;
+          a[rows][salts_[b - 1].comp] = salts_[b - 1].n;
+        }
+        ++rows;
+      }
+      if (rows > nc) continue;
+      int rank = 0;
+      for (int c = 0; c < nc && rank < rows; ++c) {
+        int piv = -1;
+        for (int r = rank; r < rows; ++r) {
+          if (std::fabs(a[r][c]) > 1e-9 && (piv < 0 || std::fabs(a[r][c]) > std::fabs(a[piv][c]))) piv = r;
+        }
+        if (piv < 0) continue;
+        for (int k = 0; k < nc; ++k) std::swap(a[piv][k], a[rank][k]);
+        for (int r = rank + 1; r < rows; ++r) {
+          const double f = a[r][c] / a[rank][c];
+          for (int k = 0; k < nc; ++k) a[r][k] -= f * a[rank][k];
+        }
+        ++rank;
+      }
+      if (rank == rows) sets.push_back({rows, mask});
+    }
+    std::stable_sort(sets.begin(), sets.end(),
+                     [](const auto& x, const auto& y) { return x.first < y.first; });
+    for (const auto& st : sets) subsets_.push_back(st.second);
   }
   double i0 = 0.0;
   for (const IonC& i : ions_) i0 += 0.5 * i.charge * i.charge * i.conc;
@@ -159,7 +271,7 @@ void EquilibriumModel::update_effective_constants() {
   for (Sys& s : systems_) update(s);
   if (has_drug_) {
     update(drug_);
-    for (SaltPhase& p : salts_) p.ksp_eff = p.ksp / (gamma(1) * gamma(-1));
+    for (SaltPhase& p : salts_) p.ksp_eff = p.ksp / (ipow(gamma(p.zd), p.m) * ipow(gamma(p.zx), p.n));
   }
 }
 
@@ -197,82 +309,215 @@ void EquilibriumModel::fractions(int system, double pH, double* alpha) const {
   moments(system < 0 ? drug_ : systems_[system], std::pow(10.0, -pH), alpha, &zb, &z2);
 }
 
+double EquilibriumModel::ion_removed(const Partition& p, int ion) const {
+  double removed = 0.0;
+  for (std::size_t k = 0; k < salts_.size(); ++k) {
+    if (salts_[k].ion == ion && p.salt_solid[k] != 0.0) removed += salts_[k].n * p.salt_solid[k];
+  }
+  return removed;
+}
+
+// True when every candidate solid outside `subset` is undersaturated (within `slack`), at
+// dissolved drug d and dissolved counterion x[c] of each component.
+bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double* alpha, double d,
+                                             const double* x, double slack) const {
+  if (!(subset & 1u) && drug_neutral_ >= 0 && std::isfinite(s0_) &&
+      alpha[drug_neutral_] * d > s0_ * (1.0 + slack)) {
+    return false;
+  }
+  for (std::size_t k = 0; k < salts_.size(); ++k) {
+    if ((subset >> (k + 1)) & 1u) continue;
+    const SaltPhase& s = salts_[k];
+    const double q = (s.m == 1 && s.n == 1) ? alpha[s.species] * d * x[s.comp]
+                                            : ipow(alpha[s.species] * d, s.m) * ipow(x[s.comp], s.n);
+    if (q > s.ksp_eff * (1.0 + slack)) return false;
+  }
+  return true;
+}
+
+// The partition with exactly the solids of `subset` present (bit 0 free, bit k+1 model salt k):
+// false when it does not exist, a solid amount would be negative, or another solid would be
+// supersaturated. Closed forms for the free form, one 1:1 salt, and the free form with one
+// salt; otherwise Newton's method on the equality-constrained dual (component potentials
+// mu = ln c, minimize sum c - T mu subject to the solids' solubility products).
+bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, double dose,
+                                  Partition* out) const {
+  const int nc = static_cast<int>(comp_ion_.size());
+  double total[kMaxComp], x[kMaxComp];
+  total[0] = dose;
+  for (int c = 1; c < nc; ++c) total[c] = ions_[comp_ion_[c]].conc;
+  for (int c = 0; c < nc; ++c) x[c] = total[c];
+  Partition p;
+  const bool with_free = subset & 1u;
+  const std::uint32_t salt_bits = subset >> 1;
+  int single = -1;  // the only salt, when there is one
+  if (salt_bits && !(salt_bits & (salt_bits - 1))) {
+    single = 0;
+    while (!((salt_bits >> single) & 1u)) ++single;
+  }
+  const double an = drug_neutral_ >= 0 ? alpha[drug_neutral_] : 0.0;
+  if (with_free && !(an > 0)) return false;
+  for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
+    if (((salt_bits >> k) & 1u) && !(alpha[salts_[k].species] > 0)) return false;
+  }
+  double d = dose;
+  if (with_free && !salt_bits) {
+    d = s0_ / an;
+    p.free_solid = dose - d;
+    if (!(p.free_solid >= 0)) return false;
+  } else if (single >= 0 && !with_free && salts_[single].m == 1 && salts_[single].n == 1) {
+    const SaltPhase& s = salts_[single];
+    const double xt = total[s.comp];
+    const double a = alpha[s.species];
+    const double kq = s.ksp_eff / a;
+    const double c = dose * xt - kq;
+    if (!(c > 0)) return false;
+    const double disc = (dose - xt) * (dose - xt) + 4.0 * kq;
+    const double sq = std::sqrt(disc);
+    const double precip = 2.0 * c / ((dose + xt) + sq);  // smaller root, stable form
+    // The dissolved drug solves d^2 + (x - dose) d - kq = 0; its stable form keeps it positive
+    // where nearly all the dose precipitates (dose - precip would cancel to below zero).
+    const double b = xt - dose;
+    d = b > 0 ? 2.0 * kq / (b + sq) : 0.5 * (sq - b);
+    p.salt_solid[single] = precip;
+    p.salt_drug = precip;
+    x[s.comp] = xt - precip;
+  } else if (single >= 0 && with_free) {
+    const SaltPhase& s = salts_[single];
+    d = s0_ / an;
+    const double x_left = (s.m == 1 && s.n == 1)
+                              ? s.ksp_eff / (alpha[s.species] * d)
+                              : std::pow(s.ksp_eff / ipow(alpha[s.species] * d, s.m), 1.0 / s.n);
+    const double precip = (s.n == 1) ? total[s.comp] - x_left : (total[s.comp] - x_left) / s.n;
+    const double free_solid = (s.m == 1) ? dose - precip - d : dose - s.m * precip - d;
+    if (precip < 0 || free_solid < 0) return false;
+    p.salt_solid[single] = precip;
+    p.salt_drug = s.m * precip;
+    p.free_solid = free_solid;
+    x[s.comp] = x_left;
+  } else {
+    // Components involved: the drug (local 0) and the counterions of the salts present.
+    int comps[kMaxComp], ncl = 0, local_of[kMaxComp];
+    for (int c = 0; c < nc; ++c) local_of[c] = -1;
+    local_of[0] = 0;
+    comps[ncl++] = 0;
+    for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
+      if (((salt_bits >> k) & 1u) && local_of[salts_[k].comp] < 0) {
+        local_of[salts_[k].comp] = ncl;
+        comps[ncl++] = salts_[k].comp;
+      }
+    }
+    // Constraints: nu . mu = logk for each solid present.
+    double nu[kMaxComp][kMaxComp] = {};
+    double logk[kMaxComp];
+    int solid_of[kMaxComp];  // -1 free, else model salt
+    int ns = 0;
+    if (with_free) {
+      nu[ns][0] = 1.0;
+      logk[ns] = std::log(s0_ / an);
+      solid_of[ns++] = -1;
+    }
+    for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
+      if (!((salt_bits >> k) & 1u)) continue;
+      const SaltPhase& s = salts_[k];
+      nu[ns][0] = s.m;
+      nu[ns][local_of[s.comp]] = s.n;
+      logk[ns] = std::log(s.ksp_eff) - s.m * std::log(alpha[s.species]);
+      solid_of[ns++] = k;
+    }
+    double mu[kMaxComp], tot[kMaxComp], lam[kMaxComp];
+    for (int l = 0; l < ncl; ++l) {
+      tot[l] = total[comps[l]];
+      if (!(tot[l] > 0)) return false;
+      mu[l] = std::log(tot[l]);
+    }
+    // Warm start from the last solution of the same active set (the previous evaluation).
+    if (subset == warm_subset_) {
+      for (int l = 0; l < ncl; ++l) mu[l] = std::min(warm_mu_[l], mu[l] + 1.0);
+    }
+    const int dim = ncl + ns;
+    bool converged = false;
+    for (int it = 0; it < 60 && !converged; ++it) {
+      double a[2 * kMaxComp][2 * kMaxComp + 1] = {};
+      double c[kMaxComp];
+      for (int l = 0; l < ncl; ++l) {
+        c[l] = std::exp(mu[l]);
+        a[l][l] = c[l];
+        a[l][dim] = tot[l] - c[l];
+      }
+      for (int r = 0; r < ns; ++r) {
+        double lhs = 0.0;
+        for (int l = 0; l < ncl; ++l) {
+          a[l][ncl + r] = nu[r][l];
+          a[ncl + r][l] = nu[r][l];
+          lhs += nu[r][l] * mu[l];
+        }
+        a[ncl + r][dim] = logk[r] - lhs;
+      }
+      double sol[2 * kMaxComp];
+      if (!solve_dense(dim, a, sol)) return false;
+      double big = 0.0, t = 1.0;
+      for (int l = 0; l < ncl; ++l) {
+        big = std::max(big, std::fabs(sol[l]));
+        // A dissolved amount never exceeds its total: keep c below e times it.
+        const double room = std::log(tot[l]) + 1.0 - mu[l];
+        if (sol[l] > room && sol[l] > 0) t = std::min(t, std::max(room, 0.0) / sol[l]);
+      }
+      if (big * t > 30.0) t = 30.0 / big;
+      if (!(t > 0)) t = 0.5;
+      for (int l = 0; l < ncl; ++l) mu[l] += t * sol[l];
+      for (int r = 0; r < ns; ++r) lam[r] = sol[ncl + r];
+      converged = t == 1.0 && big <= 1e-9;
+    }
+    if (!converged) return false;
+    for (int r = 0; r < ns; ++r) {
+      if (!(lam[r] >= 0)) return false;
+      if (solid_of[r] < 0) {
+        p.free_solid = lam[r];
+      } else {
+        p.salt_solid[solid_of[r]] = lam[r];
+        p.salt_drug += salts_[solid_of[r]].m * lam[r];
+      }
+    }
+    d = std::exp(mu[0]);
+    for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
+    if (undersaturated_except(subset, alpha, d, x, kEps)) {
+      warm_subset_ = subset;
+      for (int l = 0; l < ncl; ++l) warm_mu_[l] = mu[l];
+    }
+  }
+  if (!undersaturated_except(subset, alpha, d, x, kEps)) return false;
+  p.dissolved = d;
+  p.solids.free = with_free;
+  for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
+    if ((salt_bits >> k) & 1u) p.solids.salts |= 1u << salts_[k].index;
+  }
+  *out = p;
+  return true;
+}
+
 EquilibriumModel::Partition EquilibriumModel::partition(const double* alpha, double dose) const {
   Partition p;
   p.dissolved = dose;
   if (!drug_solids_ || !(dose > 0)) return p;
-  const bool free_possible = drug_neutral_ >= 0 && std::isfinite(s0_);
-  const double an = free_possible ? alpha[drug_neutral_] : 0.0;
-  const double sat_free = free_possible ? an * dose / s0_ : 0.0;
-  bool any_salt = false;
-  for (const SaltPhase& s : salts_) {
-    if (alpha[s.species] * dose * ions_[s.ion].conc > s.ksp_eff) any_salt = true;
-  }
-  if (sat_free <= 1.0 && !any_salt) return p;
-
-  // Are the other salts undersaturated, given the dissolved drug and the counterion left?
-  auto salts_ok = [&](double dissolved, int except, int except_ion, double ion_left) {
-    for (std::size_t t = 0; t < salts_.size(); ++t) {
-      if (static_cast<int>(t) == except) continue;
-      const SaltPhase& s = salts_[t];
-      const double x = s.ion == except_ion ? ion_left : ions_[s.ion].conc;
-      if (alpha[s.species] * dissolved * x > s.ksp_eff * (1.0 + kEps)) return false;
-    }
-    return true;
-  };
-
-  if (sat_free > 1.0) {  // free form only
-    const double d = s0_ / an;
-    if (salts_ok(d, -1, -1, 0.0)) {
-      p.phase = 1;
-      p.dissolved = d;
-      p.free_solid = dose - d;
-      return p;
-    }
-  }
-  for (std::size_t k = 0; k < salts_.size(); ++k) {  // one salt only
-    const SaltPhase& s = salts_[k];
-    const double x = ions_[s.ion].conc;
-    const double a = alpha[s.species];
-    const double kq = s.ksp_eff / a;
-    const double c = dose * x - kq;
-    if (!(c > 0)) continue;
-    const double disc = (dose - x) * (dose - x) + 4.0 * kq;
-    const double sq = std::sqrt(disc);
-    const double precip = 2.0 * c / ((dose + x) + sq);  // smaller root, stable form
-    // The dissolved drug solves d^2 + (x - dose) d - kq = 0; its stable form keeps it positive
-    // where nearly all the dose precipitates (dose - precip would cancel to below zero).
-    const double b = x - dose;
-    const double d = b > 0 ? 2.0 * kq / (b + sq) : 0.5 * (sq - b);
-    if (free_possible && an * d > s0_ * (1.0 + kEps)) continue;
-    if (!salts_ok(d, static_cast<int>(k), s.ion, x - precip)) continue;
-    p.phase = 2;
-    p.salt = static_cast<int>(k);
-    p.dissolved = d;
-    p.salt_solid = precip;
-    return p;
-  }
-  if (free_possible) {  // free form and one salt together
-    const double d = s0_ / an;
-    for (std::size_t k = 0; k < salts_.size(); ++k) {
-      const SaltPhase& s = salts_[k];
-      const double x_left = s.ksp_eff / (alpha[s.species] * d);
-      const double precip = ions_[s.ion].conc - x_left;
-      const double free_solid = dose - precip - d;
-      if (precip < 0 || free_solid < 0) continue;
-      if (!salts_ok(d, static_cast<int>(k), s.ion, x_left)) continue;
-      p.phase = 3;
-      p.salt = static_cast<int>(k);
-      p.dissolved = d;
-      p.salt_solid = precip;
-      p.free_solid = free_solid;
+  double x[kMaxComp];
+  x[0] = dose;
+  for (std::size_t c = 1; c < comp_ion_.size(); ++c) x[c] = ions_[comp_ion_[c]].conc;
+  if (undersaturated_except(0, alpha, dose, x, 0.0)) return p;
+  if (last_subset_ && try_subset(last_subset_, alpha, dose, &p)) return p;
+  for (const std::uint32_t subset : subsets_) {
+    if (subset != last_subset_ && try_subset(subset, alpha, dose, &p)) {
+      last_subset_ = subset;
       return p;
     }
   }
   // Rounding at a phase boundary: fall back on the free form alone, clamped.
-  if (free_possible && sat_free > 1.0) {
-    p.phase = 1;
-    p.dissolved = s0_ / an;
+  p = Partition();
+  p.dissolved = dose;
+  const bool free_possible = drug_neutral_ >= 0 && std::isfinite(s0_);
+  if (free_possible && alpha[drug_neutral_] * dose / s0_ > 1.0) {
+    p.solids.free = true;
+    p.dissolved = s0_ / alpha[drug_neutral_];
     p.free_solid = dose - p.dissolved;
   }
   return p;
@@ -304,15 +549,24 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
     ev.drug = partition(alpha, drug_.total);
     const Partition& p = ev.drug;
     const double d = p.dissolved;
-    // Precipitated salt also takes its counterion out of solution.
-    const int zc = p.salt >= 0 ? ions_[salts_[p.salt].ion].charge : 0;
-    charge += d * zb - zc * p.salt_solid;
-    abs_sum += d * za - std::abs(zc) * p.salt_solid;
-    i2 += d * z2 - zc * zc * p.salt_solid;
-    osm += d - p.salt_solid;
-    if (p.phase == 0) {
+    // Precipitated salts also take their counterions out of solution.
+    double q_charge = 0.0, q_abs = 0.0, q_z2 = 0.0, q_n = 0.0;
+    for (std::size_t k = 0; k < salts_.size(); ++k) {
+      if (p.salt_solid[k] == 0.0) continue;
+      const int zc = salts_[k].zx;
+      const double q = salts_[k].n == 1 ? p.salt_solid[k] : salts_[k].n * p.salt_solid[k];
+      q_charge += zc * q;
+      q_abs += std::abs(zc) * q;
+      q_z2 += zc * zc * q;
+      q_n += q;
+    }
+    charge += d * zb - q_charge;
+    abs_sum += d * za - q_abs;
+    i2 += d * z2 - q_z2;
+    osm += d - q_n;
+    if (p.solids.empty()) {
       dsum += d * (z2 - zb * zb);
-    } else if (p.phase == 1) {
+    } else if (p.solids.free && p.solids.salts == 0) {
       dsum += d * z2;  // c_j = S0 alpha_j/alpha_n grows as h^z_j: d(sum z c)/d ln h = sum z^2 c
     } else {
       // Salt present: differentiate the drug's share numerically (rare branch).
@@ -321,8 +575,9 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
         double a2[kMaxPka + 1], zb2, z22;
         moments(drug_, std::pow(10.0, -x), a2, &zb2, &z22);
         const Partition q = partition(a2, drug_.total);
-        const int zq = q.salt >= 0 ? ions_[salts_[q.salt].ion].charge : 0;
-        return q.dissolved * zb2 - zq * q.salt_solid;
+        double removed = 0.0;
+        for (std::size_t k = 0; k < salts_.size(); ++k) removed += salts_[k].zx * salts_[k].n * q.salt_solid[k];
+        return q.dissolved * zb2 - removed;
       };
       const double deriv = (drug_charge(pH + step) - drug_charge(pH - step)) / (2 * step);
       dsum += -deriv / kLn10;
@@ -469,8 +724,7 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
   out.ionic_strength_mol_per_L =
       diverged ? std::numeric_limits<double>::infinity() : ionic_strength_;
   out.drug_dissolved_mol_per_L = ev.drug.dissolved;
-  out.phase = ev.drug.phase;
-  out.salt_index = ev.drug.salt;
+  out.solids = ev.drug.solids;
   out.charge_residual_rel = ev.abs_sum > 0 ? std::fabs(ev.charge) / ev.abs_sum : 0.0;
   out.converged = converged && std::isfinite(x) && std::isfinite(ionic_strength_) &&
                   out.charge_residual_rel <= kMaxChargeResidual;
@@ -509,12 +763,6 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
       r.message = "the pH would lie outside " + std::to_string(static_cast<int>(kPhLow)) + " to " +
                   std::to_string(static_cast<int>(kPhHigh)) +
                   " (the mixture is too concentrated for the model)";
-    } else if (mixture.drug && mixture.drug->allow_solids && mixture.drug->compound.salts.size() > 1 &&
-        !(s.charge_residual_rel <= kMaxChargeResidual)) {
-      r.termination = Termination::kNumericalFailure;
-      r.message = "no equilibrium with the solids the model covers (the free form and at most one "
-                  "salt): more than one salt of '" + mixture.drug->compound.id +
-                  "' would precipitate in this mixture";
     } else if (mixture.activity == ActivityModel::kDavies && s.ionic_strength_mol_per_L > 0.5) {
       r.termination = Termination::kNumericalFailure;
       r.message = "the activity corrections diverge: at ionic strength " +
@@ -545,26 +793,10 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     }
   }
   const EquilibriumModel::Partition& p = ev.drug;
-  int precip_ion = -1;
-  if (mixture.drug && p.salt >= 0) {
-    // Map the model's salt index back to the compound's salt (same order, skipping absent ions).
-    int k = -1;
-    for (const Salt& salt : mixture.drug->compound.salts) {
-      bool present = false;
-      for (const IonAmount& i : mixture.ions) present = present || (i.id == salt.counterion);
-      if (present && salt.ksp) ++k;
-      if (k == p.salt) {
-        for (std::size_t t = 0; t < mixture.ions.size(); ++t) {
-          if (mixture.ions[t].id == salt.counterion) precip_ion = static_cast<int>(t);
-        }
-        break;
-      }
-    }
-  }
   for (std::size_t t = 0; t < mixture.ions.size(); ++t) {
     const IonAmount& i = mixture.ions[t];
     // Clamped: a counterion precipitated to exhaustion may round to just below zero.
-    const double c = std::max(0.0, i.conc_mol_per_L - (static_cast<int>(t) == precip_ion ? p.salt_solid : 0.0));
+    const double c = std::max(0.0, i.conc_mol_per_L - model.ion_removed(p, static_cast<int>(t)));
     r.species.push_back({i.id, "", i.charge, c, model.gamma(i.charge)});
   }
   const double h = std::pow(10.0, -s.pH);
@@ -579,7 +811,11 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     ds.dissolved_mol_per_L = p.dissolved;
     ds.dissolved_mg_per_mL = p.dissolved * d.compound.molar_mass_g_per_mol;
     ds.free_solid_mol_per_L = p.free_solid;
-    ds.salt_solid_mol_per_L = p.salt_solid;
+    ds.salt_solid_mol_per_L = p.salt_drug;
+    ds.salt_solids_mol_per_L.assign(d.compound.salts.size(), 0.0);
+    for (int k = 0; k < model.num_salts(); ++k) {
+      ds.salt_solids_mol_per_L[model.salt_compound_index(k)] = p.salt_solid[k];
+    }
     model.fractions(-1, s.pH, alpha);
     const int n = static_cast<int>(sys.pkas.size());
     ds.fractions.assign(alpha, alpha + n + 1);
@@ -590,19 +826,9 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
       r.species.push_back({d.compound.id + " " + sys.species_label(j), d.compound.id, z,
                            p.dissolved * alpha[j], model.gamma(z)});
     }
-    std::string salt_id;
-    if (precip_ion >= 0) {
-      for (const Salt& salt : d.compound.salts) {
-        if (salt.counterion == mixture.ions[precip_ion].id) salt_id = salt.id;
-      }
-    }
-    switch (p.phase) {
-      case 0: ds.solid = "none"; break;
-      case 1: ds.solid = "free"; break;
-      case 2: ds.solid = salt_id; break;
-      default: ds.solid = "free+" + salt_id; break;
-    }
-    const double mass = p.dissolved + p.free_solid + p.salt_solid;
+    ds.solids = p.solids;
+    ds.solid = to_string(p.solids, d.compound);
+    const double mass = p.dissolved + p.free_solid + p.salt_drug;
     if (d.dose_mol_per_L > 0) {
       mass_res = std::max(mass_res, std::fabs(mass - d.dose_mol_per_L) / d.dose_mol_per_L);
     }
@@ -610,11 +836,12 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     Mixture all = mixture;
     all.drug->allow_solids = false;
     EquilibriumModel m2(all);
-    StateSummary s2 = p.phase == 0 ? s : m2.solve(options, s.pH);
+    const bool any_solid = !p.solids.empty();
+    StateSummary s2 = !any_solid ? s : m2.solve(options, s.pH);
     // When the fully dissolved state itself cannot be solved (e.g. its activity corrections
     // diverge), estimate the ratio at the equilibrium state instead, and say so.
-    const bool dissolved_state = p.phase != 0 && s2.converged;
-    if (p.phase != 0 && !s2.converged) {
+    const bool dissolved_state = any_solid && s2.converged;
+    if (any_solid && !s2.converged) {
       s2 = s;
       r.warnings.push_back("the saturation ratio is estimated at the equilibrium pH: the state "
                            "with the whole dose dissolved could not be solved");
@@ -625,14 +852,19 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     double sat = 0.0;
     const double s0 = d.compound.s0_at(mixture.temperature_C);
     if (d.compound.has_intrinsic_solubility && jn >= 0) sat = alpha[jn] * d.dose_mol_per_L / s0;
-    const double g1sq = mm.gamma(1) * mm.gamma(-1);
     for (const Salt& salt : d.compound.salts) {
       if (!salt.ksp) continue;
       for (const IonAmount& i : mixture.ions) {
-        if (i.id != salt.counterion || (i.charge != 1 && i.charge != -1)) continue;
-        const int j = sys.z0() + i.charge;
+        if (i.id != salt.counterion || i.charge == 0) continue;
+        const int zd = salt.drug_charge(i.charge);
+        const int j = sys.z0() - zd;
         if (j < 0 || j > n) continue;
-        const double ip = g1sq * alpha[j] * d.dose_mol_per_L * i.conc_mol_per_L;
+        const int sm = salt.drug_count, sn = salt.counterion_count;
+        const double ip =
+            (sm == 1 && sn == 1)
+                ? (mm.gamma(zd) * mm.gamma(i.charge)) * alpha[j] * d.dose_mol_per_L * i.conc_mol_per_L
+                : ipow(mm.gamma(zd) * alpha[j] * d.dose_mol_per_L, sm) *
+                      ipow(mm.gamma(i.charge) * i.conc_mol_per_L, sn);
         sat = std::max(sat, ip / salt_ksp_at(salt, mixture.temperature_C));
       }
     }
@@ -732,7 +964,13 @@ double form_molar_mass(const Compound& compound, const std::string& form, const 
   const Ion& ion = library.ion(s->counterion);
   const double h = molar_mass_g_per_mol("H");
   // BH+ X-: free base + H + X; M+ A-: free acid - H + M.
-  return compound.molar_mass_g_per_mol + ion.molar_mass_g_per_mol + (ion.charge < 0 ? h : -h);
+  if (s->drug_count == 1 && s->counterion_count == 1 && (ion.charge == 1 || ion.charge == -1)) {
+    return compound.molar_mass_g_per_mol + ion.molar_mass_g_per_mol + (ion.charge < 0 ? h : -h);
+  }
+  // (B H_z)_m X_n: m (free form + z H) + n X, z the drug's charge in the salt.
+  const int zd = s->drug_charge(ion.charge);
+  return s->drug_count * (compound.molar_mass_g_per_mol + zd * h) +
+         s->counterion_count * ion.molar_mass_g_per_mol;
 }
 
 void resolve_salt_ksp(Compound& compound, const Library& library) {
@@ -741,23 +979,26 @@ void resolve_salt_ksp(Compound& compound, const Library& library) {
     const Ion& ion = library.ion(salt.counterion);
     Mixture m;
     m.temperature_C = salt.ref_temperature_C;
-    const double s = *salt.solubility_in_water_mol_per_L;
+    const double s = *salt.solubility_in_water_mol_per_L;  // formula units
+    const int sm = salt.drug_count, sn = salt.counterion_count;
     DrugAmount d;
     d.compound = compound;
     d.compound.salts.clear();
-    d.dose_mol_per_L = s;
+    d.dose_mol_per_L = sm == 1 ? s : sm * s;
     d.form = salt.id;
     d.allow_solids = false;
     m.drug = d;
-    m.add_ion(ion.id, ion.charge, s);
+    m.add_ion(ion.id, ion.charge, sn == 1 ? s : sn * s);
     const Equilibrium e = solve(m);
     if (!e.usable()) {
       throw InputError(salt.where, "salt '" + salt.id + "': could not solve its solution in water");
     }
-    const int j = compound.system.z0() + ion.charge;
+    const int zd = salt.drug_charge(ion.charge);
+    const int j = compound.system.z0() - zd;
     if (j < 0 || j > static_cast<int>(compound.system.pkas.size())) {
       throw InputError(salt.where, "salt '" + salt.id + "': the compound has no species of charge " +
-                                       std::to_string(-ion.charge) + " to pair 1:1 with " + ion.id);
+                                       std::to_string(zd) + " to pair " + salt.stoichiometry() +
+                                       " with " + ion.id);
     }
     const double g = davies_gamma(1, e.ionic_strength_mol_per_L, m.temperature_C);
     const double ion_conc = s * e.drug->fractions[j];
@@ -770,7 +1011,13 @@ void resolve_salt_ksp(Compound& compound, const Library& library) {
                     salt.id.c_str(), e.pH);
       throw InputError(salt.where, buf);
     }
-    salt.ksp = g * g * ion_conc * s;
+    if (sm == 1 && sn == 1) {
+      salt.ksp = g * g * ion_conc * s;
+    } else {
+      const double gd = davies_gamma(zd, e.ionic_strength_mol_per_L, m.temperature_C);
+      const double gx = davies_gamma(ion.charge, e.ionic_strength_mol_per_L, m.temperature_C);
+      salt.ksp = ipow(gd * sm * s * e.drug->fractions[j], sm) * ipow(gx * sn * s, sn);
+    }
   }
 }
 

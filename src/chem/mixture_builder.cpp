@@ -31,7 +31,10 @@ void add_medium(Mixture& mixture, const Library& library, const std::string& med
 
 double dose_conc_mol_per_L(const Library& library, const Compound& compound, const std::string& form,
                            const Amount& amount, double temperature_C) {
-  return amount.to_mol_per_L(form_molar_mass(compound, form, library), temperature_C);
+  const double units = amount.to_mol_per_L(form_molar_mass(compound, form, library), temperature_C);
+  const Salt* s = form.empty() || form == "free" ? nullptr : compound.salt(form);
+  // An amount of an m:n salt is of its formula units, each holding m drug ions.
+  return s && s->drug_count != 1 ? s->drug_count * units : units;
 }
 
 void add_drug(Mixture& mixture, const Library& library, const Compound& compound,
@@ -49,7 +52,10 @@ void add_drug(Mixture& mixture, const Library& library, const Compound& compound
                        (known.empty() ? "" : ", " + known) + ")");
     }
     const Ion& ion = library.ion(s->counterion);
-    mixture.add_ion(ion.id, ion.charge, dose_mol_per_L);
+    const double counterion = (s->drug_count == 1 && s->counterion_count == 1)
+                                  ? dose_mol_per_L
+                                  : dose_mol_per_L * s->counterion_count / s->drug_count;
+    mixture.add_ion(ion.id, ion.charge, counterion);
   }
   // Every salt's counterion is tracked (at zero when absent) so that the ions list is stable.
   mixture.drug = d;

@@ -85,6 +85,14 @@ void Library::merge(const Library& other) {
   files.insert(files.end(), other.files.begin(), other.files.end());
 }
 
+std::string Salt::stoichiometry() const {
+  return std::to_string(drug_count) + ":" + std::to_string(counterion_count);
+}
+
+int Salt::drug_charge(int counterion_charge) const {
+  return -counterion_charge * counterion_count / drug_count;
+}
+
 const Salt* Compound::salt(const std::string& id) const {
   for (const Salt& s : salts) {
     if (s.id == id) return &s;

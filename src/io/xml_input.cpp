@@ -451,8 +451,8 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
       c.s0_log_sd = r.in_range(n, "log-sd", r.number_or(n, "log-sd", 0.0), 0.0, 5.0);
       c.has_intrinsic_solubility = true;
     } else if (tag == "salt") {
-      r.check_attributes(n, {"id", "counterion", "ksp", "solubility-in-water", "molar-mass",
-                             "temperature", "dH", "source"});
+      r.check_attributes(n, {"id", "counterion", "stoichiometry", "ksp", "solubility-in-water",
+                             "molar-mass", "temperature", "dH", "source"});
       Salt s;
       s.where = r.at(n);
       s.id = r.required(n, "id");
@@ -465,15 +465,42 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
       if (it == library.ions.end()) {
         r.fail(n, "counterion '" + s.counterion + "' of salt '" + s.id + "' is not an ion of the library");
       }
-      if (it->second.charge != 1 && it->second.charge != -1) {
-        r.fail(n, "counterion '" + s.counterion + "' has charge " + std::to_string(it->second.charge) +
-                      "; only 1:1 salts with a monovalent counterion are modelled");
+      const int zc = it->second.charge;
+      if (n.attribute("stoichiometry")) {
+        // "m:n", drug : counterion, each a whole number 1..8.
+        const std::string text = n.attribute("stoichiometry").value();
+        const std::size_t colon = text.find(':');
+        auto whole = [](const std::string& t, int* v) {
+          if (t.empty() || t.size() > 1 || t[0] < '1' || t[0] > '8') return false;
+          *v = t[0] - '0';
+          return true;
+        };
+        if (colon == std::string::npos || !whole(text.substr(0, colon), &s.drug_count) ||
+            !whole(text.substr(colon + 1), &s.counterion_count)) {
+          r.fail(n, "attribute 'stoichiometry' of <salt> is '" + text +
+                        "', expected drug:counterion as two whole numbers 1 to 8, e.g. 1:2");
+        }
+      } else if (zc != 1 && zc != -1) {
+        r.fail(n, "counterion '" + s.counterion + "' has charge " + std::to_string(zc) +
+                      "; only 1:1 salts with a monovalent counterion are assumed without a "
+                      "'stoichiometry' attribute (drug:counterion, e.g. 2:1)");
+      }
+      if (zc == 0 || (zc * s.counterion_count) % s.drug_count != 0) {
+        r.fail(n, "salt '" + s.id + "': the charges cannot balance: " + s.stoichiometry() +
+                      " with " + s.counterion + " (charge " + std::to_string(zc) +
+                      ") needs a drug charge of " + std::to_string(-zc * s.counterion_count) + "/" +
+                      std::to_string(s.drug_count) + " (drug charge x m + counterion charge x n = 0)");
       }
       for (const Salt& o : c.salts) {
-        if (o.counterion == s.counterion) {
+        if (o.counterion == s.counterion && o.drug_count * s.counterion_count == o.counterion_count * s.drug_count) {
           r.fail(n, "salts '" + o.id + "' and '" + s.id + "' share the counterion " + s.counterion +
-                        "; give one salt per counterion");
+                        " and the stoichiometry " + s.stoichiometry() +
+                        "; give one salt per counterion and stoichiometry");
         }
+      }
+      if (c.salts.size() >= static_cast<std::size_t>(kMaxSalts)) {
+        r.fail(n, "more than " + std::to_string(kMaxSalts) + " salts; at most " +
+                      std::to_string(kMaxSalts) + " are supported");
       }
       salt_nodes.push_back(n);
       const bool has_ksp = static_cast<bool>(n.attribute("ksp"));
@@ -492,9 +519,12 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         s.solubility_in_water_text = r.required(n, "solubility-in-water");
         const Amount a = r.amount(n, "solubility-in-water");
         double mm = s.molar_mass_g_per_mol;
-        if (!(mm > 0)) {
+        if (!(mm > 0) && s.drug_count == 1 && s.counterion_count == 1 && (zc == 1 || zc == -1)) {
           mm = c.molar_mass_g_per_mol + it->second.molar_mass_g_per_mol +
                (it->second.charge < 0 ? 1.008 : -1.008);
+        } else if (!(mm > 0)) {
+          mm = s.drug_count * (c.molar_mass_g_per_mol + s.drug_charge(zc) * 1.008) +
+               s.counterion_count * it->second.molar_mass_g_per_mol;
         }
         const double sol = a.to_mol_per_L(mm, s.ref_temperature_C);
         if (!(sol > 0)) r.fail(n, "solubility-in-water must be > 0");
@@ -535,11 +565,12 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
                         "), so an intrinsic solubility does not apply");
   }
   for (std::size_t k = 0; k < c.salts.size(); ++k) {
-    const int zc = library.ion(c.salts[k].counterion).charge;
-    const int j = c.system.z0() + zc;
+    const int zd = c.salts[k].drug_charge(library.ion(c.salts[k].counterion).charge);
+    const int j = c.system.z0() - zd;
     if (j < 0 || j > static_cast<int>(c.system.pkas.size())) {
       r.fail(salt_nodes[k], "salt '" + c.salts[k].id + "': the compound has no species of charge " +
-                                std::to_string(-zc) + " to pair 1:1 with " + c.salts[k].counterion);
+                                std::to_string(zd) + " to pair " + c.salts[k].stoichiometry() +
+                                " with " + c.salts[k].counterion);
     }
   }
   resolve_salt_ksp(c, library);

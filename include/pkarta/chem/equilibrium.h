@@ -1,12 +1,14 @@
 // Closed-system acid-base equilibrium with activity corrections and drug solid phases.
 //
 // Given totals (acid-base systems, strong ions, a drug dose in a stated form), finds the pH,
-// the ionic strength and which drug solids remain (none, the free form, a 1:1 salt, or both).
+// the ionic strength and which drug solids remain: any set of the free form and the salts
+// whose counterion is present, as many as the phase rule allows (an active-set solve).
 // Model: docs/model.md. Concentrations are mol/L; pH = -log10 a(H+).
 #ifndef PKARTA_EQUILIBRIUM_H_
 #define PKARTA_EQUILIBRIUM_H_
 
 #include <array>
+#include <cstdint>
 #include <optional>
 #include <string>
 #include <vector>
@@ -18,7 +20,27 @@ namespace pkarta {
 /// Maximum number of pKa values of one system.
 inline constexpr int kMaxPka = 8;
 
+/// Maximum number of salts of one compound.
+inline constexpr int kMaxSalts = 8;
+/// Components of the solid partition: the drug and up to one counterion per salt.
+inline constexpr int kMaxSolidComponents = 1 + kMaxSalts;
+
 enum class ActivityModel { kDavies, kIdeal };
+
+/// The drug solids present in a state: the free form and any of the compound's salts.
+struct SolidSet {
+  bool free = false;
+  std::uint32_t salts = 0;             ///< bit k: the compound's salt k
+  bool empty() const { return !free && salts == 0; }
+  bool has_salt(int k) const { return (salts >> k) & 1u; }
+  int count() const;
+  bool operator==(const SolidSet& o) const { return free == o.free && salts == o.salts; }
+  bool operator!=(const SolidSet& o) const { return !(*this == o); }
+};
+
+/// The solids as text: "none", "free", a salt id, "free+SALT", and for several salts their ids
+/// in the compound's order joined by '+' (after "free" when it is present).
+std::string to_string(const SolidSet& solids, const Compound& compound);
 
 /// A system at a total concentration.
 struct SystemAmount {
@@ -80,11 +102,14 @@ struct DrugState {
   double dose_mol_per_L = 0.0;
   double dissolved_mol_per_L = 0.0;
   double dissolved_mg_per_mL = 0.0;       ///< as the free form
-  std::string solid = "none";             ///< "none" | "free" | salt id | "free+SALT"
+  SolidSet solids;                        ///< the solids present
+  std::string solid = "none";             ///< to_string(solids, compound)
   double free_solid_mol_per_L = 0.0;      ///< undissolved free form
-  double salt_solid_mol_per_L = 0.0;      ///< undissolved salt
+  double salt_solid_mol_per_L = 0.0;      ///< drug held in undissolved salts (all of them)
+  /// Undissolved salt k of the compound, mol/L of m:n formula units (0 when absent).
+  std::vector<double> salt_solids_mol_per_L;
   double neutral_mol_per_L = 0.0;         ///< dissolved net-neutral species
-  /// Largest of c_neutral/S0 and a(ion) a(X)/Ksp with the whole dose dissolved.
+  /// Largest of c_neutral/S0 and a(ion)^m a(X)^n/Ksp with the whole dose dissolved.
   double saturation_ratio = 0.0;
   std::vector<double> fractions;          ///< dissolved species fractions, j = 0..n
 };
@@ -112,8 +137,7 @@ struct StateSummary {
   double pH = 0.0;
   double ionic_strength_mol_per_L = 0.0;
   double drug_dissolved_mol_per_L = 0.0;
-  int phase = 0;                          ///< 0 none, 1 free, 2 salt, 3 free+salt
-  int salt_index = -1;                    ///< index into the compound's salts
+  SolidSet solids;                        ///< the drug solids present
   double charge_residual_rel = 0.0;
   int evaluations = 0;
 };
@@ -126,11 +150,12 @@ class EquilibriumModel {
 
   /// Drug partition between solution and solids at a fixed pH (current activity coefficients).
   struct Partition {
-    int phase = 0;            ///< 0 none, 1 free, 2 salt, 3 free+salt
-    int salt = -1;
+    SolidSet solids;          ///< present solids (salts by the compound's index)
     double dissolved = 0.0;   ///< mol/L of drug in solution
-    double salt_solid = 0.0;  ///< mol/L precipitated as the salt (also removed counterion)
+    double salt_drug = 0.0;   ///< mol/L of drug held in salts
     double free_solid = 0.0;
+    /// Formula units of each model salt precipitated, mol/L (they also remove counterion).
+    std::array<double, kMaxSalts> salt_solid{};
   };
   struct Evaluation {
     double charge = 0.0;       ///< sum z c (mol/L); decreasing in pH
@@ -159,6 +184,11 @@ class EquilibriumModel {
   void fractions(int system, double pH, double* alpha) const;
 
   int num_systems() const { return static_cast<int>(systems_.size()); }
+  /// Model salts (those whose counterion is present): the compound's index of each.
+  int num_salts() const { return static_cast<int>(salts_.size()); }
+  int salt_compound_index(int k) const { return salts_[k].index; }
+  /// Counterion removed from solution by the partition, mol/L, for ion t of the mixture.
+  double ion_removed(const Partition& p, int ion) const;
   bool has_drug() const { return has_drug_; }
 
  private:
@@ -170,11 +200,18 @@ class EquilibriumModel {
     std::array<double, kMaxPka> ka_eff{};  // activity-corrected
   };
   struct SaltPhase {
+    int index = -1;          // the compound's salt index
     int ion = -1;            // index into ions_
-    int species = -1;        // drug species j with charge -z(counterion)
+    int comp = -1;           // component of the partition (1.. : distinct counterions)
+    int species = -1;        // drug species j with charge z_d (z_d m + z_X n = 0)
+    int m = 1, n = 1;        // drug : counterion
+    int zd = 0, zx = 0;
     double ksp = 0.0;        // thermodynamic, at T
-    double ksp_eff = 0.0;    // divided by gamma(drug ion) gamma(X)
+    double ksp_eff = 0.0;    // divided by gamma(drug ion)^m gamma(X)^n
   };
+  bool try_subset(std::uint32_t subset, const double* alpha, double dose, Partition* p) const;
+  bool undersaturated_except(std::uint32_t subset, const double* alpha, double d, const double* x,
+                             double slack) const;
   struct IonC {
     int charge = 0;
     double conc = 0.0;
@@ -197,6 +234,11 @@ class EquilibriumModel {
   int drug_neutral_ = -1;
   double s0_ = 0.0;
   std::vector<SaltPhase> salts_;
+  std::vector<int> comp_ion_;                // ion index of component c >= 1 (comp_ion_[0] = -1)
+  std::vector<std::uint32_t> subsets_;       // candidate active sets (bit 0 free, bit k+1 salt k)
+  mutable std::uint32_t last_subset_ = 0;    // the active set found last (tried first)
+  mutable std::uint32_t warm_subset_ = 0;    // active set of warm_mu_ (general solve)
+  mutable std::array<double, kMaxSolidComponents> warm_mu_{};
 };
 
 /// Solves a mixture and returns the full state (species list, drug state, warnings).

@@ -22,12 +22,14 @@ void add_reagent(Mixture& mixture, const Library& library, const std::string& re
 void add_medium(Mixture& mixture, const Library& library, const std::string& medium_id,
                 double fraction = 1.0);
 
-/// Dose concentration (mol/L of drug) from an amount of the form weighed (mass units refer to
-/// the form: the free form or the salt, whose molar mass includes the counterion).
+/// Dose concentration (mol/L of drug) from an amount of the form weighed (the amount refers to
+/// the form: the free form or the salt's m:n formula units, whose molar mass includes the
+/// counterions; each formula unit holds m drug ions).
 double dose_conc_mol_per_L(const Library& library, const Compound& compound, const std::string& form,
                            const Amount& amount, double temperature_C);
 
-/// Adds the drug at a dose in a form: the drug total, plus the salt's counterion.
+/// Adds the drug at a dose in a form: the drug total, plus the salt's counterion (n/m of the
+/// dose for an m:n salt).
 void add_drug(Mixture& mixture, const Library& library, const Compound& compound,
               double dose_mol_per_L, const std::string& form);
 

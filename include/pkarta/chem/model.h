@@ -114,17 +114,26 @@ struct Library {
   void merge(const Library& other);
 };
 
-/// A salt form of a drug: 1:1 with a strong counterion of the library.
+/// A salt form of a drug: m drug ions to n counterions (a strong ion of the library), written
+/// "m:n" (drug : counterion; 1:1 by default). The drug species in the salt has the charge
+/// that balances: z(drug) m + z(counterion) n = 0.
 struct Salt {
   std::string id;
-  std::string counterion;           ///< library ion id, charge +1 or -1
-  std::optional<double> ksp;        ///< mol^2/L^2 (activity product), at ref_temperature_C
+  std::string counterion;           ///< library ion id
+  int drug_count = 1;               ///< m
+  int counterion_count = 1;         ///< n
+  /// Activity product a(drug ion)^m a(X)^n in (mol/L)^(m+n), at ref_temperature_C.
+  std::optional<double> ksp;
   std::optional<double> solubility_in_water_mol_per_L;  ///< alternative to ksp
   std::string solubility_in_water_text;
-  double molar_mass_g_per_mol = 0.0;  ///< 0 when not given (then free + counterion)
+  double molar_mass_g_per_mol = 0.0;  ///< of m:n formula units; 0 when not given (then derived)
   double ref_temperature_C = 25.0;
   double dH_kJ_per_mol = 0.0;       ///< enthalpy of dissolution; 0 = Ksp constant
   SourceLocation where;
+  /// "m:n", e.g. "1:2" for a dihydrochloride.
+  std::string stoichiometry() const;
+  /// Charge of the drug species in the salt, z(drug) = -z(counterion) n / m (it must divide).
+  int drug_charge(int counterion_charge) const;
 };
 
 /// A measured solubility point (shake-flask).
