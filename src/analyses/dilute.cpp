@@ -59,7 +59,67 @@ bool has_system(const Mixture& m, const std::string& id) {
   return false;
 }
 
+double dissolved_co2(const Equilibrium& e) {
+  double c = 0.0;
+  for (const Species& sp : e.species) {
+    if (sp.system == "carbonate" && sp.charge == 0) c += sp.conc_mol_per_L;
+  }
+  return c;
+}
+
+bool contains(const std::string& text, const char* word) { return text.find(word) != std::string::npos; }
+
 }  // namespace
+
+bool is_physiological_medium(const Library& library, const std::string& medium_id) {
+  const Medium& m = library.medium(medium_id);
+  Mixture med;
+  add_medium(med, library, m.id);
+  if (!has_system(med, "carbonate")) return false;
+  return contains(m.id, "plasma") || contains(m.id, "blood") || contains(m.name, "plasma") || contains(m.name, "blood");
+}
+
+// Open system: the lungs hold pCO2, so CO2 made from bicarbonate by an added acid leaves and
+// dissolved CO2 stays at s pCO2 while strong ions are unchanged. [CO2] rises monotonically with
+// the carbonate total C_T at fixed strong ions, and [CO2] <= C_T, so C_T = [CO2]target brackets
+// from below; bisection on log C_T around the unchanged closed-system solver.
+Mixture open_carbonate_mixture(const Mixture& mixture, double co2_mol_per_L, const SolverOptions& solver,
+                               Equilibrium* state) {
+  Mixture m = mixture;
+  SystemAmount* carb = nullptr;
+  for (SystemAmount& s : m.systems) {
+    if (s.system.id == "carbonate") carb = &s;
+  }
+  if (!carb) throw InputError("the open bicarbonate model needs the carbonate system in the mixture");
+  auto co2_at = [&](double total, Equilibrium* out) {
+    carb->total_mol_per_L = total;
+    Equilibrium e = solve(m, solver);
+    if (!e.usable()) {
+      throw InputError("open bicarbonate model: the equilibrium at total carbonate " + sig(total, 4) +
+                       " mol/L did not converge: " + e.message);
+    }
+    const double c = dissolved_co2(e);
+    if (out) *out = std::move(e);
+    return c;
+  };
+  double lo = co2_mol_per_L;
+  double hi = std::max(carb->total_mol_per_L, co2_mol_per_L) * 2.0;
+  int grow = 0;
+  while (co2_at(hi, nullptr) < co2_mol_per_L) {
+    lo = hi;
+    hi *= 4.0;
+    if (++grow > 40 || hi > 10.0) throw InputError("open bicarbonate model: no total carbonate gives the set pCO2");
+  }
+  for (int it = 0; it < 200 && hi / lo - 1.0 > 1e-13; ++it) {
+    const double mid = std::sqrt(lo * hi);
+    if (co2_at(mid, nullptr) < co2_mol_per_L) lo = mid;
+    else hi = mid;
+  }
+  Equilibrium e;
+  co2_at(std::sqrt(lo * hi), &e);
+  if (state) *state = std::move(e);
+  return m;
+}
 
 bool DilutionOptions::is_valid(std::string* error) const {
   if (medium_id.empty()) {
@@ -68,6 +128,10 @@ bool DilutionOptions::is_valid(std::string* error) const {
   }
   if (ratios.empty()) {
     if (error) *error = "DilutionOptions::ratios is empty";
+    return false;
+  }
+  if (!(pco2_mmHg > 0 && pco2_mmHg <= 200) || !(co2_solubility_mM_per_mmHg > 0 && co2_solubility_mM_per_mmHg < 1)) {
+    if (error) *error = "DilutionOptions: pCO2 must be in (0, 200] mmHg and the CO2 solubility in (0, 1) mM/mmHg";
     return false;
   }
   for (double r : ratios) {
@@ -104,7 +168,20 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
   r.medium_id = medium.id;
   r.medium_name = medium.name;
   Mixture form = formulation;
+  const bool physiological = is_physiological_medium(library, medium.id);
   if (options.temperature_C) form.temperature_C = *options.temperature_C;
+  else if (physiological) form.temperature_C = 37.0;
+  {
+    Mixture med;
+    add_medium(med, library, medium.id);
+    if (options.blood_model == BloodModel::kOpen && !has_system(med, "carbonate")) {
+      throw InputError("the open bicarbonate model needs a medium holding bicarbonate; " + medium.id + " has none");
+    }
+  }
+  const bool open = options.blood_model == BloodModel::kOpen ||
+                    (options.blood_model == BloodModel::kAuto && physiological);
+  if (physiological || options.blood_model != BloodModel::kAuto) r.blood_model = open ? "open" : "closed";
+  const double co2 = options.pco2_mmHg * options.co2_solubility_mM_per_mmHg * 1e-3;
   r.temperature_C = form.temperature_C;
   if (form.drug) r.drug_name = form.drug->compound.name;
   const SolverOptions solver;
@@ -112,10 +189,13 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
   for (double ratio : options.ratios) {
     DilutionPoint p;
     p.ratio = ratio;
-    const Mixture mix = diluted_mixture(form, library, options.medium_id, ratio);
+    Mixture mix = diluted_mixture(form, library, options.medium_id, ratio);
+    const bool open_here = open && has_system(mix, "carbonate");
     Mixture all = mix;
     if (all.drug) all.drug->allow_solids = false;
-    const Equilibrium e = solve(all, solver);
+    Equilibrium e;
+    if (open_here) all = open_carbonate_mixture(all, co2, solver, &e);
+    else e = solve(all, solver);
     if (!e.usable()) {
       r.message = "the equilibrium at ratio " + sig(ratio, 4) + " did not converge: " + e.message;
       return r;
@@ -142,7 +222,9 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
       p.supersaturation_ratio = std::isfinite(sol.solubility) ? p.drug_mol_per_L / sol.solubility : 0.0;
       p.risk = p.supersaturation_ratio > 1.0;
       // The state after precipitation to equilibrium.
-      const Equilibrium eq = solve(mix, solver);
+      Equilibrium eq;
+      if (open_here) mix = open_carbonate_mixture(mix, co2, solver, &eq);
+      else eq = solve(mix, solver);
       if (!eq.usable()) {
         r.message = "the equilibrium with solids at ratio " + sig(ratio, 4) + " did not converge: " + eq.message;
         return r;
@@ -159,7 +241,8 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
   // The simplifications behind the numbers.
   r.notes.push_back("ratio = total volume / formulation volume: 1 volume of formulation made up to "
                     "'ratio' volumes with " + medium.id + " (ratio 1: the formulation itself); volumes "
-                    "are additive and the mixture is well mixed, closed and at equilibrium");
+                    "are additive and the mixture is well mixed, " +
+                    std::string(open ? "closed but for CO2 (open model below)" : "closed") + " and at equilibrium");
   if (form.drug) {
     r.notes.push_back("pH and drug concentration: the whole dose dissolved (nothing precipitates); "
                       "solubility: of the drug at that pH, ionic strength and counterion "
@@ -171,8 +254,19 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
   }
   Mixture med;
   add_medium(med, library, medium.id);
-  if (has_system(med, "carbonate")) {
-    r.notes.push_back(medium.id + " holds bicarbonate as a closed system: no CO2 exchange with air "
+  if (has_system(med, "carbonate") && open) {
+    r.notes.push_back("blood model: open bicarbonate system: dissolved CO2 held at pCO2 " + sig(options.pco2_mmHg, 3) +
+                      " mmHg x " + sig(options.co2_solubility_mM_per_mmHg, 3) + " mmol/L per mmHg = " +
+                      sig(co2 * 1e3, 4) + " mmol/L, as the lungs hold arterial pCO2 (Siggaard-Andersen, The "
+                      "Acid-Base Status of the Blood, 1974; Guyton and Hall, Textbook of Medical Physiology); "
+                      "the total carbonate follows (CO2 leaves or enters), strong ions are unchanged");
+    r.notes.push_back(medium.id + " has no proteins, lipids or haemoglobin: its non-bicarbonate buffering is "
+                      "its phosphate only (plasma proteins add about 5-8 mmol/L per pH, whole blood about "
+                      "25-30), and drug binding is not modelled; the thermodynamic carbonate pK with Davies "
+                      "activities replaces the clinical pK' 6.1");
+  } else if (has_system(med, "carbonate")) {
+    r.notes.push_back(std::string(physiological ? "blood model: closed; " : "") + medium.id +
+                      " holds bicarbonate as a closed system: no CO2 exchange with air "
                       "or lungs, so its pH is not held at a set pCO2; it has no proteins or lipids, "
                       "so binding of the drug and protein buffering are not modelled");
   }

@@ -560,6 +560,8 @@ Profile compute_profile(const Compound& compound, const Library& library,
     p.derived_ksp.push_back(d);
   }
 
+  // Apparent pKa (and a stated S0 ionic strength) converted when the file was read.
+  for (const std::string& note : compound.convention_notes()) p.notes.push_back(note);
   // Notes on temperature: constants used as measured.
   auto differs = [&](double t0) { return std::fabs(t0 - T) > 1e-9; };
   if (jn >= 0 && !compound.s0_dH_kJ_per_mol && differs(compound.s0_ref_temperature_C)) {

@@ -5,12 +5,49 @@
 #include <algorithm>
 #include <cmath>
 
+#include "pkarta/base/format.h"
 #include "pkarta/chem/water.h"
 
 namespace pkarta {
 
 double Pka::at(double temperature_C) const {
   return pk_at_temperature(value, ref_temperature_C, dH_kJ_per_mol, dCp_J_per_K_mol, temperature_C);
+}
+
+double thermodynamic_pka(PkaScale scale, double apparent, double ionic_strength_mol_per_L, int zA,
+                         double temperature_C) {
+  if (scale == PkaScale::kThermodynamic || !(ionic_strength_mol_per_L > 0)) return apparent;
+  const double D = davies_a(temperature_C) * davies_bracket(ionic_strength_mol_per_L);
+  const int zB = zA - 1;
+  const double dz2 = static_cast<double>(zB * zB - zA * zA);
+  return apparent + D * (scale == PkaScale::kConcentration ? 1.0 + dz2 : dz2);
+}
+
+void AcidBaseSystem::to_thermodynamic() {
+  for (std::size_t i = 0; i < pkas.size(); ++i) {
+    Pka& p = pkas[i];
+    if (!p.is_apparent()) continue;
+    p.value = thermodynamic_pka(p.stated_scale, p.stated_value, p.stated_ionic_strength_mol_per_L,
+                                charge_of(static_cast<int>(i)), p.ref_temperature_C);
+  }
+}
+
+std::vector<std::string> pka_convention_notes(const AcidBaseSystem& system) {
+  std::vector<std::string> out;
+  for (std::size_t i = 0; i < system.pkas.size(); ++i) {
+    const Pka& p = system.pkas[i];
+    if (!p.is_apparent()) continue;
+    const int j = static_cast<int>(i);
+    out.push_back("pKa" + std::to_string(j + 1) + " " + fixed(p.stated_value, 3) + " was stated as an apparent constant (" +
+                  (p.stated_scale == PkaScale::kMixed ? "mixed scale: pH as activity, species as concentrations"
+                                                      : "concentration scale") +
+                  ", I = " + sig(p.stated_ionic_strength_mol_per_L, 3) + " mol/L" +
+                  (p.stated_electrolyte.empty() ? std::string() : " " + p.stated_electrolyte) + ", " +
+                  fixed(p.ref_temperature_C, 1) + " °C); converted to the thermodynamic " + fixed(p.value, 3) +
+                  " with Davies activities for the step " + system.species_label(j) + " -> " +
+                  system.species_label(j + 1) + ", as the solver uses");
+  }
+  return out;
 }
 
 int AcidBaseSystem::z0() const {
@@ -105,6 +142,17 @@ double Compound::s0_at(double temperature_C) const {
   const double T = kelvin(temperature_C);
   const double T0 = kelvin(s0_ref_temperature_C);
   return s0_mol_per_L * std::exp(-*s0_dH_kJ_per_mol * 1000.0 / kGasConstant * (1.0 / T - 1.0 / T0));
+}
+
+std::vector<std::string> Compound::convention_notes() const {
+  std::vector<std::string> out = pka_convention_notes(system);
+  if (has_intrinsic_solubility && s0_stated_ionic_strength_mol_per_L > 0) {
+    out.push_back("S0 was measured at I = " + sig(s0_stated_ionic_strength_mol_per_L, 3) + " mol/L" +
+                  (s0_stated_electrolyte.empty() ? std::string() : " " + s0_stated_electrolyte) +
+                  "; used as given: with Davies the neutral species has activity coefficient 1 at any "
+                  "ionic strength, so no correction applies (salting out is not modelled)");
+  }
+  return out;
 }
 
 }  // namespace pkarta

@@ -5,6 +5,7 @@
 #include "cli_common.h"
 #include "commands.h"
 #include "pkarta/analyses/dilute.h"
+#include "pkarta/chem/mixture_builder.h"
 
 namespace pkarta::cli {
 
@@ -29,7 +30,7 @@ int run_dilute(const Args& args) {
   return guarded([&] {
     CommonOptions common;
     FormulationOptions f;
-    std::string into, ratios = "1,2,5,10,20,50,100", into_temp;
+    std::string into, ratios = "1,2,5,10,20,50,100", into_temp, blood_model, pco2;
     po::options_description desc("dilute options");
     add_formulation_options(desc, f);
     desc.add_options()
@@ -37,13 +38,18 @@ int run_dilute(const Args& args) {
                                    "plasma-7.4, sgf-1.2, sif-6.8, ...)")
         ("ratios", po::value(&ratios)->default_value("1,2,5,10,20,50,100"),
          "dilution ratios, total volume / formulation volume (>= 1; 10 = 1 volume + 9 of medium)")
-        ("into-temp", po::value(&into_temp), "temperature of the diluted mixture, °C (default: --temp)");
+        ("into-temp", po::value(&into_temp), "temperature of the diluted mixture, °C (default: --temp; "
+                                             "37 for plasma or blood)")
+        ("blood-model", po::value(&blood_model), "bicarbonate of plasma or blood: open (held at a set "
+                                                 "pCO2, default for plasma or blood) or closed")
+        ("pco2", po::value(&pco2), "arterial pCO2 of the open model, mmHg (default 40)");
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
                  "pkarta dilute [--compound F --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
-                 "[--medium ID] [--temp C] --into MEDIUM [--ratios 1,2,5,10,20,50,100] [--into-temp C]",
+                 "[--medium ID] [--temp C] --into MEDIUM [--ratios 1,2,5,10,20,50,100] [--into-temp C] "
+                 "[--blood-model open|closed] [--pco2 MMHG]",
                  desc);
       return 0;
     }
@@ -59,6 +65,21 @@ int run_dilute(const Args& args) {
     options.medium_id = into;
     options.ratios = parse_ratios(ratios);
     if (!into_temp.empty()) options.temperature_C = option_temperature("--into-temp", into_temp);
+    if (blood_model == "open") options.blood_model = BloodModel::kOpen;
+    else if (blood_model == "closed") options.blood_model = BloodModel::kClosed;
+    else if (!blood_model.empty()) {
+      throw InputError(SourceLocation{"--blood-model", 0, 0}, "expected open or closed, got \"" + blood_model + "\"");
+    }
+    if (!pco2.empty()) options.pco2_mmHg = option_number("--pco2", pco2, 1.0, 200.0);
+    if (options.blood_model == BloodModel::kOpen && !is_physiological_medium(lib, into)) {
+      Mixture med;
+      add_medium(med, lib, into);
+      bool carbonate = false;
+      for (const SystemAmount& s : med.systems) carbonate = carbonate || s.system.id == "carbonate";
+      if (!carbonate) {
+        throw InputError(SourceLocation{"--blood-model", 0, 0}, "open needs a medium holding bicarbonate; " + into + " has none");
+      }
+    }
     std::vector<std::string> inputs;
     const Mixture m = build_formulation(f, lib, &inputs);
     if (m.systems.empty() && m.ions.empty() && !m.drug) {

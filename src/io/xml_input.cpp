@@ -171,7 +171,8 @@ class Reader {
 };
 
 Pka read_pka(Reader& r, const pugi::xml_node& n) {
-  r.check_attributes(n, {"value", "type", "dH", "dCp", "temperature", "sd", "source"});
+  r.check_attributes(n, {"value", "type", "dH", "dCp", "temperature", "sd", "source", "ionic-strength",
+                         "scale", "electrolyte"});
   Pka p;
   p.where = r.at(n);
   p.value = r.in_range(n, "value", r.number(n, "value"), -5.0, 20.0);
@@ -183,6 +184,25 @@ Pka read_pka(Reader& r, const pugi::xml_node& n) {
   p.dCp_J_per_K_mol = r.in_range(n, "dCp", r.number_or(n, "dCp", 0.0), -2000.0, 2000.0);
   p.ref_temperature_C = r.temperature(n, "temperature", 25.0);
   p.sd = r.in_range(n, "sd", r.number_or(n, "sd", 0.0), 0.0, 5.0);
+  // Apparent constants: converted to thermodynamic by AcidBaseSystem::to_thermodynamic() once
+  // every group's type (hence every species' charge) is known.
+  p.stated_value = p.value;
+  const std::string scale = r.optional(n, "scale", "thermodynamic");
+  if (scale == "concentration") p.stated_scale = PkaScale::kConcentration;
+  else if (scale == "mixed") p.stated_scale = PkaScale::kMixed;
+  else if (scale != "thermodynamic") {
+    r.fail(n, "attribute 'scale' of <pka> is \"" + scale + "\", expected thermodynamic, concentration or mixed");
+  }
+  // Davies is a fair activity model to about I = 0.5 mol/L (Davies 1962).
+  p.stated_ionic_strength_mol_per_L = r.in_range(n, "ionic-strength", r.number_or(n, "ionic-strength", 0.0), 0.0, 0.5);
+  p.stated_electrolyte = r.optional(n, "electrolyte", "");
+  if (p.is_apparent() && !(p.stated_ionic_strength_mol_per_L > 0)) {
+    r.fail(n, "<pka> with scale=\"" + scale + "\" needs ionic-strength (mol/L, > 0) of the measurement");
+  }
+  if (!p.is_apparent() && (p.stated_ionic_strength_mol_per_L > 0 || !p.stated_electrolyte.empty())) {
+    r.fail(n, "<pka> states an ionic strength or electrolyte but no scale: give scale=\"concentration\" "
+              "or scale=\"mixed\" (an apparent constant), or remove them (a thermodynamic constant)");
+  }
   return p;
 }
 
@@ -283,6 +303,7 @@ Library parse_library(const std::string& text, const std::string& name, const Li
         }
       }
       if (s.pkas.empty()) r.fail(n, "<system> '" + shown(s.id) + "' has no <pka>");
+      s.to_thermodynamic();
       check_ascending(r, s.pkas, nodes);
       lib.systems[s.id] = s;
     }
@@ -439,7 +460,8 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
     } else if (tag == "intrinsic-solubility") {
       if (s0_node) r.fail(n, "a second <intrinsic-solubility>; give one");
       s0_node = n;
-      r.check_attributes(n, {"value", "unit", "temperature", "dH", "log-sd", "source"});
+      r.check_attributes(n, {"value", "unit", "temperature", "dH", "log-sd", "source", "ionic-strength",
+                             "electrolyte"});
       const double v = r.number(n, "value");
       if (!(v > 0)) r.fail(n, "intrinsic solubility must be > 0, got " + r.required(n, "value"));
       Amount a = unit_attribute(r, n);
@@ -449,6 +471,9 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
       r.in_range(n, "value", c.s0_mol_per_L, 1e-15, 10.0);
       if (n.attribute("dH")) c.s0_dH_kJ_per_mol = r.in_range(n, "dH", r.number(n, "dH"), -200, 200);
       c.s0_log_sd = r.in_range(n, "log-sd", r.number_or(n, "log-sd", 0.0), 0.0, 5.0);
+      c.s0_stated_ionic_strength_mol_per_L =
+          r.in_range(n, "ionic-strength", r.number_or(n, "ionic-strength", 0.0), 0.0, 0.5);
+      c.s0_stated_electrolyte = r.optional(n, "electrolyte", "");
       c.has_intrinsic_solubility = true;
     } else if (tag == "salt") {
       r.check_attributes(n, {"id", "counterion", "stoichiometry", "ksp", "solubility-in-water",
@@ -555,6 +580,7 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
       r.unknown_element(n);
     }
   }
+  c.system.to_thermodynamic();
   check_ascending(r, c.system.pkas, pka_nodes);
   if (!c.has_intrinsic_solubility && c.system.neutral_index() >= 0) {
     r.fail(root, "<compound> needs an <intrinsic-solubility> (it has a net-neutral form)");

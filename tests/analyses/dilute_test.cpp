@@ -132,9 +132,9 @@ TEST(Dilute, WeakBaseAtLowPhRisksPrecipitationInPlasmaNotInSaline) {
   const DilutionPoint& p = plasma.points.back();
   const double hh = std::pow(10.0, -5.5) * (1.0 + std::pow(10.0, 8.0 - p.pH));
   EXPECT_NEAR(std::log10(p.solubility_mol_per_L), std::log10(hh), 0.1);
-  // The notes state the medium's simplification.
+  // The notes state the medium's model: plasma is treated as an open bicarbonate system.
   bool note = false;
-  for (const std::string& n : plasma.notes) note = note || n.find("closed system") != std::string::npos;
+  for (const std::string& n : plasma.notes) note = note || n.find("blood model: open bicarbonate system") != std::string::npos;
   EXPECT_TRUE(note);
 }
 

@@ -29,11 +29,25 @@
 
 namespace pkarta {
 
+/// How the bicarbonate of a physiological medium (blood, plasma) is treated.
+///  - kOpen: open to a fixed arterial pCO2, as in the body (lungs hold pCO2): dissolved CO2 =
+///    solubility x pCO2, and the total carbonate follows (an outer 1-D solve on it);
+///  - kClosed: the medium's carbonate total is kept (a sealed tube);
+///  - kAuto: open for a physiological medium, closed (nothing to do) otherwise.
+enum class BloodModel { kAuto, kOpen, kClosed };
+
 /// What to dilute into, and how far.
 struct DilutionOptions {
   std::string medium_id;              ///< library medium (water, saline-0.9, plasma-7.4, ...)
   std::vector<double> ratios{1, 2, 5, 10, 20, 50, 100};  ///< total / formulation volume, >= 1
-  std::optional<double> temperature_C;  ///< of the diluted mixture; default: the formulation's
+  std::optional<double> temperature_C;  ///< of the diluted mixture; default: the formulation's,
+                                        ///< 37 °C for a physiological medium
+  BloodModel blood_model = BloodModel::kAuto;
+  /// Arterial pCO2 and CO2 solubility in plasma at 37 °C: 40 mmHg and 0.0307 mmol/L per mmHg
+  /// (Siggaard-Andersen, The Acid-Base Status of the Blood, 4th ed. 1974; Guyton and Hall,
+  /// Textbook of Medical Physiology), so dissolved CO2 = 1.228 mmol/L.
+  double pco2_mmHg = 40.0;
+  double co2_solubility_mM_per_mmHg = 0.0307;
   bool is_valid(std::string* error) const;
 };
 
@@ -67,6 +81,7 @@ struct DilutionResult {
   std::string drug_name;                  ///< empty without a drug
   std::vector<std::string> inputs;        ///< readable contents of the formulation
   std::vector<DilutionPoint> points;
+  std::string blood_model;                ///< "open", "closed" or "" (no physiological medium)
   std::vector<std::string> notes;         ///< the simplifications behind the numbers
   std::vector<std::string> warnings;
   bool usable() const { return converged; }
@@ -77,6 +92,17 @@ struct DilutionResult {
 /// or a ratio below 1.
 Mixture diluted_mixture(const Mixture& formulation, const Library& library, const std::string& medium_id,
                         double ratio);
+
+/// True for a medium holding the carbonate system whose id or name says plasma or blood.
+bool is_physiological_medium(const Library& library, const std::string& medium_id);
+
+/// The mixture with its carbonate total adjusted so that dissolved CO2 (the carbonate species
+/// with no proton removed) equals `co2_mol_per_L`, strong ions unchanged: an outer 1-D solve on
+/// the total carbonate around the closed-system solver (bisection on log C_T; [CO2] rises with
+/// C_T). `state` (may be null) receives the equilibrium of the returned mixture. Throws
+/// InputError when the mixture has no carbonate or no solution is found.
+Mixture open_carbonate_mixture(const Mixture& mixture, double co2_mol_per_L, const SolverOptions& solver,
+                               Equilibrium* state);
 
 /// Analyses every ratio of `options`. Throws InputError for invalid options or medium.
 DilutionResult analyse_dilution(const Mixture& formulation, const Library& library,

@@ -15,6 +15,12 @@ namespace pkarta {
 /// charged when protonated (base, R-NH3+ -> R-NH2).
 enum class GroupType { kAcid, kBase };
 
+/// How a pKa was measured: thermodynamic (activities, I -> 0), or apparent at a stated ionic
+/// strength on the concentration scale (pKc = -log [H+][B]/[A]) or the mixed scale (pKmix =
+/// -log aH+ [B]/[A]: pH measured as an activity with a glass electrode, species as
+/// concentrations).
+enum class PkaScale { kThermodynamic, kConcentration, kMixed };
+
 /// One macroscopic ionization constant, with its temperature dependence.
 struct Pka {
   double value = 0.0;                 ///< thermodynamic pKa (I -> 0) at ref_temperature_C
@@ -24,9 +30,25 @@ struct Pka {
   double ref_temperature_C = 25.0;
   double sd = 0.0;                    ///< standard uncertainty, pKa units (0: not given)
   SourceLocation where;
+  /// As stated in the file: the scale, the ionic strength (mol/L, 0 for thermodynamic), the
+  /// background electrolyte (may be empty) and the value before conversion. `value` always
+  /// holds the thermodynamic pKa (see to_thermodynamic()).
+  PkaScale stated_scale = PkaScale::kThermodynamic;
+  double stated_ionic_strength_mol_per_L = 0.0;
+  std::string stated_electrolyte;
+  double stated_value = 0.0;
+  bool is_apparent() const { return stated_scale != PkaScale::kThermodynamic; }
   /// pKa at temperature T by van 't Hoff (see pk_at_temperature).
   double at(double temperature_C) const;
 };
+
+/// Thermodynamic pKa of step `step` of a system (species step -> step+1, charges zA and zB =
+/// zA - 1) from an apparent one, with Davies activities at the stated ionic strength and the
+/// constant's reference temperature (log10 gamma_z = -A z^2 f(I), D = A f(I)):
+///   concentration scale: pKa = pKc + D (1 + zB^2 - zA^2)
+///   mixed scale:         pKa = pKmix + D (zB^2 - zA^2)
+double thermodynamic_pka(PkaScale scale, double apparent, double ionic_strength_mol_per_L, int zA,
+                         double temperature_C);
 
 /// An acid-base system: n macroscopic pKa values in ascending order. Species j (j protons
 /// removed from the most protonated form) has charge z0 - j + permanent_charge, where z0 is
@@ -43,7 +65,14 @@ struct AcidBaseSystem {
   int neutral_index() const;
   /// Label of species j, e.g. "H2A-" for phosphate j=1.
   std::string species_label(int j) const;
+  /// Replaces every apparent pKa's value by its thermodynamic value (stated_value kept); the
+  /// charges of each step follow from the group types, so call once all pKa are read.
+  void to_thermodynamic();
 };
+
+/// Notes saying which pKa (and S0) of a system were stated as apparent constants and how they
+/// were converted; empty when all are thermodynamic.
+std::vector<std::string> pka_convention_notes(const AcidBaseSystem& system);
 
 /// A strong (fully dissociated) ion, or a non-electrolyte solute (charge 0).
 struct Ion {
@@ -157,12 +186,18 @@ struct Compound {
   double s0_ref_temperature_C = 25.0;
   std::optional<double> s0_dH_kJ_per_mol;  ///< enthalpy of solution (absent: S0 as measured)
   double s0_log_sd = 0.0;
+  /// Ionic strength of the buffer S0 was measured in (mol/L; 0: not stated). With Davies the
+  /// neutral species has gamma = 1, so S0 needs no correction; the value is recorded.
+  double s0_stated_ionic_strength_mol_per_L = 0.0;
+  std::string s0_stated_electrolyte;
   std::vector<Salt> salts;
   std::vector<MeasuredPoint> measured;
 
   const Salt* salt(const std::string& id) const;   ///< nullptr when unknown
   /// S0 at temperature T (van 't Hoff with the enthalpy of solution when given).
   double s0_at(double temperature_C) const;
+  /// pka_convention_notes() of the compound's system plus a note on a stated S0 ionic strength.
+  std::vector<std::string> convention_notes() const;
 };
 
 }  // namespace pkarta
