@@ -60,11 +60,11 @@ struct Formulation {
 };
 
 /// Works out the formulation for `options` (the buffer recipe) plus a dose of `compound` in
-/// `form`. Throws InputError as make_recipe does, or naming "preparation" when adjusted is asked
+/// `form`, made as `how` says. Throws InputError as make_recipe does, or naming "preparation" when adjusted is asked
 /// with two reagents.
 Formulation make_formulation(const Library& library, const RecipeOptions& options, const Compound& compound,
                              double dose_mol_per_L, const std::string& form,
-                             ScreenPreparation preparation = ScreenPreparation::kPremade);
+                             ScreenPreparation how = ScreenPreparation::kPremade);
 
 /// Everything weighed and titrated, as a Mixture (what `pkarta mix` would be given).
 Mixture formulation_mixture(const Library& library, const Formulation& f, const Compound& compound,

@@ -209,7 +209,7 @@ class EquilibriumModel {
     double ksp = 0.0;        // thermodynamic, at T
     double ksp_eff = 0.0;    // divided by gamma(drug ion)^m gamma(X)^n
   };
-  bool try_subset(std::uint32_t subset, const double* alpha, double dose, Partition* p) const;
+  bool try_subset(std::uint32_t subset, const double* alpha, double dose, Partition* out) const;
   bool undersaturated_except(std::uint32_t subset, const double* alpha, double d, const double* x,
                              double slack) const;
   struct IonC {
