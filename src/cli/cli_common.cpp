@@ -1,5 +1,6 @@
 #include "cli_common.h"
 
+#include <cctype>
 #include <filesystem>
 
 #include <iostream>
@@ -24,6 +25,14 @@ void add_common_options(po::options_description& desc, CommonOptions& common) {
 po::variables_map parse(const std::vector<std::string>& args, const po::options_description& desc,
                         const po::positional_options_description* positional) {
   po::variables_map vm;
+  // An option name never holds '%'; Boost's messages fill %...% placeholders with the name
+  // and would loop on a name such as "--%canonical_option%", so such words are refused here.
+  for (const std::string& a : args) {
+    const bool option_word = a.size() > 1 && a[0] == '-' && (a[1] == '-' || std::isalpha(static_cast<unsigned char>(a[1])));
+    if (option_word && a.substr(0, a.find('=')).find('%') != std::string::npos) {
+      throw InputError(SourceLocation{}, "unrecognised option '" + shown(a.substr(0, a.find('='))) + "' (see --help)");
+    }
+  }
   po::command_line_parser parser(args);
   parser.options(desc).style(po::command_line_style::default_style &
                              ~po::command_line_style::allow_guessing);

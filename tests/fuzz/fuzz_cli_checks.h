@@ -76,10 +76,9 @@ inline std::string check_cli(std::string_view bytes, const std::string& compound
   std::cout.rdbuf(old_out);
   std::cerr.rdbuf(old_err);
   if (code < 0 || code > 2) return "exit code " + std::to_string(code);
-  if (code == 2 && err.str().find("internal error") != std::string::npos) {
-    return "bad input reported as an internal error: " + err.str();
-  }
-  if (err.str().find("internal error") != std::string::npos) return "internal error: " + err.str();
+  // A message of pkarta's own, not the user's words echoed in one (words hold no newline).
+  const std::string e = "\n" + err.str();
+  if (e.find("\npkarta: internal error:") != std::string::npos) return "internal error: " + err.str();
   return "";
 }
 
