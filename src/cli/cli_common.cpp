@@ -1,6 +1,7 @@
 #include "cli_common.h"
 
 #include <cctype>
+#include <cmath>
 #include <filesystem>
 
 #include <iostream>
@@ -110,6 +111,15 @@ double option_number(const std::string& option, const std::string& text, double 
     throw InputError(SourceLocation{option, 0, 0}, ss.str());
   }
   return v;
+}
+
+long long option_count(const std::string& option, const std::string& text, double lo, double hi,
+                       const std::string& what) {
+  const double v = option_number(option, text, lo, hi);
+  if (v != std::floor(v)) {
+    throw InputError(SourceLocation{option, 0, 0}, "expected a whole number of " + what + ", got " + text);
+  }
+  return static_cast<long long>(v);
 }
 
 double option_temperature(const std::string& option, const std::string& text) {

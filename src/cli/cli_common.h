@@ -48,6 +48,10 @@ Amount option_amount(const std::string& option, const std::string& text);
 /// Number in [lo, hi] from an option value; errors name the option.
 double option_number(const std::string& option, const std::string& text, double lo, double hi);
 /// Temperature option (°C, -10..100).
+/// A whole number within [lo, hi] ("--threads 1.5" is refused, naming the option and `what`).
+long long option_count(const std::string& option, const std::string& text, double lo, double hi,
+                       const std::string& what);
+
 double option_temperature(const std::string& option, const std::string& text);
 
 /// Splits "A=B" of --add; errors name the option.

@@ -129,11 +129,7 @@ int run_profile(const Args& args) {
     cond.activity = cond.medium.activity;
     const Compound c = load_compound(compound_file, lib);
 
-    const double samples_value = option_number("--uncertainty", uncertainty, 0, 1e6);
-    const int samples = static_cast<int>(samples_value);
-    if (samples != samples_value) {
-      throw InputError(SourceLocation{"--uncertainty", 0, 0}, "expected a whole number of samples");
-    }
+    const int samples = static_cast<int>(option_count("--uncertainty", uncertainty, 0, 1e6, "samples"));
     const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
 
     const Profile p = compute_profile(c, lib, cond, grid, contents);

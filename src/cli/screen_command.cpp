@@ -214,18 +214,10 @@ int run_screen(const Args& args) {
       opt.round_step_mol_per_L = strength("--round", round);
       if (!(opt.round_step_mol_per_L > 0)) throw InputError(SourceLocation{"--round", 0, 0}, "the step must be > 0");
     }
-    const double samples_value = option_number("--uncertainty", uncertainty, 0, 1e6);
-    const int samples = static_cast<int>(samples_value);
-    if (samples != samples_value) {
-      throw InputError(SourceLocation{"--uncertainty", 0, 0}, "expected a whole number of samples");
-    }
+    const int samples = static_cast<int>(option_count("--uncertainty", uncertainty, 0, 1e6, "samples"));
     const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
     BatchOptions batch;
-    const double thread_count = option_number("--threads", threads, 0, 1024);
-    if (thread_count != std::floor(thread_count)) {
-      throw InputError(SourceLocation{"--threads", 0, 0}, "expected a whole number of threads, got " + threads);
-    }
-    batch.threads = static_cast<int>(thread_count);
+    batch.threads = static_cast<int>(option_count("--threads", threads, 0, 1024, "threads"));
 
     const Library lib = load_libraries(common);
     if (buffers != "all") {
