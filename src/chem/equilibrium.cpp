@@ -4,6 +4,7 @@
 #include <cmath>
 #include <limits>
 
+#include "pkarta/base/format.h"
 #include "pkarta/chem/formula.h"
 #include "pkarta/chem/water.h"
 
@@ -146,17 +147,29 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     s0_ = d.compound.has_intrinsic_solubility ? d.compound.s0_at(temperature_C_)
                                               : std::numeric_limits<double>::infinity();
     comp_ion_.push_back(-1);
+    comp_sys_.push_back(-1);
     for (std::size_t idx = 0; idx < d.compound.salts.size(); ++idx) {
       const Salt& salt = d.compound.salts[idx];
-      int ion = -1;
-      for (std::size_t k = 0; k < m.ions.size(); ++k) {
-        if (m.ions[k].id == salt.counterion) ion = static_cast<int>(k);
+      int ion = -1, sys = -1;
+      if (salt.counterion_is_system) {
+        for (std::size_t k = 0; k < m.systems.size(); ++k) {
+          if (m.systems[k].system.id == salt.counterion) sys = static_cast<int>(k);
+        }
+      } else {
+        for (std::size_t k = 0; k < m.ions.size(); ++k) {
+          if (m.ions[k].id == salt.counterion) ion = static_cast<int>(k);
+        }
       }
-      if (ion < 0 || !salt.ksp) continue;  // no counterion present: this salt cannot form
-      const int zc = m.ions[ion].charge;
+      if ((ion < 0 && sys < 0) || !salt.ksp) continue;  // no counterion present: cannot form
+      const int zc = sys >= 0 ? salt.counterion_charge : m.ions[ion].charge;
+      const int cj = sys >= 0 ? systems_[sys].z0 - zc : -1;  // the counterion's species
       const int balance = -zc * salt.counterion_count;
       const int zd = salt.drug_count > 0 ? balance / salt.drug_count : 0;
       const int j = drug_.z0 - zd;  // species of charge zd
+      if (sys >= 0 && (cj < 0 || cj > systems_[sys].n)) {
+        throw InputError("salt '" + salt.id + "' of '" + d.compound.id + "': the system '" +
+                         salt.counterion + "' has no species of charge " + std::to_string(zc));
+      }
       if (zc == 0 || salt.drug_count < 1 || salt.counterion_count < 1 ||
           zd * salt.drug_count != balance || j < 0 || j > drug_.n) {
         throw InputError("salt '" + salt.id + "' of '" + d.compound.id +
@@ -171,6 +184,8 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
       SaltPhase p;
       p.index = static_cast<int>(idx);
       p.ion = ion;
+      p.sys = sys;
+      p.cj = cj;
       p.species = j;
       p.m = salt.drug_count;
       p.n = salt.counterion_count;
@@ -178,11 +193,12 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
       p.zx = zc;
       p.ksp = salt_ksp_at(salt, temperature_C_);
       for (std::size_t c = 1; c < comp_ion_.size(); ++c) {
-        if (comp_ion_[c] == ion) p.comp = static_cast<int>(c);
+        if (comp_ion_[c] == ion && comp_sys_[c] == sys) p.comp = static_cast<int>(c);
       }
       if (p.comp < 0) {
         p.comp = static_cast<int>(comp_ion_.size());
         comp_ion_.push_back(ion);
+        comp_sys_.push_back(sys);
       }
       salts_.push_back(p);
     }
@@ -317,10 +333,64 @@ double EquilibriumModel::ion_removed(const Partition& p, int ion) const {
   return removed;
 }
 
+double EquilibriumModel::system_removed(const Partition& p, int system) const {
+  double removed = 0.0;
+  for (std::size_t k = 0; k < salts_.size(); ++k) {
+    if (salts_[k].sys == system && p.salt_solid[k] != 0.0) removed += salts_[k].n * p.salt_solid[k];
+  }
+  return removed;
+}
+
+double EquilibriumModel::component_total(int c) const {
+  return comp_sys_[c] >= 0 ? systems_[comp_sys_[c]].total : ions_[comp_ion_[c]].conc;
+}
+
+void EquilibriumModel::salt_products(double h, double* kq) const {
+  for (std::size_t k = 0; k < salts_.size(); ++k) {
+    const SaltPhase& s = salts_[k];
+    kq[k] = s.ksp_eff;
+    if (s.sys >= 0) {
+      double a[kMaxPka + 1], zb, z2;
+      moments(systems_[s.sys], h, a, &zb, &z2);
+      // A species fraction that underflows leaves this salt unable to form at this pH.
+      kq[k] = a[s.cj] > 0 ? s.ksp_eff / ipow(a[s.cj], s.n) : std::numeric_limits<double>::infinity();
+    }
+  }
+}
+
+void EquilibriumModel::removed_moments(const Partition& p, double h, double* charge,
+                                       double* abs_charge, double* z2, double* particles) const {
+  double q_charge = 0.0, q_abs = 0.0, q_z2 = 0.0, q_n = 0.0;
+  for (std::size_t k = 0; k < salts_.size(); ++k) {
+    if (p.salt_solid[k] == 0.0) continue;
+    const SaltPhase& s = salts_[k];
+    const double q = s.n == 1 ? p.salt_solid[k] : s.n * p.salt_solid[k];
+    if (s.sys >= 0) {
+      // The system's dissolved total falls by q, spread over its species by their fractions.
+      double a[kMaxPka + 1], zb, zz;
+      const double za = moments(systems_[s.sys], h, a, &zb, &zz);
+      q_charge += zb * q;
+      q_abs += za * q;
+      q_z2 += zz * q;
+    } else {
+      const int zc = s.zx;
+      q_charge += zc * q;
+      q_abs += std::abs(zc) * q;
+      q_z2 += zc * zc * q;
+    }
+    q_n += q;
+  }
+  *charge = q_charge;
+  *abs_charge = q_abs;
+  *z2 = q_z2;
+  *particles = q_n;
+}
+
 // True when every candidate solid outside `subset` is undersaturated (within `slack`), at
 // dissolved drug d and dissolved counterion x[c] of each component.
-bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double* alpha, double d,
-                                             const double* x, double slack) const {
+bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double* alpha,
+                                             const double* kq, double d, const double* x,
+                                             double slack) const {
   if (!(subset & 1u) && drug_neutral_ >= 0 && std::isfinite(s0_) &&
       alpha[drug_neutral_] * d > s0_ * (1.0 + slack)) {
     return false;
@@ -330,7 +400,7 @@ bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double*
     const SaltPhase& s = salts_[k];
     const double q = (s.m == 1 && s.n == 1) ? alpha[s.species] * d * x[s.comp]
                                             : ipow(alpha[s.species] * d, s.m) * ipow(x[s.comp], s.n);
-    if (q > s.ksp_eff * (1.0 + slack)) return false;
+    if (q > kq[k] * (1.0 + slack)) return false;
   }
   return true;
 }
@@ -340,12 +410,12 @@ bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double*
 // supersaturated. Closed forms for the free form, one 1:1 salt, and the free form with one
 // salt; otherwise Newton's method on the equality-constrained dual (component potentials
 // mu = ln c, minimize sum c - T mu subject to the solids' solubility products).
-bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, double dose,
-                                  Partition* out) const {
+bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, const double* kq,
+                                  double dose, Partition* out) const {
   const int nc = static_cast<int>(comp_ion_.size());
   double total[kMaxComp], x[kMaxComp];
   total[0] = dose;
-  for (int c = 1; c < nc; ++c) total[c] = ions_[comp_ion_[c]].conc;
+  for (int c = 1; c < nc; ++c) total[c] = component_total(c);
   for (int c = 0; c < nc; ++c) x[c] = total[c];
   Partition p;
   const bool with_free = subset & 1u;
@@ -358,7 +428,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
   const double an = drug_neutral_ >= 0 ? alpha[drug_neutral_] : 0.0;
   if (with_free && !(an > 0)) return false;
   for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
-    if (((salt_bits >> k) & 1u) && !(alpha[salts_[k].species] > 0)) return false;
+    if (((salt_bits >> k) & 1u) && !(alpha[salts_[k].species] > 0 && std::isfinite(kq[k]))) return false;
   }
   double d = dose;
   if (with_free && !salt_bits) {
@@ -369,16 +439,16 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
     const SaltPhase& s = salts_[single];
     const double xt = total[s.comp];
     const double a = alpha[s.species];
-    const double kq = s.ksp_eff / a;
-    const double c = dose * xt - kq;
+    const double kq1 = kq[single] / a;
+    const double c = dose * xt - kq1;
     if (!(c > 0)) return false;
-    const double disc = (dose - xt) * (dose - xt) + 4.0 * kq;
+    const double disc = (dose - xt) * (dose - xt) + 4.0 * kq1;
     const double sq = std::sqrt(disc);
     const double precip = 2.0 * c / ((dose + xt) + sq);  // smaller root, stable form
     // The dissolved drug solves d^2 + (x - dose) d - kq = 0; its stable form keeps it positive
     // where nearly all the dose precipitates (dose - precip would cancel to below zero).
     const double b = xt - dose;
-    d = b > 0 ? 2.0 * kq / (b + sq) : 0.5 * (sq - b);
+    d = b > 0 ? 2.0 * kq1 / (b + sq) : 0.5 * (sq - b);
     p.salt_solid[single] = precip;
     p.salt_drug = precip;
     x[s.comp] = xt - precip;
@@ -386,8 +456,8 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
     const SaltPhase& s = salts_[single];
     d = s0_ / an;
     const double x_left = (s.m == 1 && s.n == 1)
-                              ? s.ksp_eff / (alpha[s.species] * d)
-                              : std::pow(s.ksp_eff / ipow(alpha[s.species] * d, s.m), 1.0 / s.n);
+                              ? kq[single] / (alpha[s.species] * d)
+                              : std::pow(kq[single] / ipow(alpha[s.species] * d, s.m), 1.0 / s.n);
     const double precip = (s.n == 1) ? total[s.comp] - x_left : (total[s.comp] - x_left) / s.n;
     const double free_solid = (s.m == 1) ? dose - precip - d : dose - s.m * precip - d;
     if (precip < 0 || free_solid < 0) return false;
@@ -422,7 +492,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
       const SaltPhase& s = salts_[k];
       nu[ns][0] = s.m;
       nu[ns][local_of[s.comp]] = s.n;
-      logk[ns] = std::log(s.ksp_eff) - s.m * std::log(alpha[s.species]);
+      logk[ns] = std::log(kq[k]) - s.m * std::log(alpha[s.species]);
       solid_of[ns++] = k;
     }
     double mu[kMaxComp], tot[kMaxComp], lam[kMaxComp];
@@ -481,12 +551,12 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
     }
     d = std::exp(mu[0]);
     for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
-    if (undersaturated_except(subset, alpha, d, x, kEps)) {
+    if (undersaturated_except(subset, alpha, kq, d, x, kEps)) {
       warm_subset_ = subset;
       for (int l = 0; l < ncl; ++l) warm_mu_[l] = mu[l];
     }
   }
-  if (!undersaturated_except(subset, alpha, d, x, kEps)) return false;
+  if (!undersaturated_except(subset, alpha, kq, d, x, kEps)) return false;
   p.dissolved = d;
   p.solids.free = with_free;
   for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
@@ -496,17 +566,19 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, dou
   return true;
 }
 
-EquilibriumModel::Partition EquilibriumModel::partition(const double* alpha, double dose) const {
+EquilibriumModel::Partition EquilibriumModel::partition(const double* alpha, double h,
+                                                        double dose) const {
   Partition p;
   p.dissolved = dose;
   if (!drug_solids_ || !(dose > 0)) return p;
-  double x[kMaxComp];
+  double x[kMaxComp], kq[kMaxSalts];
   x[0] = dose;
-  for (std::size_t c = 1; c < comp_ion_.size(); ++c) x[c] = ions_[comp_ion_[c]].conc;
-  if (undersaturated_except(0, alpha, dose, x, 0.0)) return p;
-  if (last_subset_ && try_subset(last_subset_, alpha, dose, &p)) return p;
+  for (int c = 1; c < static_cast<int>(comp_ion_.size()); ++c) x[c] = component_total(c);
+  salt_products(h, kq);
+  if (undersaturated_except(0, alpha, kq, dose, x, 0.0)) return p;
+  if (last_subset_ && try_subset(last_subset_, alpha, kq, dose, &p)) return p;
   for (const std::uint32_t subset : subsets_) {
-    if (subset != last_subset_ && try_subset(subset, alpha, dose, &p)) {
+    if (subset != last_subset_ && try_subset(subset, alpha, kq, dose, &p)) {
       last_subset_ = subset;
       return p;
     }
@@ -546,20 +618,12 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   if (has_drug_) {
     double zb, z2;
     const double za = moments(drug_, h, alpha, &zb, &z2);
-    ev.drug = partition(alpha, drug_.total);
+    ev.drug = partition(alpha, h, drug_.total);
     const Partition& p = ev.drug;
     const double d = p.dissolved;
     // Precipitated salts also take their counterions out of solution.
     double q_charge = 0.0, q_abs = 0.0, q_z2 = 0.0, q_n = 0.0;
-    for (std::size_t k = 0; k < salts_.size(); ++k) {
-      if (p.salt_solid[k] == 0.0) continue;
-      const int zc = salts_[k].zx;
-      const double q = salts_[k].n == 1 ? p.salt_solid[k] : salts_[k].n * p.salt_solid[k];
-      q_charge += zc * q;
-      q_abs += std::abs(zc) * q;
-      q_z2 += zc * zc * q;
-      q_n += q;
-    }
+    if (p.salt_drug != 0.0) removed_moments(p, h, &q_charge, &q_abs, &q_z2, &q_n);
     charge += d * zb - q_charge;
     abs_sum += d * za - q_abs;
     i2 += d * z2 - q_z2;
@@ -573,10 +637,11 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
       const double step = 1e-6;
       auto drug_charge = [&](double x) {
         double a2[kMaxPka + 1], zb2, z22;
-        moments(drug_, std::pow(10.0, -x), a2, &zb2, &z22);
-        const Partition q = partition(a2, drug_.total);
-        double removed = 0.0;
-        for (std::size_t k = 0; k < salts_.size(); ++k) removed += salts_[k].zx * salts_[k].n * q.salt_solid[k];
+        const double h2 = std::pow(10.0, -x);
+        moments(drug_, h2, a2, &zb2, &z22);
+        const Partition q = partition(a2, h2, drug_.total);
+        double removed = 0.0, r_abs, r_z2, r_n;
+        removed_moments(q, h2, &removed, &r_abs, &r_z2, &r_n);
         return q.dissolved * zb2 - removed;
       };
       const double deriv = (drug_charge(pH + step) - drug_charge(pH - step)) / (2 * step);
@@ -780,16 +845,19 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
   for (int k = 0; k < model.num_systems(); ++k) {
     const SystemAmount& sa = mixture.systems[k];
     model.fractions(k, s.pH, alpha);
+    // Dissolved: the total less what salts of a system counterion hold (clamped at zero).
+    const double removed = model.system_removed(ev.drug, k);
+    const double dissolved = std::max(0.0, sa.total_mol_per_L - removed);
     double sum = 0.0;
     for (int j = 0; j <= static_cast<int>(sa.system.pkas.size()); ++j) {
       const int z = sa.system.charge_of(j);
-      const double c = sa.total_mol_per_L * alpha[j];
+      const double c = dissolved * alpha[j];
       sum += c;
       r.species.push_back({sa.system.id + " " + sa.system.species_label(j), sa.system.id, z, c,
                            model.gamma(z)});
     }
     if (sa.total_mol_per_L > 0) {
-      mass_res = std::max(mass_res, std::fabs(sum - sa.total_mol_per_L) / sa.total_mol_per_L);
+      mass_res = std::max(mass_res, std::fabs(sum + removed - sa.total_mol_per_L) / sa.total_mol_per_L);
     }
   }
   const EquilibriumModel::Partition& p = ev.drug;
@@ -854,7 +922,21 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     if (d.compound.has_intrinsic_solubility && jn >= 0) sat = alpha[jn] * d.dose_mol_per_L / s0;
     for (const Salt& salt : d.compound.salts) {
       if (!salt.ksp) continue;
+      for (std::size_t k = 0; salt.counterion_is_system && k < mixture.systems.size(); ++k) {
+        const SystemAmount& sa = mixture.systems[k];
+        if (sa.system.id != salt.counterion || !(sa.total_mol_per_L > 0)) continue;
+        const int zc = salt.counterion_charge;
+        const int zd = salt.drug_charge(zc);
+        const int j = sys.z0() - zd, cj = sa.system.z0() - zc;
+        if (j < 0 || j > n || cj < 0 || cj > static_cast<int>(sa.system.pkas.size())) continue;
+        double ac[kMaxPka + 1];
+        mm.fractions(static_cast<int>(k), s2.pH, ac);
+        const double ip = ipow(mm.gamma(zd) * alpha[j] * d.dose_mol_per_L, salt.drug_count) *
+                          ipow(mm.gamma(zc) * ac[cj] * sa.total_mol_per_L, salt.counterion_count);
+        sat = std::max(sat, ip / salt_ksp_at(salt, mixture.temperature_C));
+      }
       for (const IonAmount& i : mixture.ions) {
+        if (salt.counterion_is_system) break;
         if (i.id != salt.counterion || i.charge == 0) continue;
         const int zd = salt.drug_charge(i.charge);
         const int j = sys.z0() - zd;
@@ -960,7 +1042,28 @@ double form_molar_mass(const Compound& compound, const std::string& form, const 
     for (const Salt& x : compound.salts) known += ", " + x.id;
     throw InputError("compound '" + compound.id + "' has no salt '" + form + "' (forms: free" + known + ")");
   }
+  return salt_molar_mass(compound, *s, library);
+}
+
+double salt_molar_mass(const Compound& compound, const Salt& salt, const Library& library) {
+  const Salt* s = &salt;
   if (s->molar_mass_g_per_mol > 0) return s->molar_mass_g_per_mol;
+  if (s->counterion_is_system) {
+    // Proton transfer from the counterion's neutral parent (maleic acid, tromethamine) to the
+    // drug: m free form + n parent, the parent being the library reagent that gives the system
+    // alone (m z_drug + n z_counterion = 0, so the protons balance).
+    for (const auto& [id, r] : library.reagents) {
+      if (r.gives.size() == 1 && r.gives[0].kind == Contribution::Kind::kSystem &&
+          r.gives[0].id == s->counterion && r.gives[0].count == 1.0 && r.molar_mass_g_per_mol > 0) {
+        const AcidBaseSystem& sys = library.system(s->counterion);
+        if (sys.neutral_index() < 0 || compound.system.permanent_charge != 0) break;
+        return s->drug_count * compound.molar_mass_g_per_mol +
+               s->counterion_count * r.molar_mass_g_per_mol;
+      }
+    }
+    throw InputError(s->where, "salt '" + s->id + "': give its molar-mass (no library reagent is the "
+                               "neutral parent of the counterion system '" + s->counterion + "')");
+  }
   const Ion& ion = library.ion(s->counterion);
   const double h = molar_mass_g_per_mol("H");
   // BH+ X-: free base + H + X; M+ A-: free acid - H + M.
@@ -976,7 +1079,7 @@ double form_molar_mass(const Compound& compound, const std::string& form, const 
 void resolve_salt_ksp(Compound& compound, const Library& library) {
   for (Salt& salt : compound.salts) {
     if (salt.ksp || !salt.solubility_in_water_mol_per_L) continue;
-    const Ion& ion = library.ion(salt.counterion);
+    const int zc = counterion_charge_of(salt, library);
     Mixture m;
     m.temperature_C = salt.ref_temperature_C;
     const double s = *salt.solubility_in_water_mol_per_L;  // formula units
@@ -988,35 +1091,46 @@ void resolve_salt_ksp(Compound& compound, const Library& library) {
     d.form = salt.id;
     d.allow_solids = false;
     m.drug = d;
-    m.add_ion(ion.id, ion.charge, sn == 1 ? s : sn * s);
+    if (salt.counterion_is_system) {
+      m.add_system(library.system(salt.counterion), sn == 1 ? s : sn * s);
+    } else {
+      const Ion& ion = library.ion(salt.counterion);
+      m.add_ion(ion.id, ion.charge, sn == 1 ? s : sn * s);
+    }
     const Equilibrium e = solve(m);
     if (!e.usable()) {
       throw InputError(salt.where, "salt '" + salt.id + "': could not solve its solution in water");
     }
-    const int zd = salt.drug_charge(ion.charge);
+    const int zd = salt.drug_charge(zc);
     const int j = compound.system.z0() - zd;
     if (j < 0 || j > static_cast<int>(compound.system.pkas.size())) {
       throw InputError(salt.where, "salt '" + salt.id + "': the compound has no species of charge " +
                                        std::to_string(zd) + " to pair " + salt.stoichiometry() +
-                                       " with " + ion.id);
+                                       " with " + salt.counterion);
     }
-    const double g = davies_gamma(1, e.ionic_strength_mol_per_L, m.temperature_C);
-    const double ion_conc = s * e.drug->fractions[j];
     if (compound.has_intrinsic_solubility && compound.system.neutral_index() >= 0 &&
         e.drug->neutral_mol_per_L > compound.s0_at(m.temperature_C)) {
-      char buf[160];
-      std::snprintf(buf, sizeof buf,
-                    "salt '%s' would disproportionate in water: at its own pH %.2f the free form "
-                    "exceeds its intrinsic solubility; give ksp instead of solubility-in-water",
-                    salt.id.c_str(), e.pH);
-      throw InputError(salt.where, buf);
+      throw InputError(salt.where, "salt '" + salt.id + "' would disproportionate in water: at its own pH " +
+                                       fixed(e.pH, 2) + " the free form exceeds its intrinsic solubility; "
+                                       "give ksp instead of solubility-in-water");
     }
-    if (sm == 1 && sn == 1) {
+    // The counterion's concentration: all of it for a strong ion, the one species of a system.
+    double x = sn * s;
+    if (salt.counterion_is_system) {
+      x = 0.0;
+      for (const Species& sp : e.species) {
+        if (sp.system == salt.counterion && sp.charge == zc) x = sp.conc_mol_per_L;
+      }
+    }
+    if (sm == 1 && sn == 1 && !salt.counterion_is_system) {
+      const double g = davies_gamma(1, e.ionic_strength_mol_per_L, m.temperature_C);
+      const double ion_conc = s * e.drug->fractions[j];
       salt.ksp = g * g * ion_conc * s;
     } else {
       const double gd = davies_gamma(zd, e.ionic_strength_mol_per_L, m.temperature_C);
-      const double gx = davies_gamma(ion.charge, e.ionic_strength_mol_per_L, m.temperature_C);
-      salt.ksp = ipow(gd * sm * s * e.drug->fractions[j], sm) * ipow(gx * sn * s, sn);
+      const double gx = davies_gamma(zc, e.ionic_strength_mol_per_L, m.temperature_C);
+      salt.ksp = ipow(gd * sm * s * e.drug->fractions[j], sm) *
+                 (salt.counterion_is_system ? ipow(gx * x, sn) : ipow(gx * sn * s, sn));
     }
   }
 }

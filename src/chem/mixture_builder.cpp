@@ -51,13 +51,17 @@ void add_drug(Mixture& mixture, const Library& library, const Compound& compound
       throw InputError("compound '" + compound.id + "' has no salt '" + d.form + "' (forms: free" +
                        (known.empty() ? "" : ", " + known) + ")");
     }
-    const Ion& ion = library.ion(s->counterion);
     const double counterion = (s->drug_count == 1 && s->counterion_count == 1)
                                   ? dose_mol_per_L
                                   : dose_mol_per_L * s->counterion_count / s->drug_count;
-    mixture.add_ion(ion.id, ion.charge, counterion);
+    if (s->counterion_is_system) {
+      // A weak-acid or weak-base counterion enters as its system (its equilibria apply).
+      mixture.add_system(library.system(s->counterion), counterion);
+    } else {
+      const Ion& ion = library.ion(s->counterion);
+      mixture.add_ion(ion.id, ion.charge, counterion);
+    }
   }
-  // Every salt's counterion is tracked (at zero when absent) so that the ions list is stable.
   mixture.drug = d;
 }
 

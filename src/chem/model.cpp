@@ -126,8 +126,20 @@ std::string Salt::stoichiometry() const {
   return std::to_string(drug_count) + ":" + std::to_string(counterion_count);
 }
 
-int Salt::drug_charge(int counterion_charge) const {
-  return -counterion_charge * counterion_count / drug_count;
+int Salt::drug_charge(int z_counterion) const {
+  return -z_counterion * counterion_count / drug_count;
+}
+
+int counterion_charge_of(const Salt& salt, const Library& library) {
+  return salt.counterion_is_system ? salt.counterion_charge : library.ion(salt.counterion).charge;
+}
+
+std::string counterion_label(const Salt& salt, const Library& library) {
+  if (!salt.counterion_is_system) return salt.counterion;
+  const AcidBaseSystem& sys = library.system(salt.counterion);
+  const int j = sys.z0() - salt.counterion_charge;
+  if (j < 0 || j > static_cast<int>(sys.pkas.size())) return salt.counterion;
+  return sys.id + " " + sys.species_label(j);
 }
 
 const Salt* Compound::salt(const std::string& id) const {

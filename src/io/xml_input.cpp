@@ -476,8 +476,8 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
       c.s0_stated_electrolyte = r.optional(n, "electrolyte", "");
       c.has_intrinsic_solubility = true;
     } else if (tag == "salt") {
-      r.check_attributes(n, {"id", "counterion", "stoichiometry", "ksp", "solubility-in-water",
-                             "molar-mass", "temperature", "dH", "source"});
+      r.check_attributes(n, {"id", "counterion", "counterion-charge", "stoichiometry", "ksp",
+                             "solubility-in-water", "molar-mass", "temperature", "dH", "source"});
       Salt s;
       s.where = r.at(n);
       s.id = r.required(n, "id");
@@ -486,11 +486,42 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         if (o.id == s.id) r.fail(n, "duplicate salt id '" + s.id + "'");
       }
       s.counterion = r.required(n, "counterion");
+      // A counterion is a strong ion of the library, or (with counterion-charge) the species of
+      // that charge of a library acid-base system: a weak-acid or weak-base counterion.
+      s.counterion_is_system = static_cast<bool>(n.attribute("counterion-charge"));
       auto it = library.ions.find(s.counterion);
-      if (it == library.ions.end()) {
-        r.fail(n, "counterion '" + s.counterion + "' of salt '" + s.id + "' is not an ion of the library");
+      int zc = 0;
+      if (s.counterion_is_system) {
+        auto sys = library.systems.find(s.counterion);
+        if (sys == library.systems.end()) {
+          r.fail(n, "counterion '" + s.counterion + "' of salt '" + s.id +
+                        "' is not an acid-base system of the library (counterion-charge names a "
+                        "species of a system)");
+        }
+        zc = r.integer(n, "counterion-charge", 0);
+        const int cj = sys->second.z0() - zc;
+        if (zc == 0 || cj < 0 || cj > static_cast<int>(sys->second.pkas.size())) {
+          std::string charges;
+          for (int j = 0; j <= static_cast<int>(sys->second.pkas.size()); ++j) {
+            if (sys->second.charge_of(j) == 0) continue;
+            charges += (charges.empty() ? "" : ", ") + std::to_string(sys->second.charge_of(j)) + " (" +
+                       sys->second.species_label(j) + ")";
+          }
+          r.fail(n, "attribute 'counterion-charge' of <salt> is '" +
+                        std::string(n.attribute("counterion-charge").value()) + "': the system '" +
+                        s.counterion + "' has no " + (zc == 0 ? "charged " : "") +
+                        "species of that charge (its charged species: " + charges + ")");
+        }
+        s.counterion_charge = zc;
+      } else if (it == library.ions.end()) {
+        r.fail(n, "counterion '" + s.counterion + "' of salt '" + s.id + "' is not an ion of the library" +
+                      (library.systems.count(s.counterion) != 0
+                           ? std::string(" (it is an acid-base system: give counterion-charge to "
+                                         "name its species, e.g. -1)")
+                           : std::string()));
+      } else {
+        zc = it->second.charge;
       }
-      const int zc = it->second.charge;
       if (n.attribute("stoichiometry")) {
         // "m:n", drug : counterion, each a whole number 1..8.
         const std::string text = n.attribute("stoichiometry").value();
@@ -544,7 +575,9 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         s.solubility_in_water_text = r.required(n, "solubility-in-water");
         const Amount a = r.amount(n, "solubility-in-water");
         double mm = s.molar_mass_g_per_mol;
-        if (!(mm > 0) && s.drug_count == 1 && s.counterion_count == 1 && (zc == 1 || zc == -1)) {
+        if (!(mm > 0) && s.counterion_is_system) {
+          mm = salt_molar_mass(c, s, library);
+        } else if (!(mm > 0) && s.drug_count == 1 && s.counterion_count == 1 && (zc == 1 || zc == -1)) {
           mm = c.molar_mass_g_per_mol + it->second.molar_mass_g_per_mol +
                (it->second.charge < 0 ? 1.008 : -1.008);
         } else if (!(mm > 0)) {
@@ -591,7 +624,7 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
                         "), so an intrinsic solubility does not apply");
   }
   for (std::size_t k = 0; k < c.salts.size(); ++k) {
-    const int zd = c.salts[k].drug_charge(library.ion(c.salts[k].counterion).charge);
+    const int zd = c.salts[k].drug_charge(counterion_charge_of(c.salts[k], library));
     const int j = c.system.z0() - zd;
     if (j < 0 || j > static_cast<int>(c.system.pkas.size())) {
       r.fail(salt_nodes[k], "salt '" + c.salts[k].id + "': the compound has no species of charge " +

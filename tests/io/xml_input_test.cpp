@@ -81,3 +81,43 @@ TEST(XmlInput, ShownKeepsShortTextAndCutsLongTextOnACharacterBoundary) {
 }
 
 }  // namespace
+
+// A weak-acid counterion: the species of a library system named by its charge (hydrogen
+// maleate, HA- of the maleate system). Without a molar mass the salt's is the free base plus
+// the neutral parent acid (proton transfer): 300 + 116.07 (maleic acid, C4H4O4, from IUPAC
+// atomic weights) g/mol.
+TEST(XmlInput, WeakAcidCounterionIsASpeciesOfALibrarySystem) {
+  const std::string text =
+      "<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='mg/mL'/>\n"
+      " <salt id='maleate' counterion='maleate' counterion-charge='-1' "
+      "solubility-in-water='5 mg/mL'/>\n</compound>\n";
+  pkarta::Warnings warnings;
+  const pkarta::Compound c = pkarta::parse_compound(text, "c.xml", library(), &warnings);
+  ASSERT_EQ(c.salts.size(), 1u);
+  EXPECT_TRUE(c.salts[0].counterion_is_system);
+  EXPECT_EQ(c.salts[0].counterion_charge, -1);
+  EXPECT_EQ(pkarta::counterion_label(c.salts[0], library()), "maleate HA-");
+  ASSERT_TRUE(c.salts[0].solubility_in_water_mol_per_L.has_value());
+  EXPECT_NEAR(*c.salts[0].solubility_in_water_mol_per_L, 5.0 / 416.07, 5.0 / 416.07 * 1e-3);
+  ASSERT_TRUE(c.salts[0].ksp.has_value());
+  EXPECT_GT(*c.salts[0].ksp, 0.0);
+}
+
+TEST(XmlInput, WeakCounterionErrorsNameTheSaltAndItsPlace) {
+  const std::string head =
+      "<compound id='x' name='x' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='mg/mL'/>\n";
+  // No species of charge -3 in maleate (H2A, HA-, A2-).
+  std::string e = error_of(head + " <salt id='m' counterion='maleate' counterion-charge='-3' ksp='1e-3'/>\n</compound>\n");
+  EXPECT_NE(e.find("c.xml:4:"), std::string::npos) << e;
+  EXPECT_NE(e.find("-1 (HA-), -2 (A2-)"), std::string::npos) << e;
+  // A system named without counterion-charge gets a hint.
+  e = error_of(head + " <salt id='m' counterion='maleate' ksp='1e-3'/>\n</compound>\n");
+  EXPECT_NE(e.find("c.xml:4:"), std::string::npos) << e;
+  EXPECT_NE(e.find("give counterion-charge"), std::string::npos) << e;
+  // Hydrogen maleate (-1) cannot pair 1:2 with a monobasic base (needs charge 2).
+  e = error_of(head + " <salt id='m' counterion='maleate' counterion-charge='-1' stoichiometry='1:2' ksp='1e-3'/>\n</compound>\n");
+  EXPECT_NE(e.find("c.xml:4:"), std::string::npos) << e;
+  EXPECT_NE(e.find("no species of charge 2"), std::string::npos) << e;
+}

@@ -189,6 +189,8 @@ class EquilibriumModel {
   int salt_compound_index(int k) const { return salts_[k].index; }
   /// Counterion removed from solution by the partition, mol/L, for ion t of the mixture.
   double ion_removed(const Partition& p, int ion) const;
+  /// Total of system k removed from solution by salts whose counterion is its species, mol/L.
+  double system_removed(const Partition& p, int system) const;
   bool has_drug() const { return has_drug_; }
 
  private:
@@ -201,7 +203,9 @@ class EquilibriumModel {
   };
   struct SaltPhase {
     int index = -1;          // the compound's salt index
-    int ion = -1;            // index into ions_
+    int ion = -1;            // index into ions_ (strong counterion), else -1
+    int sys = -1;            // index into systems_ (counterion a species of a system), else -1
+    int cj = -1;             // that species of the system
     int comp = -1;           // component of the partition (1.. : distinct counterions)
     int species = -1;        // drug species j with charge z_d (z_d m + z_X n = 0)
     int m = 1, n = 1;        // drug : counterion
@@ -209,16 +213,27 @@ class EquilibriumModel {
     double ksp = 0.0;        // thermodynamic, at T
     double ksp_eff = 0.0;    // divided by gamma(drug ion)^m gamma(X)^n
   };
-  bool try_subset(std::uint32_t subset, const double* alpha, double dose, Partition* out) const;
-  bool undersaturated_except(std::uint32_t subset, const double* alpha, double d, const double* x,
-                             double slack) const;
+  /// Concentration solubility products of the model salts at [H+] = h: Ksp over the activity
+  /// coefficients, and for a counterion that is a species of a system also over that
+  /// species' fraction (the component's amount is then the system's dissolved total).
+  void salt_products(double h, double* kq) const;
+  bool try_subset(std::uint32_t subset, const double* alpha, const double* kq, double dose,
+                  Partition* out) const;
+  bool undersaturated_except(std::uint32_t subset, const double* alpha, const double* kq, double d,
+                             const double* x, double slack) const;
+  /// Total of component c (c >= 1): the counterion ion's concentration or the system's total.
+  double component_total(int c) const;
   struct IonC {
     int charge = 0;
     double conc = 0.0;
   };
   void update_effective_constants();
   static double moments(const Sys& s, double h, double* alpha, double* zbar, double* z2bar);
-  Partition partition(const double* alpha, double dose) const;
+  Partition partition(const double* alpha, double h, double dose) const;
+  /// Charge, |charge|, z^2 and particle sums of the counterion taken out of solution by the
+  /// partition's salts (strong ions by their charge, system species by the system's moments).
+  void removed_moments(const Partition& p, double h, double* charge, double* abs_charge, double* z2,
+                       double* particles) const;
 
   bool ideal_ = false;
   double temperature_C_ = 25.0;
@@ -235,6 +250,7 @@ class EquilibriumModel {
   double s0_ = 0.0;
   std::vector<SaltPhase> salts_;
   std::vector<int> comp_ion_;                // ion index of component c >= 1 (comp_ion_[0] = -1)
+  std::vector<int> comp_sys_;                // system index of component c, or -1 (an ion)
   std::vector<std::uint32_t> subsets_;       // candidate active sets (bit 0 free, bit k+1 salt k)
   mutable std::uint32_t last_subset_ = 0;    // the active set found last (tried first)
   mutable std::uint32_t warm_subset_ = 0;    // active set of warm_mu_ (general solve)
@@ -262,6 +278,9 @@ double salt_ksp_at(const Salt& salt, double temperature_C);
 
 /// The molar mass of a drug form: the free form, or a salt (given, or free + counterion).
 double form_molar_mass(const Compound& compound, const std::string& form, const Library& library);
+/// The molar mass of m:n formula units of a salt: given, or m free form + n counterion (for a
+/// counterion of a system, n of its neutral parent reagent; InputError when there is none).
+double salt_molar_mass(const Compound& compound, const Salt& salt, const Library& library);
 
 }  // namespace pkarta
 

@@ -143,12 +143,18 @@ struct Library {
   void merge(const Library& other);
 };
 
-/// A salt form of a drug: m drug ions to n counterions (a strong ion of the library), written
-/// "m:n" (drug : counterion; 1:1 by default). The drug species in the salt has the charge
+/// A salt form of a drug: m drug ions to n counterions, written "m:n" (drug : counterion; 1:1
+/// by default). The counterion is a strong ion of the library (Cl-, Na+) or one species of a
+/// library acid-base system (hydrogen maleate of the maleate system, the tromethamine cation),
+/// whose own equilibria then enter the balances. The drug species in the salt has the charge
 /// that balances: z(drug) m + z(counterion) n = 0.
 struct Salt {
   std::string id;
-  std::string counterion;           ///< library ion id
+  std::string counterion;           ///< library ion id, or library system id (see below)
+  /// True when `counterion` names an acid-base system of the library; its species of charge
+  /// `counterion_charge` is the counterion (the file's attribute counterion-charge).
+  bool counterion_is_system = false;
+  int counterion_charge = 0;        ///< charge of the system species (system counterions only)
   int drug_count = 1;               ///< m
   int counterion_count = 1;         ///< n
   /// Activity product a(drug ion)^m a(X)^n in (mol/L)^(m+n), at ref_temperature_C.
@@ -162,8 +168,13 @@ struct Salt {
   /// "m:n", e.g. "1:2" for a dihydrochloride.
   std::string stoichiometry() const;
   /// Charge of the drug species in the salt, z(drug) = -z(counterion) n / m (it must divide).
-  int drug_charge(int counterion_charge) const;
+  int drug_charge(int z_counterion) const;
 };
+
+/// Charge of a salt's counterion: the library ion's, or the chosen species' of a system.
+int counterion_charge_of(const Salt& salt, const Library& library);
+/// The counterion as text: "Cl-", or "maleate HA-" for a species of a system.
+std::string counterion_label(const Salt& salt, const Library& library);
 
 /// A measured solubility point (shake-flask).
 struct MeasuredPoint {
