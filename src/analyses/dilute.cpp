@@ -24,31 +24,10 @@ struct SolubilityInMixture {
 // with the drug fully dissolved (the model prepared and solved by the caller).
 SolubilityInMixture solubility_in(const Mixture& all, const EquilibriumModel& model, double pH) {
   SolubilityInMixture out;
-  const DrugAmount& d = *all.drug;
-  const AcidBaseSystem& sys = d.compound.system;
-  const int n = static_cast<int>(sys.pkas.size());
-  double alpha[kMaxPka + 1];
-  model.fractions(-1, pH, alpha);
-  const int jn = sys.neutral_index();
-  if (d.compound.has_intrinsic_solubility && jn >= 0 && alpha[jn] > 0) {
-    out.solubility = d.compound.s0_at(all.temperature_C) / alpha[jn];
-    out.solid = "free";
-  }
-  const double g1sq = model.gamma(1) * model.gamma(-1);
-  for (const Salt& salt : d.compound.salts) {
-    if (!salt.ksp) continue;
-    for (const IonAmount& ion : all.ions) {
-      if (ion.id != salt.counterion || !(ion.conc_mol_per_L > 0)) continue;
-      if (ion.charge != 1 && ion.charge != -1) continue;
-      const int j = sys.z0() + ion.charge;
-      if (j < 0 || j > n || !(alpha[j] > 0)) continue;
-      const double s = salt_ksp_at(salt, all.temperature_C) / (g1sq * alpha[j] * ion.conc_mol_per_L);
-      if (s < out.solubility) {
-        out.solubility = s;
-        out.solid = salt.id;
-      }
-    }
-  }
+  int which = -2;
+  out.solubility = model.solubility_limit(pH, &which);
+  if (which == -1) out.solid = "free";
+  if (which >= 0) out.solid = all.drug->compound.salts[which].id;
   return out;
 }
 

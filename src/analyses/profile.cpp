@@ -129,12 +129,17 @@ std::string temp_text(double t) { return fixed(t, 1) + " °C"; }
 
 struct SolubilityScanner::Impl {
   struct SaltData {
-    bool usable = false;       // Ksp known, counterion monovalent, a species to pair with
+    bool usable = false;       // Ksp known, a drug species to pair with, a counterion model
     bool can_limit = false;
+    bool simple = false;       // 1:1 with a monovalent strong counterion (closed forms)
     int js = -1;               // drug species paired with the counterion
     int zx = 0;                // counterion charge
+    int zd = 0;                // drug charge in the salt
+    int m = 1, n = 1;          // drug : counterion
+    int sys = -1;              // weak counterion: index of its system in the medium, else -1
+    int cj = -1;               // weak counterion: its species in that system
     double ksp = 0.0;          // thermodynamic, at the run temperature
-    double x_med = 0.0;        // counterion in the medium, mol/L
+    double x_med = 0.0;        // counterion in the medium, mol/L (a weak one: its system's total)
     bool titrant_is_x = false; // the titrant of the counterion's sign gives this very ion
     std::string id;
   };
@@ -158,18 +163,67 @@ struct SolubilityScanner::Impl {
     for (const Salt& salt : compound.salts) {
       SaltData s;
       s.id = salt.id;
-      auto it = library.ions.find(salt.counterion);
-      if (salt.ksp && it != library.ions.end() && (it->second.charge == 1 || it->second.charge == -1)) {
-        s.zx = it->second.charge;
-        s.js = sys.z0() + s.zx;
-        s.usable = s.js >= 0 && s.js <= n;
+      s.m = salt.drug_count;
+      s.n = salt.counterion_count;
+      if (salt.ksp && !salt.counterion_is_system) {
+        auto it = library.ions.find(salt.counterion);
+        if (it != library.ions.end() && it->second.charge != 0) {
+          s.zx = it->second.charge;
+          s.simple = s.m == 1 && s.n == 1 && (s.zx == 1 || s.zx == -1);
+          s.zd = salt.drug_charge(s.zx);
+          s.js = sys.z0() - s.zd;
+          s.usable = s.js >= 0 && s.js <= n && s.zd * s.m + s.zx * s.n == 0 &&
+                     (s.simple || jn >= 0);  // m:n salts: with a free form in excess
+          s.ksp = salt_ksp_at(salt, c.temperature_C);
+          s.x_med = ion_in(c.medium, salt.counterion);
+          s.titrant_is_x = (s.zx < 0 && salt.counterion == acid_ion) || (s.zx > 0 && salt.counterion == base_ion);
+        }
+      } else if (salt.ksp && jn >= 0) {
+        // A weak-acid or weak-base counterion: only the medium can bring it (the titrants are
+        // strong); its species fraction at each pH comes from its system's equilibria.
+        s.zx = salt.counterion_charge;
+        s.zd = salt.drug_charge(s.zx);
+        s.js = sys.z0() - s.zd;
+        for (std::size_t k = 0; k < c.medium.systems.size(); ++k) {
+          const AcidBaseSystem& cs = c.medium.systems[k].system;
+          if (cs.id != salt.counterion) continue;
+          s.sys = static_cast<int>(k);
+          s.cj = cs.z0() - s.zx;
+          s.x_med = c.medium.systems[k].total_mol_per_L;
+        }
+        s.usable = s.js >= 0 && s.js <= n && s.zd * s.m + s.zx * s.n == 0 && s.sys >= 0 &&
+                   s.cj >= 0 && s.cj <= static_cast<int>(c.medium.systems[s.sys].system.pkas.size());
         s.ksp = salt_ksp_at(salt, c.temperature_C);
-        s.x_med = ion_in(c.medium, salt.counterion);
-        s.titrant_is_x = (s.zx < 0 && salt.counterion == acid_ion) || (s.zx > 0 && salt.counterion == base_ion);
-        s.can_limit = s.usable && (jn < 0 || s.x_med > 0 || s.titrant_is_x);
       }
+      s.can_limit = s.usable && (jn < 0 || s.x_med > 0 || s.titrant_is_x);
       salts.push_back(s);
     }
+  }
+
+  // Concentration product Ksp / (gamma_d^m gamma_x^n) under the model's current coefficients.
+  double ksp_conc(const SaltData& s, double g1sq) const {
+    if (s.simple) return s.ksp / g1sq;
+    double g = 1.0;
+    for (int i = 0; i < s.m; ++i) g *= model.gamma(s.zd);
+    for (int i = 0; i < s.n; ++i) g *= model.gamma(s.zx);
+    return s.ksp / g;
+  }
+
+  // The counterion's concentration as its species: the ion itself, or the species fraction of
+  // a weak counterion's system at pH times x.
+  double species_share(const SaltData& s, double pH) const {
+    if (s.sys < 0) return 1.0;
+    double a[kMaxPka + 1];
+    model.fractions(s.sys, pH, a);
+    return a[s.cj];
+  }
+
+  // Dissolved drug with salt s limiting and its counterion at x (mol/L): (alpha_js D)^m x^n = Ksp'.
+  static double salt_limited(const SaltData& s, double ksp, double alpha_js, double x) {
+    if (s.m == 1 && s.n == 1) return ksp / (alpha_js * x);
+    double xn = 1.0;
+    for (int i = 0; i < s.n; ++i) xn *= x;
+    return std::pow(ksp / xn, 1.0 / s.m) / alpha_js;
   }
 
   SolubilityAtPh at(double pH);
@@ -197,6 +251,7 @@ SolubilityAtPh SolubilityScanner::Impl::at(double pH) {
   out.ideal_solubility_mol_per_L = jn >= 0 ? std::min(s0 / alpha[jn], kSolubilityCap_mol_per_L)
                                            : kSolubilityCap_mol_per_L;
   out.salt_saturation_at_free.assign(salts.size(), 0.0);
+  out.salt_limited_mol_per_L.assign(salts.size(), 0.0);
 
   double ionic = i0;
   for (int iter = 0; iter < 200; ++iter) {
@@ -231,28 +286,52 @@ SolubilityAtPh SolubilityScanner::Impl::at(double pH) {
       for (std::size_t k = 0; k < salts.size(); ++k) {
         const SaltData& s = salts[k];
         if (!s.usable) continue;
-        const double ksp = s.ksp / g1sq;  // concentration product
-        const double x_free = s.x_med + (s.titrant_is_x && tau_free * s.zx > 0 ? std::fabs(tau_free) : 0.0);
-        const double ratio = alpha[s.js] * d_free * x_free / ksp;
+        const double ksp = ksp_conc(s, g1sq);  // concentration product
+        const double share = species_share(s, pH);
+        const double x_free =
+            share * (s.x_med + (s.titrant_is_x && tau_free * s.zx > 0 ? std::fabs(tau_free) : 0.0));
+        const double ratio = s.simple ? alpha[s.js] * d_free * x_free / ksp
+                                      : std::pow(alpha[s.js] * d_free, s.m) * std::pow(x_free, s.n) / ksp;
         out.salt_saturation_at_free[k] = ratio;
         if (!(ratio > 1.0)) continue;
-        // Salt-limited: dissolved drug D = Ksp'/(alpha_js [X]). When the titrant gives X, the
-        // charge balance fixes [X] = u: zx u^2 + (q_med - zx x_med) u + Ksp' zbar / alpha_js = 0.
+        // Salt-limited: dissolved drug D from (alpha_js D)^m [X]^n = Ksp'. When the titrant
+        // gives X, the charge balance fixes [X] = u; for 1:1 that is the quadratic
+        // zx u^2 + (q_med - zx x_med) u + Ksp' zbar / alpha_js = 0, for m:n a bisection on
+        // log u of q_med - zx x_med + D(u) zbar + zx u = 0 (monotone in u).
         double d_salt = 0.0, t_salt = 0.0;
         bool done = false;
-        if (s.titrant_is_x) {
+        if (s.titrant_is_x && s.simple) {
           const double u = positive_root(s.zx, q_med - s.zx * s.x_med, ksp * zbar / alpha[s.js]);
           if (u > s.x_med) {
             d_salt = ksp / (alpha[s.js] * u);
             t_salt = s.zx * (u - s.x_med);
             done = true;
           }
+        } else if (s.titrant_is_x) {
+          auto balance = [&](double u) {
+            return q_med - s.zx * s.x_med + salt_limited(s, ksp, alpha[s.js], u) * zbar + s.zx * u;
+          };
+          double lo = std::max(s.x_med, 1e-30), hi = 100.0;
+          const double f_lo = balance(lo), f_hi = balance(hi);
+          if ((f_lo > 0) != (f_hi > 0)) {
+            for (int it = 0; it < 200 && hi / lo > 1.0 + 1e-15; ++it) {
+              const double mid = std::sqrt(lo * hi);
+              ((balance(mid) > 0) == (f_lo > 0) ? lo : hi) = mid;
+            }
+            const double u = std::sqrt(lo * hi);
+            if (u > s.x_med) {
+              d_salt = salt_limited(s, ksp, alpha[s.js], u);
+              t_salt = s.zx * (u - s.x_med);
+              done = true;
+            }
+          }
         }
         if (!done) {
-          if (!(s.x_med > 0)) continue;
-          d_salt = ksp / (alpha[s.js] * s.x_med);
+          if (!(s.x_med > 0) || !(share > 0)) continue;
+          d_salt = salt_limited(s, ksp, alpha[s.js], share * s.x_med);
           t_salt = -(q_med + d_salt * zbar);
         }
+        out.salt_limited_mol_per_L[k] = d_salt;
         if (d_salt < dissolved) {
           dissolved = d_salt;
           solid = s.id;
@@ -264,7 +343,7 @@ SolubilityAtPh SolubilityScanner::Impl::at(double pH) {
       // No free form: the excess solid is a salt, whose counterion enters with the drug.
       tau = -(q_med + dissolved * zbar);
       for (const SaltData& s : salts) {
-        if (!s.usable) continue;
+        if (!s.usable || !s.simple) continue;
         const double ksp = s.ksp / g1sq;
         const double c = ksp / alpha[s.js];
         double d = 0.0, t = 0.0;
@@ -294,7 +373,7 @@ SolubilityAtPh SolubilityScanner::Impl::at(double pH) {
       // Each salt's ion product over Ksp in the state found (1 for the limiting one).
       for (std::size_t k = 0; k < salts.size(); ++k) {
         const SaltData& s = salts[k];
-        if (!s.usable) continue;
+        if (!s.usable || !s.simple) continue;
         double x = s.x_med + (s.titrant_is_x && tau * s.zx > 0 ? std::fabs(tau) : 0.0);
         if (s.id == solid) x += salt_counterion;
         out.salt_saturation_at_free[k] = alpha[s.js] * dissolved * x * g1sq / s.ksp;
@@ -500,6 +579,13 @@ Profile compute_profile(const Compound& compound, const Library& library,
     auto lg = [](double r) { return std::log(std::max(r, 1e-300)); };
     for (std::size_t k = 0; k < compound.salts.size(); ++k) {
       const Salt& salt = compound.salts[k];
+      if (!scanner.salt_can_limit(k) && salt.counterion_is_system) {
+        p.notes.push_back("salt " + salt.id + " cannot limit in this medium: its counterion " +
+                          counterion_label(salt, library) + " is a species of the " + salt.counterion +
+                          " system, which the medium does not hold (add it to the medium, e.g. a " +
+                          salt.counterion + " buffer, to include it)");
+        continue;
+      }
       if (!scanner.salt_can_limit(k)) {
         const Ion& x = library.ion(salt.counterion);
         const std::string t = titrant_giving(library, x);
@@ -524,7 +610,7 @@ Profile compute_profile(const Compound& compound, const Library& library,
         const SolubilityAtPh at = scanner.at(root);
         PhMax m;
         m.salt = salt.id;
-        m.counterion = salt.counterion;
+        m.counterion = counterion_label(salt, library);
         m.pH = root;
         m.solubility_mol_per_L = jn >= 0 ? std::min(p.s0_mol_per_L / at.fractions[jn], kSolubilityCap_mol_per_L)
                                          : at.solubility_mol_per_L;
@@ -546,6 +632,40 @@ Profile compute_profile(const Compound& compound, const Library& library,
   } else if (jn < 0 && !compound.salts.empty()) {
     p.notes.push_back("the compound has no net-neutral form: the excess solid is a salt itself, its "
                       "counterion entering with the dissolved drug; pHmax does not apply");
+  }
+
+  // Salt-to-salt transitions: where the limiting solid changes between two salts, refined by
+  // Brent's method on log(D_a / D_b), the two salts' limited solubilities.
+  auto salt_index = [&](const std::string& id) {
+    for (std::size_t k = 0; k < compound.salts.size(); ++k) {
+      if (compound.salts[k].id == id) return static_cast<int>(k);
+    }
+    return -1;
+  };
+  for (std::size_t i = 0; i + 1 < p.points.size(); ++i) {
+    const ProfilePoint& a = p.points[i];
+    const ProfilePoint& b = p.points[i + 1];
+    const int ka = salt_index(a.limiting_solid), kb = salt_index(b.limiting_solid);
+    if (ka < 0 || kb < 0 || ka == kb) continue;
+    auto gap = [&](const SolubilityAtPh& x) {
+      const double da = x.salt_limited_mol_per_L[ka], db = x.salt_limited_mol_per_L[kb];
+      return da > 0 && db > 0 ? std::log(da / db) : std::numeric_limits<double>::quiet_NaN();
+    };
+    const double fa = gap(a), fb = gap(b);
+    SaltTransition t;
+    t.below = a.limiting_solid;
+    t.above = b.limiting_solid;
+    if (std::isfinite(fa) && std::isfinite(fb) && (fa > 0) != (fb > 0)) {
+      auto f = [&](double x) {
+        const double v = gap(scanner.at(x));
+        return std::isfinite(v) ? v : 0.0;
+      };
+      t.pH = fa == 0.0 ? a.pH : brent_root(f, a.pH, b.pH, fa, fb, 1e-10);
+    } else {
+      t.pH = 0.5 * (a.pH + b.pH);  // one of them stops limiting in between: the grid's midpoint
+    }
+    t.solubility_mol_per_L = scanner.at(t.pH).solubility_mol_per_L;
+    p.salt_transitions.push_back(t);
   }
 
   for (const Salt& salt : compound.salts) {

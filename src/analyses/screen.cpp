@@ -83,6 +83,10 @@ class BufferRun {
     }
     base_ion_conc_.resize(mix_.ions.size());
     for (std::size_t k = 0; k < mix_.ions.size(); ++k) base_ion_conc_[k] = mix_.ions[k].conc_mol_per_L;
+    // A salt's weak-acid or weak-base counterion enters as a system (the buffer's own, when
+    // they are the same system: a maleate salt in a maleate buffer).
+    base_sys_conc_.resize(mix_.systems.size());
+    for (std::size_t k = 0; k < mix_.systems.size(); ++k) base_sys_conc_[k] = mix_.systems[k].total_mol_per_L;
   }
 
   const Buffer& buffer() const { return buffer_; }
@@ -119,6 +123,9 @@ class BufferRun {
   // `challenge` mol/L of strong acid (> 0, the acid titrant) or strong base (< 0).
   const Mixture& mixture(const BufferPreparation& prep, double dose_factor = 1.0, double challenge = 0.0) {
     mix_.systems[0].total_mol_per_L = prep.conc_mol_per_L;
+    for (std::size_t k = 0; k < mix_.systems.size(); ++k) {
+      if (base_sys_conc_[k] > 0) mix_.systems[k].total_mol_per_L += base_sys_conc_[k] * dose_factor;
+    }
     const double acid = (prep.titrant == acid_.id ? prep.titrant_mol_per_L : 0.0) + std::max(challenge, 0.0);
     const double base = (prep.titrant == base_.id ? prep.titrant_mol_per_L : 0.0) + std::max(-challenge, 0.0);
     for (std::size_t k = 0; k < mix_.ions.size(); ++k) {
@@ -195,6 +202,7 @@ class BufferRun {
   Mixture alone_;
   Mixture mix_;
   std::vector<double> base_ion_conc_;
+  std::vector<double> base_sys_conc_;  // mol/L of each system brought by the dose
   double dose0_ = 0.0;
   SolverOptions options_;
 };

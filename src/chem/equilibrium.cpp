@@ -386,6 +386,35 @@ void EquilibriumModel::removed_moments(const Partition& p, double h, double* cha
   *particles = q_n;
 }
 
+double EquilibriumModel::solubility_limit(double pH, int* limiting) const {
+  double best = std::numeric_limits<double>::infinity();
+  int which = -2;
+  if (has_drug_) {
+    const double h = std::pow(10.0, -pH);
+    double alpha[kMaxPka + 1], zb, z2, kq[kMaxSalts];
+    moments(drug_, h, alpha, &zb, &z2);
+    if (drug_neutral_ >= 0 && std::isfinite(s0_) && alpha[drug_neutral_] > 0) {
+      best = s0_ / alpha[drug_neutral_];
+      which = -1;
+    }
+    salt_products(h, kq);
+    for (std::size_t k = 0; k < salts_.size(); ++k) {
+      const SaltPhase& p = salts_[k];
+      const double x = component_total(p.comp);
+      if (!(x > 0) || !(alpha[p.species] > 0) || !std::isfinite(kq[k])) continue;
+      const double limit = (p.m == 1 && p.n == 1)
+                               ? kq[k] / (alpha[p.species] * x)
+                               : std::pow(kq[k] / ipow(x, p.n), 1.0 / p.m) / alpha[p.species];
+      if (limit < best) {
+        best = limit;
+        which = p.index;
+      }
+    }
+  }
+  if (limiting) *limiting = which;
+  return best;
+}
+
 // True when every candidate solid outside `subset` is undersaturated (within `slack`), at
 // dissolved drug d and dissolved counterion x[c] of each component.
 bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double* alpha,

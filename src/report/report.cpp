@@ -745,7 +745,12 @@ svg::Chart profile_chart(const ReportData& d) {
   desc << "Log-scale chart of the solubility of " << c.name << " against pH from " << fixed(d.request.profile_from_pH, 1)
        << " to " << fixed(d.request.profile_to_pH, 1) << ". The model solubility ranges from " << sig(lo, 3) << " to "
        << sig(hi, 3) << " mol/L.";
-  for (const PhMax& p : d.profile.ph_max) desc << " pHmax of the " << p.salt << " is " << fixed(p.pH, 2) << ".";
+  for (const PhMax& p : d.profile.ph_max) {
+    if (p.on_profile) desc << " pHmax of the " << p.salt << " is " << fixed(p.pH, 2) << ".";
+  }
+  for (const SaltTransition& t : d.profile.salt_transitions) {
+    desc << " Below pH " << fixed(t.pH, 2) << " the " << t.below << " limits instead of the " << t.above << ".";
+  }
   if (dose > 0) desc << " The dose, " << sig(dose, 3) << " mol/L, is drawn as a horizontal line.";
   ch.description = desc.str();
   return ch;
@@ -896,13 +901,21 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   } else {
     key(out, "", "Dose", "not given", "Give --dose to draw the dose line and judge the dose in water.", "");
   }
-  if (!d.profile.ph_max.empty()) {
+  std::vector<const PhMax*> shown_ph_max;  // the pHmax values where the profile's solid changes
+  for (const PhMax& m : d.profile.ph_max) {
+    if (m.on_profile) shown_ph_max.push_back(&m);
+  }
+  if (!shown_ph_max.empty()) {
     std::string v, det;
-    for (std::size_t i = 0; i < d.profile.ph_max.size(); ++i) {
-      v += (i ? " / " : "") + fixed(d.profile.ph_max[i].pH, 2);
-      det += (i ? "; " : "") + d.profile.ph_max[i].salt;
+    for (std::size_t i = 0; i < shown_ph_max.size(); ++i) {
+      v += (i ? " / " : "") + fixed(shown_ph_max[i]->pH, 2);
+      det += (i ? "; " : "") + shown_ph_max[i]->salt;
     }
-    key(out, "lead", "pHmax", v, det + " in water, pH held by HCl or NaOH",
+    det += " in water, pH held by HCl or NaOH";
+    for (const SaltTransition& t : d.profile.salt_transitions) {
+      det += "; the " + t.below + " limits below pH " + fixed(t.pH, 2);
+    }
+    key(out, "lead", "pHmax", v, det,
         "Vermillion dashed vertical line on the pH-solubility chart (" + number("profile") + ").");
   } else {
     key(out, "", "pHmax", "none", "No salt limits the solubility in water with HCl or NaOH over the pH range shown.", "");

@@ -69,6 +69,16 @@ void write_profile_text(const Profile& p, std::ostream& out, double row_interval
     t.write(out);
     out << "\n";
   }
+  if (!p.salt_transitions.empty()) {
+    out << "Salt transitions (two salts coexist; the first limits below, the second above)\n";
+    TextTable t({"below", "above", "pH", "solubility there (mol/L)", "(mg/mL as free form)"});
+    for (const SaltTransition& x : p.salt_transitions) {
+      t.add_row({x.below, x.above, fixed(x.pH, 3), sig(x.solubility_mol_per_L, 4),
+                 sig(x.solubility_mol_per_L * p.molar_mass_g_per_mol, 4)});
+    }
+    t.write(out);
+    out << "\n";
+  }
   if (!p.derived_ksp.empty()) {
     out << "Ksp derived from the salt's solubility in water (self-consistent; docs/model.md, \"Salts\")\n";
     TextTable t({"salt", "solubility in water", "(mol/L)", "at (°C)", "Ksp ((mol/L)^2)",
@@ -195,6 +205,15 @@ nlohmann::ordered_json profile_json(const Profile& p) {
                   {"on_profile", m.on_profile}});
   }
   j["pHmax"] = mx;
+  nlohmann::ordered_json st = nlohmann::ordered_json::array();
+  for (const SaltTransition& x : p.salt_transitions) {
+    st.push_back({{"below", x.below},
+                  {"above", x.above},
+                  {"pH", x.pH},
+                  {"solubility_mol_per_L", x.solubility_mol_per_L},
+                  {"solubility_mg_per_mL_as_free_form", x.solubility_mol_per_L * p.molar_mass_g_per_mol}});
+  }
+  j["salt_transitions"] = st;
   nlohmann::ordered_json dk = nlohmann::ordered_json::array();
   for (const DerivedKsp& d : p.derived_ksp) {
     dk.push_back({{"salt", d.salt},

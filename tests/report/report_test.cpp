@@ -202,10 +202,16 @@ TEST(Report, SummaryGivesDosePhmaxAndWhereToFindThem) {
         text_of(k.node().find_child_by_attribute("div", "class", "value"));
   }
   EXPECT_EQ(keys["Dose"], "2mg/mL hydrochloride");
-  ASSERT_EQ(fixture().data.profile.ph_max.size(), 1u);
-  // Demo base hydrochloride: pHmax about 6.2 in water (compound file comment).
+  // Demo base: the hydrochloride's pHmax (about 6.2 in water, compound file comment) is the
+  // one on the profile; the dihydrochloride's (with the free base) lies where the
+  // hydrochloride is less soluble, so the card leaves it out and names the salt transition.
+  ASSERT_EQ(fixture().data.profile.ph_max.size(), 2u);
+  EXPECT_TRUE(fixture().data.profile.ph_max[0].on_profile);
+  EXPECT_FALSE(fixture().data.profile.ph_max[1].on_profile);
   EXPECT_NEAR(fixture().data.profile.ph_max[0].pH, 6.2, 0.1);
   EXPECT_EQ(keys["pHmax"], fixed(fixture().data.profile.ph_max[0].pH, 2));
+  ASSERT_EQ(fixture().data.profile.salt_transitions.size(), 1u);
+  EXPECT_EQ(fixture().data.profile.salt_transitions[0].below, "dihydrochloride");
   EXPECT_EQ(keys["Dose in water alone"].rfind("pH ", 0), 0u);
   // The recommended buffer is the first ok result of the screen, at its recommended strength
   // (the largest minimum over the criteria, rounded up), and the recipe uses the same number.
@@ -357,8 +363,9 @@ TEST(Report, ProfileChartHasItsSeriesAxesAndMarks) {
   EXPECT_EQ(lines[1], "pHmax " + fixed(fixture().data.profile.ph_max[0].pH, 2) + " (hydrochloride)");
   EXPECT_EQ(lines[2].rfind("dose 2mg/mL (hydrochloride)", 0), 0u) << lines[2];
   const auto bands = chart.select_nodes(".//g[@class='band']");
-  ASSERT_EQ(bands.size(), 1u);
-  EXPECT_STREQ(bands[0].node().attribute("data-label").value(), "hydrochloride limits");
+  ASSERT_EQ(bands.size(), 2u);  // the dihydrochloride in strong acid, then the hydrochloride
+  EXPECT_STREQ(bands[0].node().attribute("data-label").value(), "dihydrochloride limits");
+  EXPECT_STREQ(bands[1].node().attribute("data-label").value(), "hydrochloride limits");
   EXPECT_TRUE(chart.child("title") && chart.child("desc"));
 }
 

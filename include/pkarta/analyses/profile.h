@@ -48,6 +48,9 @@ struct SolubilityAtPh {
   /// over Ksp (> 1: the salt limits); 0 when its counterion is absent. For a compound without a
   /// net-neutral form: the ion product over Ksp in the state reported (1 for the limiting salt).
   std::vector<double> salt_saturation_at_free;
+  /// For each compound salt: the dissolved drug were that salt the limiting solid (mol/L; 0
+  /// where the salt does not limit). Where two salts limit, the lower one is the profile's.
+  std::vector<double> salt_limited_mol_per_L;
   bool capped = false;                      ///< solubility above kSolubilityCap_mol_per_L
 };
 
@@ -120,6 +123,16 @@ struct PhMax {
   bool on_profile = true;
 };
 
+/// Where the profile's limiting solid changes from one salt to another (for example a
+/// dihydrochloride below and a hydrochloride above): both salts coexist with the solution
+/// there, at the free form's undersaturation.
+struct SaltTransition {
+  std::string below;                  ///< the salt limiting on the acid (low-pH) side
+  std::string above;                  ///< the salt limiting on the high-pH side
+  double pH = 0.0;                    ///< refined to 1e-9 pH
+  double solubility_mol_per_L = 0.0;  ///< where both salts coexist
+};
+
 /// A salt's Ksp derived from its solubility in water (docs/model.md, "Salts").
 struct DerivedKsp {
   std::string salt;
@@ -145,6 +158,7 @@ struct Profile {
   std::vector<double> pka_at_temperature;     ///< thermodynamic pKa at the run temperature
   std::vector<ProfilePoint> points;
   std::vector<PhMax> ph_max;
+  std::vector<SaltTransition> salt_transitions;  ///< salt-to-salt changes along the profile
   std::vector<DerivedKsp> derived_ksp;
   std::vector<std::string> notes;
   std::vector<std::string> warnings;

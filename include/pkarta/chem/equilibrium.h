@@ -183,6 +183,12 @@ class EquilibriumModel {
   /// Species fractions of system k (drug: k = -1) at pH under current coefficients.
   void fractions(int system, double pH, double* alpha) const;
 
+  /// The drug's solubility at pH, mol/L, with every counterion at its total in the mixture and
+  /// the current activity coefficients: the least of the free form's S0/alpha_n and each model
+  /// salt's (Ksp'/x^n)^(1/m)/alpha_j. `limiting` (may be null) gets -1 for the free form, the
+  /// compound's salt index for a salt, or -2 when nothing limits (infinity returned).
+  double solubility_limit(double pH, int* limiting) const;
+
   int num_systems() const { return static_cast<int>(systems_.size()); }
   /// Model salts (those whose counterion is present): the compound's index of each.
   int num_salts() const { return static_cast<int>(salts_.size()); }
