@@ -37,6 +37,13 @@ double dose_conc_mol_per_L(const Library& library, const Compound& compound, con
   return s && s->drug_count != 1 ? s->drug_count * units : units;
 }
 
+double dose_conc_mol_per_L(const Library& library, const Compound& compound, const std::string& form,
+                           const Amount& amount, double temperature_C, DoseBasis basis) {
+  if (basis == DoseBasis::kFormWeighed) return dose_conc_mol_per_L(library, compound, form, amount, temperature_C);
+  form_molar_mass(compound, form, library);  // the form must exist
+  return amount.to_mol_per_L(compound.molar_mass_g_per_mol, temperature_C);
+}
+
 void add_drug(Mixture& mixture, const Library& library, const Compound& compound,
               double dose_mol_per_L, const std::string& form) {
   DrugAmount d;

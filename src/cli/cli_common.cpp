@@ -147,10 +147,24 @@ void add_formulation_options(po::options_description& desc, FormulationOptions& 
       ("compound", po::value(&f.compound_file), "compound XML file")
       ("dose", po::value(&f.dose), "dose as an amount of the form weighed, e.g. 5mg/mL or 10mM")
       ("form", po::value(&f.form)->default_value("free"), "form of the drug: free or a salt id")
+      ("dose-as", po::value(&f.dose_as)->default_value("weighed"),
+       "weighed: --dose is of the form weighed; free: of its free-form equivalent")
       ("add", po::value(&f.adds)->composing(), "reagent and amount, e.g. KH2PO4=25mM; may repeat")
       ("medium", po::value(&f.medium), "library medium to start from (e.g. saline-0.9)")
       ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C (mix: a list such as 5,25,37 compares them)")
       ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)");
+}
+
+DoseBasis option_dose_basis(const std::string& text) {
+  if (text == "weighed") return DoseBasis::kFormWeighed;
+  if (text == "free" || text == "free-form") return DoseBasis::kFreeForm;
+  throw InputError(SourceLocation{"--dose-as", 0, 0},
+                   "expected weighed (the dose is of the form weighed) or free (the dose is its "
+                   "free-form equivalent), got \"" + text + "\"");
+}
+
+std::string dose_basis_note(DoseBasis basis, const std::string& form) {
+  return basis == DoseBasis::kFreeForm && form != "free" ? " (as free form)" : "";
 }
 
 namespace {
@@ -195,11 +209,12 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
   }
   if (!f.compound_file.empty()) {
     if (f.dose.empty()) throw InputError(SourceLocation{"--dose", 0, 0}, "--compound needs --dose");
+    const DoseBasis basis = option_dose_basis(f.dose_as);
     const Compound c = load_compound(f.compound_file, library);
     const Amount dose = option_amount("--dose", f.dose);
     double conc;
     try {
-      conc = dose_conc_mol_per_L(library, c, f.form, dose, m.temperature_C);
+      conc = dose_conc_mol_per_L(library, c, f.form, dose, m.temperature_C, basis);
       add_drug(m, library, c, conc, f.form);
     } catch (const InputError& e) {
       throw InputError(SourceLocation{e.where().file.empty() ? "--form" : e.where().file,
@@ -207,7 +222,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
                        e.message());
     }
     check_concentration("--dose", "the dose of " + c.id, f.dose, conc);
-    if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + f.dose);
+    if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + f.dose + dose_basis_note(basis, f.form));
     if (compound_out) *compound_out = c;
   } else if (!f.dose.empty()) {
     throw InputError(SourceLocation{"--dose", 0, 0}, "--dose needs --compound");

@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "pkarta/chem/equilibrium.h"
+#include "pkarta/chem/mixture_builder.h"
 #include "pkarta/chem/model.h"
 #include "pkarta/chem/units.h"
 
@@ -65,12 +66,18 @@ struct FormulationOptions {
   std::string compound_file;
   std::string dose;
   std::string form = "free";
+  std::string dose_as = "weighed";  ///< --dose-as: weighed | free (see DoseBasis)
   std::vector<std::string> adds;
   std::string medium;
   std::string temperature = "25";
   bool ideal = false;
 };
 void add_formulation_options(po::options_description& desc, FormulationOptions& f);
+/// Reads --dose-as: "weighed" (the amount is of the form weighed) or "free" (its free-form
+/// equivalent); anything else is an InputError naming the option.
+DoseBasis option_dose_basis(const std::string& text);
+/// " (as free form)" when the dose is stated as the free-form equivalent of a salt, else "".
+std::string dose_basis_note(DoseBasis basis, const std::string& form);
 /// Builds the mixture; `inputs` receives a readable list of the contents.
 Mixture build_formulation(const FormulationOptions& f, const Library& library,
                           std::vector<std::string>* inputs, Compound* compound_out = nullptr);

@@ -13,7 +13,7 @@ namespace pkarta::cli {
 int run_recipe(const Args& args) {
   return guarded([&] {
     CommonOptions common;
-    std::string buffer, ph, conc, volume = "1L", temp = "25", reagents, compound, dose, form = "free", preparation = "premade";
+    std::string buffer, ph, conc, volume = "1L", temp = "25", reagents, compound, dose, form = "free", dose_as = "weighed", preparation = "premade";
     bool isotonic = false, titrant = false;
     po::options_description desc("recipe options");
     desc.add_options()
@@ -29,6 +29,8 @@ int run_recipe(const Args& args) {
         ("compound", po::value(&compound), "compound XML file: the recipe of the formulation with its dose")
         ("dose", po::value(&dose), "dose as an amount of the form weighed, e.g. 5mg/mL (with --compound)")
         ("form", po::value(&form)->default_value("free"), "form of the drug weighed: free or a salt id")
+      ("dose-as", po::value(&dose_as)->default_value("weighed"),
+       "weighed: --dose is of the form weighed; free: of its free-form equivalent")
         ("preparation", po::value(&preparation)->default_value("premade"),
          "premade: buffer made at the pH, drug dissolved in it; adjusted: buffer reagent and drug "
          "dissolved, pH brought to target with the titrant (with --compound)");
@@ -109,8 +111,9 @@ int run_recipe(const Args& args) {
       const Amount dose_amount = option_amount("--dose", dose);
       if (!(dose_amount.value > 0)) throw InputError(SourceLocation{"--dose", 0, 0}, "the dose must be > 0");
       double dose_mol = 0.0;
+      const DoseBasis basis = option_dose_basis(dose_as);
       try {
-        dose_mol = dose_conc_mol_per_L(lib, drug, form, dose_amount, o.temperature_C);
+        dose_mol = dose_conc_mol_per_L(lib, drug, form, dose_amount, o.temperature_C, basis);
       } catch (const InputError& e) {
         throw InputError(SourceLocation{"--form", 0, 0}, e.message());
       }

@@ -35,6 +35,8 @@ void add_report_options(po::options_description& desc, ReportOptions& r) {
       ("compound", po::value(&r.compound_file), "compound XML file")
       ("dose", po::value(&r.dose), "dose as an amount of the form weighed, e.g. 2mg/mL (draws the dose line)")
       ("form", po::value(&r.form)->default_value("free"), "form of the drug: free or a salt id")
+      ("dose-as", po::value(&r.dose_as)->default_value("weighed"),
+       "weighed: --dose is of the form weighed; free: of its free-form equivalent")
       ("target-ph", po::value(&r.target_ph), "pH the formulation must hold (buffer screen and recipe)")
       ("tolerance", po::value(&r.tolerance)->default_value("0.1"), "allowed pH drift after the dose")
       ("dose-mg", po::value(&r.dose_mg), "highest single dose in mg of the form, for the ICH M9 solubility class at 37 °C")
@@ -91,13 +93,14 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
   const Compound compound = load_compound(r.compound_file, library);
   if (!r.dose.empty()) {
     const Amount dose = option_amount("--dose", r.dose);
+    const DoseBasis basis = option_dose_basis(r.dose_as);
     try {
-      req.dose_mol_per_L = dose_conc_mol_per_L(library, compound, r.form, dose, req.temperature_C);
+      req.dose_mol_per_L = dose_conc_mol_per_L(library, compound, r.form, dose, req.temperature_C, basis);
     } catch (const InputError& e) {
       throw InputError(SourceLocation{"--form", 0, 0}, e.message());
     }
     if (!(req.dose_mol_per_L > 0)) throw InputError(SourceLocation{"--dose", 0, 0}, "the dose must be above 0");
-    req.dose_text = r.dose;
+    req.dose_text = r.dose + dose_basis_note(basis, r.form);
   } else if (r.form != "free") {
     form_molar_mass(compound, r.form, library);  // an unknown form is an error even without a dose
   }

@@ -14,6 +14,7 @@ struct ReportOptions {
   std::string compound_file;
   std::string dose;
   std::string form = "free";
+  std::string dose_as = "weighed";    ///< weighed | free (the dose as free-form equivalent)
   std::string target_ph;
   std::string tolerance = "0.1";
   std::string route = "any";

@@ -103,7 +103,7 @@ int run_screen(const Args& args) {
   return guarded([&] {
     CommonOptions common;
     std::vector<std::string> compounds;
-    std::string dose, form = "free", target, tolerance = "0.1", buffers = "all", route = "any",
+    std::string dose, form = "free", dose_as = "weighed", target, tolerance = "0.1", buffers = "all", route = "any",
                 temp = "25", dose_range, threads = "0", uncertainty = "0", seed = "1",
                 preparation = "premade", challenge = "1mM", min_capacity, storage = "5,40", max_drift, round;
     po::options_description desc("screen options");
@@ -112,6 +112,8 @@ int run_screen(const Args& args) {
          "compound XML file, or a folder of them; may repeat (batch)")
         ("dose", po::value(&dose), "dose as an amount of the form weighed, e.g. 5mg/mL or 10mM")
         ("form", po::value(&form)->default_value("free"), "form of the drug: free or a salt id")
+      ("dose-as", po::value(&dose_as)->default_value("weighed"),
+       "weighed: --dose is of the form weighed; free: of its free-form equivalent")
         ("target-ph", po::value(&target), "pH to hold, 0-14")
         ("tolerance", po::value(&tolerance)->default_value("0.1"), "allowed pH drift after the dose, > 0")
         ("buffers", po::value(&buffers)->default_value("all"), "all, or buffer ids separated by commas")
@@ -242,12 +244,13 @@ int run_screen(const Args& args) {
 
     // Every input is read and checked before any work starts.
     std::vector<ScreenJob> jobs;
+    const DoseBasis basis = option_dose_basis(dose_as);
     for (const std::string& path : compound_paths(compounds)) {
       ScreenJob job;
       job.compound = load_compound(path, lib);
       job.form = form;
       try {
-        job.dose_mol_per_L = dose_conc_mol_per_L(lib, job.compound, form, dose_amount, opt.temperature_C);
+        job.dose_mol_per_L = dose_conc_mol_per_L(lib, job.compound, form, dose_amount, opt.temperature_C, basis);
       } catch (const InputError& e) {
         throw InputError(SourceLocation{"--form", 0, 0}, path + ": " + e.message());
       }

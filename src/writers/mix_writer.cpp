@@ -90,6 +90,7 @@ void write_mix_json(const MixResult& r, std::ostream& out) {
     j["drug"] = {{"dose_mol_per_L", e.drug->dose_mol_per_L},
                  {"dissolved_mol_per_L", e.drug->dissolved_mol_per_L},
                  {"dissolved_mg_per_mL", e.drug->dissolved_mg_per_mL},
+                 {"dissolved_mg_per_mL_as_free_form", e.drug->dissolved_mg_per_mL},
                  {"solid", e.drug->solid},
                  {"saturation_ratio", e.drug->saturation_ratio}};
   } else {

@@ -207,4 +207,27 @@ TEST(Schema, ShippedFilesValidateAgainstTheXsd) {
   EXPECT_FALSE(valid("compound.xsd", broken));
 }
 
+// A label claim "equivalent to 2 mg/mL of the base" (common practice for salts): with
+// --dose-as free the amount converts with the free form's molar mass (demo base 311.4 g/mol,
+// invented), otherwise with the salt's (hydrochloride 347.9 g/mol); the chloride follows the
+// drug one to one either way.
+TEST(Cli, DoseAsFreeFormEquivalent) {
+  const RunResult weighed = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --format json");
+  const RunResult free = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --dose-as free --format json");
+  ASSERT_EQ(weighed.code, 0) << weighed.err;
+  ASSERT_EQ(free.code, 0) << free.err;
+  auto number_after = [](const std::string& json, const std::string& key) {
+    const std::size_t at = json.find("\"" + key + "\":");
+    return at == std::string::npos ? -1.0 : std::strtod(json.c_str() + at + key.size() + 3, nullptr);
+  };
+  EXPECT_NEAR(number_after(weighed.out, "dose_mol_per_L"), 2.0 / 347.9, 1e-9);
+  EXPECT_NEAR(number_after(free.out, "dose_mol_per_L"), 2.0 / 311.4, 1e-9);
+  EXPECT_NEAR(number_after(free.out, "dissolved_mg_per_mL_as_free_form"), 2.0, 1e-9);
+  const RunResult text = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --dose-as free");
+  EXPECT_NE(text.out.find("hydrochloride 2mg/mL (as free form)"), std::string::npos) << text.out;
+  const RunResult bad = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --dose-as base");
+  EXPECT_EQ(bad.code, 2);
+  EXPECT_NE(bad.err.find("--dose-as"), std::string::npos) << bad.err;
+}
+
 }  // namespace

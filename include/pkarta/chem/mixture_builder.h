@@ -28,6 +28,15 @@ void add_medium(Mixture& mixture, const Library& library, const std::string& med
 double dose_conc_mol_per_L(const Library& library, const Compound& compound, const std::string& form,
                            const Amount& amount, double temperature_C);
 
+/// How a dose is stated: as an amount of the form weighed (the default), or as its free-form
+/// equivalent, the common label claim "equivalent to 2 mg/mL of the base" (the amount then
+/// converts with the free form's molar mass, whatever salt is weighed).
+enum class DoseBasis { kFormWeighed, kFreeForm };
+
+/// The drug's total in mol/L for an amount stated on `basis` (see above).
+double dose_conc_mol_per_L(const Library& library, const Compound& compound, const std::string& form,
+                           const Amount& amount, double temperature_C, DoseBasis basis);
+
 /// Adds the drug at a dose in a form: the drug total, plus the salt's counterion (n/m of the
 /// dose for an m:n salt).
 void add_drug(Mixture& mixture, const Library& library, const Compound& compound,
