@@ -248,6 +248,9 @@ SolubilityAtPh SolubilityScanner::Impl::at(double pH) {
 
   // Ideal Henderson-Hasselbalch curve: S0 * sum_j alpha_j / alpha_n with thermodynamic Ka.
   ideal.fractions(-1, pH, alpha);
+  out.ideal_solubility_unbounded_mol_per_L =
+      jn >= 0 && alpha[jn] > 0 ? s0 / alpha[jn] : std::numeric_limits<double>::infinity();
+  out.ideal_above_cap = !(out.ideal_solubility_unbounded_mol_per_L < kSolubilityCap_mol_per_L);
   out.ideal_solubility_mol_per_L = jn >= 0 ? std::min(s0 / alpha[jn], kSolubilityCap_mol_per_L)
                                            : kSolubilityCap_mol_per_L;
   out.salt_saturation_at_free.assign(salts.size(), 0.0);
@@ -555,26 +558,18 @@ Profile compute_profile(const Compound& compound, const Library& library,
     p.points.push_back(std::move(pt));
   }
 
-  // pHmax: sign changes of log(saturation ratio at free-form saturation) on a scan of at most
-  // 0.05 pH spacing, refined by Brent's method.
-  const double lo = values.front(), hi = values.back();
+  // pHmax: a property of the compound in the medium, so found over the whole aqueous range
+  // pH 0-14 whatever the grid shown: sign changes of log(saturation ratio at free-form
+  // saturation) on a scan of 0.05 pH spacing, refined by Brent's method.
+  const double lo = kPhMaxScanFrom, hi = kPhMaxScanTo;
   if (jn >= 0 && !compound.salts.empty()) {
     std::vector<double> scan_ph;
     std::vector<std::vector<double>> scan_ratio;
-    bool fine = true;
-    for (std::size_t i = 1; i < values.size(); ++i) fine = fine && values[i] - values[i - 1] <= 0.05 + 1e-9;
-    if (fine) {
-      for (const ProfilePoint& pt : p.points) {
-        scan_ph.push_back(pt.pH);
-        scan_ratio.push_back(pt.salt_saturation_at_free);
-      }
-    } else {
-      const int m = std::max(1, static_cast<int>(std::ceil((hi - lo) / 0.05 - 1e-9)));
-      for (int i = 0; i <= m; ++i) {
-        const double x = lo + (hi - lo) * i / m;
-        scan_ph.push_back(x);
-        scan_ratio.push_back(scanner.at(x).salt_saturation_at_free);
-      }
+    const int m = static_cast<int>(std::lround((hi - lo) / 0.05));
+    for (int i = 0; i <= m; ++i) {
+      const double x = lo + (hi - lo) * i / m;
+      scan_ph.push_back(x);
+      scan_ratio.push_back(scanner.at(x).salt_saturation_at_free);
     }
     auto lg = [](double r) { return std::log(std::max(r, 1e-300)); };
     for (std::size_t k = 0; k < compound.salts.size(); ++k) {

@@ -391,7 +391,7 @@ double EquilibriumModel::solubility_limit(double pH, int* limiting) const {
   int which = -2;
   if (has_drug_) {
     const double h = std::pow(10.0, -pH);
-    double alpha[kMaxPka + 1], zb, z2, kq[kMaxSalts];
+    double alpha[kMaxPka + 1], zb, z2, kq[kMaxSalts] = {};
     moments(drug_, h, alpha, &zb, &z2);
     if (drug_neutral_ >= 0 && std::isfinite(s0_) && alpha[drug_neutral_] > 0) {
       best = s0_ / alpha[drug_neutral_];

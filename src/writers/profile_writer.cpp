@@ -188,7 +188,13 @@ nlohmann::ordered_json profile_json(const Profile& p) {
     pts.push_back({{"pH", pt.pH},
                    {"solubility_mol_per_L", pt.solubility_mol_per_L},
                    {"solubility_mg_per_mL", pt.solubility_mg_per_mL},
-                   {"ideal_solubility_mol_per_L", pt.ideal_solubility_mol_per_L},
+                   // The Henderson-Hasselbalch value itself, never held at the cap (null
+                   // where it is infinite); the flag says it exceeds any real solution.
+                   {"ideal_solubility_mol_per_L",
+                    std::isfinite(pt.ideal_solubility_unbounded_mol_per_L)
+                        ? nlohmann::ordered_json(pt.ideal_solubility_unbounded_mol_per_L)
+                        : nlohmann::ordered_json(nullptr)},
+                   {"ideal_solubility_above_cap", pt.ideal_above_cap},
                    {"limiting_solid", pt.limiting_solid},
                    {"ionic_strength_mol_per_L", pt.ionic_strength_mol_per_L},
                    {"fractions", pt.fractions},

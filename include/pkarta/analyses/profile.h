@@ -39,6 +39,11 @@ struct SolubilityAtPh {
   double pH = 7.0;
   double solubility_mol_per_L = 0.0;        ///< total dissolved drug
   double ideal_solubility_mol_per_L = 0.0;  ///< Henderson-Hasselbalch: S0 sum_j alpha_j/alpha_n, activities 1
+                                            ///< (held at kSolubilityCap_mol_per_L for charts)
+  /// The same without the cap: it may exceed any real solution (or be infinite where the
+  /// neutral fraction underflows); ideal_above_cap says it lies above the cap.
+  double ideal_solubility_unbounded_mol_per_L = 0.0;
+  bool ideal_above_cap = false;
   std::string limiting_solid = "free";      ///< "free", a salt id, or "none" (nothing limits)
   double ionic_strength_mol_per_L = 0.0;
   std::vector<double> fractions;            ///< species fractions j = 0..n at this pH
@@ -53,6 +58,11 @@ struct SolubilityAtPh {
   std::vector<double> salt_limited_mol_per_L;
   bool capped = false;                      ///< solubility above kSolubilityCap_mol_per_L
 };
+
+/// pHmax is searched over this range whatever the grid shown (the aqueous pH range, common
+/// practice).
+inline constexpr double kPhMaxScanFrom = 0.0;
+inline constexpr double kPhMaxScanTo = 14.0;
 
 /// Solubilities above this are reported at the cap (no solid limits; outside any real medium).
 inline constexpr double kSolubilityCap_mol_per_L = 10.0;
