@@ -14,8 +14,11 @@
 #include <sstream>
 #include <string>
 #include <system_error>
+#include <vector>
 
+#include "cli_run.h"
 #include "pkarta/base/error.h"
+#include "pkarta/base/format.h"
 #include "pkarta/io/atomic_file.h"
 
 namespace pkarta {
@@ -145,6 +148,112 @@ TEST(SafeFiles, StandardOutputOnAFullDeviceIsAFailureWithAMessage) {
     EXPECT_EQ(r.code, 1) << args << "\n" << r.err;
     EXPECT_NE(r.err.find("cannot write the output to standard output"), std::string::npos) << args << "\n" << r.err;
   }
+}
+
+// CSV formula injection (OWASP, "CSV Injection"): a text cell a spreadsheet would evaluate
+// (it starts with '=', '+', '-', '@', tab or CR) is written with a leading single quote;
+// numbers, negative ones included, stay numbers.
+TEST(SafeFiles, CsvCellsThatLookLikeFormulasAreNeutralised) {
+  EXPECT_EQ(csv_field("=HYPERLINK(\"x\")"), "\"'=HYPERLINK(\"\"x\"\")\"");
+  EXPECT_EQ(csv_field("@SUM(A1)"), "'@SUM(A1)");
+  EXPECT_EQ(csv_field("+A1"), "'+A1");
+  EXPECT_EQ(csv_field("-A1"), "'-A1");
+  EXPECT_EQ(csv_field("\tx"), "'\tx");
+  EXPECT_EQ(csv_field("\rx"), "\"'\rx\"");
+  EXPECT_EQ(csv_field("-"), "'-");
+  EXPECT_EQ(csv_field("-1e"), "'-1e");
+  for (const char* number : {"-0.25", "1e-3", "-1", "+3", "-1.5E+07", "0", "-.5", "7."}) {
+    EXPECT_EQ(csv_field(number), number);
+  }
+  EXPECT_EQ(csv_field("phosphate H2A-"), "phosphate H2A-");  // only the first character counts
+  EXPECT_EQ(csv_field("a=b"), "a=b");
+}
+
+// Splits RFC 4180 CSV text into cells (quoted fields may hold commas, quotes and line breaks).
+std::vector<std::string> csv_cells(const std::string& text) {
+  std::vector<std::string> cells;
+  std::string cell;
+  bool quoted = false, in_cell = false;
+  for (std::size_t i = 0; i < text.size(); ++i) {
+    const char c = text[i];
+    if (quoted) {
+      if (c == '"' && i + 1 < text.size() && text[i + 1] == '"') {
+        cell += '"';
+        ++i;
+      } else if (c == '"') {
+        quoted = false;
+      } else {
+        cell += c;
+      }
+    } else if (c == '"' && cell.empty()) {
+      quoted = in_cell = true;
+    } else if (c == ',' || c == '\n') {
+      cells.push_back(cell);
+      cell.clear();
+      in_cell = false;
+    } else if (c != '\r' || (i + 1 < text.size() && text[i + 1] != '\n')) {
+      cell += c;
+      in_cell = true;
+    }
+  }
+  if (in_cell || !cell.empty()) cells.push_back(cell);
+  return cells;
+}
+
+// Every cell of `csv` that starts like a formula is a plain number; returns the offenders.
+std::string formula_cells(const std::string& csv) {
+  std::string bad;
+  for (const std::string& c : csv_cells(csv)) {
+    if (!c.empty() && csv_formula_like(c)) bad += "[" + c + "] ";
+  }
+  return bad;
+}
+
+TEST(SafeFiles, NamesAndIdsStartingLikeFormulasAreNeutralisedInEveryCsv) {
+  // The compound id, its name and a salt id start with '=' and '@'; the reader accepts them.
+  const std::string compound = pkarta_test::write_file(
+      "formula-compound.xml",
+      "<compound id='=cmd' name='@SUM(A1)' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n <salt id='@hcl' counterion='Cl-' ksp='1e-3'/>\n"
+      " <measured-solubility><point pH='2' value='3' unit='mg/mL'/><point pH='7' value='20' unit='ug/mL'/>"
+      "<point pH='9' value='1.2' unit='ug/mL'/></measured-solubility>\n</compound>\n");
+  struct Run {
+    std::string args, expect;
+  };
+  const Run runs[] = {
+      {"mix --compound " + compound + " --dose 1mg/mL --add KH2PO4=25mM --format csv", "'=cmd HA+,'=cmd,1,"},
+      {"profile --compound " + compound + " --format csv", ",'@hcl,"},
+      {"screen --compound " + compound + " --dose 1mg/mL --target-ph 6 --format csv", "'=cmd"},
+      {"fit --compound " + compound + " --params s0 --format csv", "log10_S0_mol_per_L"},
+  };
+  for (const Run& r : runs) {
+    const pkarta_test::RunResult out = pkarta_test::run(r.args);
+    ASSERT_EQ(out.code, 0) << r.args << "\n" << out.err;
+    EXPECT_NE(out.out.find(r.expect), std::string::npos) << r.args << "\n" << out.out;
+    EXPECT_EQ(formula_cells(out.out), "") << r.args;
+  }
+  // Negative numbers stay numbers: the charge of a phosphate species.
+  const pkarta_test::RunResult mix = pkarta_test::run("mix --add KH2PO4=25mM --add Na2HPO4=25mM --format csv");
+  ASSERT_EQ(mix.code, 0) << mix.err;
+  EXPECT_NE(mix.out.find("phosphate HA2-,phosphate,-2,"), std::string::npos) << mix.out;
+  // The report's CSV tables.
+  const std::string html = pkarta_test::temp_dir() + "/formula-report.html";
+  const pkarta_test::RunResult rep =
+      pkarta_test::run("report --compound " + compound + " --dose 1mg/mL --target-ph 6 -o " + html);
+  ASSERT_EQ(rep.code, 0) << rep.err;
+  const fs::path tables = pkarta_test::temp_dir() + "/formula-report";
+  const std::string compound_csv = slurp((tables / "compound.csv").string());
+  EXPECT_NE(compound_csv.find("id,'=cmd"), std::string::npos) << compound_csv;
+  EXPECT_NE(compound_csv.find("name,'@SUM(A1)"), std::string::npos) << compound_csv;
+  int tables_read = 0;
+  for (const auto& e : fs::directory_iterator(tables)) {
+    if (e.path().extension() != ".csv") continue;
+    ++tables_read;
+    EXPECT_EQ(formula_cells(slurp(e.path().string())), "") << e.path();
+  }
+  EXPECT_GE(tables_read, 5);
+  // The text output is not CSV: the id is shown as written.
+  EXPECT_NE(pkarta_test::run("mix --compound " + compound + " --dose 1mg/mL").out.find("=cmd HA+"), std::string::npos);
 }
 
 }  // namespace
