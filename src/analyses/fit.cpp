@@ -175,6 +175,7 @@ std::vector<FitPoint> fit_points_from_compound(const Compound& compound) {
     p.pH = m.pH;
     p.solubility_mol_per_L = m.solubility_mol_per_L;
     p.temperature_C = m.temperature_C;
+    p.log10_sd = m.log10_sd;
     p.where = m.where;
     out.push_back(p);
   }
@@ -552,6 +553,17 @@ FitResult fit_all(const Compound& compound, const Library& library, const std::v
 FitResult fit_solubility(const Compound& compound, const Library& library,
                          const std::vector<FitPoint>& points, std::vector<FitParameter> parameters,
                          const FitOptions& options) {
+  // Points given through the API are checked as the readers check them: a solubility that
+  // underflows or overflows, or a degenerate weight, would give an infinite rms.
+  for (const FitPoint& pt : points) {
+    if (const std::string why = measured_solubility_problem(pt.solubility_mol_per_L); !why.empty()) {
+      throw InputError(pt.where, "measured solubility " + why);
+    }
+    if (!(pt.log10_sd == 0.0 || (pt.log10_sd >= kMinFitLog10Sd && pt.log10_sd <= 5.0))) {
+      throw InputError(pt.where, "the log10 sd of a measured point is " + format_g(pt.log10_sd, 3) +
+                                     ", expected 0 (unweighted) or 0.0001 to 5");
+    }
+  }
   const int m = static_cast<int>(points.size());
   const int n = static_cast<int>(parameters.size());
   std::string err;

@@ -16,6 +16,7 @@
 #include "pkarta/io/text_file.h"
 #include "pkarta/chem/formula.h"
 #include "pkarta/chem/units.h"
+#include "pkarta/io/solubility_csv.h"
 
 namespace pkarta {
 
@@ -597,7 +598,7 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
           r.unknown_element(p);
           continue;
         }
-        r.check_attributes(p, {"pH", "value", "unit", "temperature"});
+        r.check_attributes(p, {"pH", "value", "unit", "temperature", "log-sd"});
         MeasuredPoint m;
         m.where = r.at(p);
         m.pH = r.in_range(p, "pH", r.number(p, "pH"), -1.0, 15.0);
@@ -606,7 +607,14 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         Amount a = unit_attribute(r, p);
         a.value = v;
         m.temperature_C = r.temperature(p, "temperature", 25.0);
+        if (p.attribute("log-sd")) {
+          // As the CSV's log_sd column: 1/sd^2 must stay a finite weight.
+          m.log10_sd = r.in_range(p, "log-sd", r.number(p, "log-sd"), kMinFitLog10Sd, 5.0);
+        }
         m.solubility_mol_per_L = a.to_mol_per_L(c.molar_mass_g_per_mol, m.temperature_C);
+        if (const std::string why = measured_solubility_problem(m.solubility_mol_per_L); !why.empty()) {
+          r.fail(p, "measured solubility " + r.required(p, "value") + " " + r.required(p, "unit") + " " + why);
+        }
         c.measured.push_back(m);
       }
     } else {

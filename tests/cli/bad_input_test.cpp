@@ -14,7 +14,7 @@
 namespace {
 
 struct Case {
-  const char* kind;     // "option", "compound file", "library file", "data"
+  const char* kind;     // "option", "compound file", "library file", "data file", "data"
   const char* file;     // text of {F}, or nullptr
   const char* args;     // command line; {F} is replaced by the file's path
   int code;             // expected exit code
@@ -122,6 +122,17 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       library(" <ion id='Q+' charge='1.5' molar-mass='10'/>\n"),                      // 56
       library(" <reagent id='r' formula='Ca(OH'><gives ion='Ca2+'/></reagent>\n"),    // 57
       library(" <buffer id='b' system='phosphate' max-conc='5 mg/mL'/>\n"),           // 58
+      // measured points that underflow, overflow or weigh without limit (59..)
+      base_with(" <measured-solubility><point pH='2' value='1e-320' unit='ug/mL'/></measured-solubility>\n"),  // 59
+      base_with(" <measured-solubility><point pH='2' value='1e308' unit='%w/v'/></measured-solubility>\n"),  // 60
+      base_with(" <measured-solubility><point pH='2' value='1e-400' unit='mg/mL'/></measured-solubility>\n"),  // 61
+      base_with(" <measured-solubility><point pH='2' value='1e400' unit='mg/mL'/></measured-solubility>\n"),  // 62
+      base_with(" <measured-solubility><point pH='2' value='3' unit='mg/mL' log-sd='1e-300'/></measured-solubility>\n"),  // 63
+      "pH,value,unit,log_sd\n2,3,mg/mL,1e-300\n7,20,ug/mL,0.1\n",               // 64 CSV
+      "pH,value,unit\n2,1e-320,ug/mL\n7,20,ug/mL\n",                             // 65 CSV
+      "pH,value,unit\n2,1e308,%w/v\n7,20,ug/mL\n",                                // 66 CSV
+      "pH,value,unit\n2,1e400,mg/mL\n7,20,ug/mL\n",                               // 67 CSV
+      "pH,value,unit\n2,1e-400,mg/mL\n7,20,ug/mL\n",                              // 68 CSV
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -245,6 +256,22 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"library file", F(57), "check {F}", 2, "formula \"Ca(OH\": missing ')'"},
       {"library file", F(58), "check {F}", 2, "max-conc must be in M, mM or mol/kg"},
       {"library file", F(52), "mix --add NaCl=10mM --library {F}", 2, "beyond the 10 mol/L"},
+      // measured solubilities for the fit: every one must give a finite log10 S and weight
+      {"compound file", F(59), "check {F}", 2, ":4:23: measured solubility 1e-320 ug/mL underflows to 0 mol/L, expected 1e-15 to 10 mol/L"},
+      {"compound file", F(60), "check {F}", 2, ":4:23: measured solubility 1e308 %w/v overflows in mol/L"},
+      {"compound file", F(61), "check {F}", 2, ":4:23: attribute 'value' is out of the range of numbers: \"1e-400\""},
+      {"compound file", F(62), "check {F}", 2, ":4:23: attribute 'value' is out of the range of numbers: \"1e400\""},
+      {"compound file", F(63), "fit --compound {F} --params s0", 2, ":4:23: attribute 'log-sd' of <point> is 1e-300, expected 0.0001 to 5"},
+      {"data file", F(64), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:11: column 'log_sd' is 1e-300, expected 0.0001 to 5"},
+      {"data file", F(65), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: solubility 1e-320 ug/mL underflows to 0 mol/L"},
+      {"data file", F(66), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: solubility 1e308 %w/v overflows in mol/L"},
+      {"data file", F(67), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: column 'value' is out of the range of numbers: \"1e400\""},
+      {"data file", F(68), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: column 'value' is out of the range of numbers: \"1e-400\""},
       // data the model does not cover
       {"data", nullptr, "mix --add HCl=9M --add NaCl=9M", 1, "too concentrated for the model"},
   };

@@ -27,6 +27,10 @@ struct Amount {
 /// Throws InputError (without location; callers add it) naming the problem.
 Amount parse_amount(std::string_view text);
 
+/// The highest concentration of one reagent, dose or solubility the model covers, mol/L: the
+/// solver's pH bracket (-3 to 17) holds for totals up to this. More is a typing error.
+inline constexpr double kMaxConc_mol_per_L = 10.0;
+
 /// Parses a finite number (whole string, locale-independent). Throws InputError.
 double parse_number(std::string_view text, std::string_view what);
 
