@@ -4,6 +4,7 @@
 #include <Eigen/SVD>
 
 #include <algorithm>
+#include <charconv>
 #include <cctype>
 #include <cmath>
 #include <cstdio>
@@ -203,13 +204,16 @@ std::vector<FitParameter> parse_fit_parameters(const std::string& list, const Co
     } else if (it.rfind("pka", 0) == 0 && it.size() > 3 &&
                it.find_first_not_of("0123456789", 3) == std::string::npos) {
       const int n = static_cast<int>(compound.system.pkas.size());
-      const int k = std::atoi(it.c_str() + 3);
+      // The whole digit string is the index: "pka4294967297" is not pka1 (no wrap-around).
+      long long k = 0;
+      const auto [ptr, ec] = std::from_chars(it.data() + 3, it.data() + it.size(), k);
+      if (ec != std::errc() || ptr != it.data() + it.size()) k = -1;
       if (k < 1 || k > n) {
         throw InputError(at, "'" + raw + "': compound '" + compound.id + "' has " + std::to_string(n) +
                                  " pKa value" + (n == 1 ? "" : "s") + " (pka1" +
                                  (n > 1 ? "..pka" + std::to_string(n) : "") + ")");
       }
-      p = make_pka(compound, k - 1);
+      p = make_pka(compound, static_cast<int>(k - 1));
     } else if (it.rfind("ksp:", 0) == 0) {
       const std::string id = trim(raw.substr(4));
       int found = -1;

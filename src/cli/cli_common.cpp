@@ -90,6 +90,13 @@ void check_format(const std::string& format, bool allow_csv) {
                        std::string(allow_csv ? "csv or json" : "or json"));
 }
 
+void check_text_format_only(const std::string& command, const std::string& format) {
+  if (format == "text") return;
+  throw InputError(SourceLocation{"--format", 0, 0},
+                   "unknown format \"" + format + "\": " + command +
+                       " accepts only text (it writes HTML files with their CSV tables beside them)");
+}
+
 Amount option_amount(const std::string& option, const std::string& text) {
   try {
     return parse_amount(text);
@@ -117,7 +124,8 @@ long long option_count(const std::string& option, const std::string& text, doubl
                        const std::string& what) {
   const double v = option_number(option, text, lo, hi);
   if (v != std::floor(v)) {
-    throw InputError(SourceLocation{option, 0, 0}, "expected a whole number of " + what + ", got " + text);
+    throw InputError(SourceLocation{option, 0, 0},
+                     "expected a whole number" + (what.empty() ? std::string() : " of " + what) + ", got " + text);
   }
   return static_cast<long long>(v);
 }

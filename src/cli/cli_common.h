@@ -44,12 +44,17 @@ Library load_libraries(const CommonOptions& common);
 /// Checks --format; throws InputError naming the option.
 void check_format(const std::string& format, bool allow_csv = true);
 
+/// For commands whose results go to HTML and CSV files (report, demo): --format accepts only
+/// text, the summary on standard output; anything else is refused naming the option.
+void check_text_format_only(const std::string& command, const std::string& format);
+
 /// Amount from an option value; errors name the option.
 Amount option_amount(const std::string& option, const std::string& text);
 /// Number in [lo, hi] from an option value; errors name the option.
 double option_number(const std::string& option, const std::string& text, double lo, double hi);
 /// Temperature option (°C, -10..100).
-/// A whole number within [lo, hi] ("--threads 1.5" is refused, naming the option and `what`).
+/// A whole number within [lo, hi] ("--threads 1.5" is refused, naming the option and `what`,
+/// which may be empty).
 long long option_count(const std::string& option, const std::string& text, double lo, double hi,
                        const std::string& what);
 

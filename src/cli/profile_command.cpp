@@ -130,7 +130,7 @@ int run_profile(const Args& args) {
     const Compound c = load_compound(compound_file, lib);
 
     const int samples = static_cast<int>(option_count("--uncertainty", uncertainty, 0, 1e6, "samples"));
-    const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
+    const long long seed_value = option_count("--seed", seed, 0, 9.007199254740992e15, "");  // 1.5 is no seed
 
     const Profile p = compute_profile(c, lib, cond, grid, contents);
     ProfileBands bands;

@@ -217,7 +217,7 @@ int run_screen(const Args& args) {
       if (!(opt.round_step_mol_per_L > 0)) throw InputError(SourceLocation{"--round", 0, 0}, "the step must be > 0");
     }
     const int samples = static_cast<int>(option_count("--uncertainty", uncertainty, 0, 1e6, "samples"));
-    const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
+    const long long seed_value = option_count("--seed", seed, 0, 9.007199254740992e15, "");  // 1.5 is no seed
     BatchOptions batch;
     batch.threads = static_cast<int>(option_count("--threads", threads, 0, 1024, "threads"));
 

@@ -214,12 +214,9 @@ std::vector<FitPoint> parse_solubility_csv(const std::string& text_in, const std
     const CsvField& fu = fields[col_unit];
     Amount a;
     try {
-      if (fu.text.empty()) throw InputError("empty unit");
-      a = parse_amount("1" + fu.text);
+      a.unit = parse_unit(fu.text, "column 'unit'");  // as a compound file's 'unit' attribute
     } catch (const InputError& e) {
-      throw InputError(SourceLocation{name, line_no, fu.column},
-                       "column 'unit': unknown unit \"" + fu.text +
-                           "\" (expected e.g. M, mM, mg/mL, ug/mL, g/L)");
+      throw InputError(SourceLocation{name, line_no, fu.column}, e.message());
     }
     a.value = v;
     try {

@@ -221,21 +221,18 @@ void check_ascending(Reader& r, const std::vector<Pka>& pkas, const std::vector<
   }
 }
 
-// The 'unit' attribute alone (the value is in 'value'): parsed as the amount "1 UNIT", so the
-// unit text must not start like a number ("e3M" or "0mM" would silently read as M or mM).
+// The 'unit' attribute alone (the value is in 'value'); the solubility CSV reads its 'unit'
+// column with the same parse_unit, so both accept and refuse the same texts.
 Amount unit_attribute(Reader& r, const pugi::xml_node& n) {
   const std::string unit = r.required(n, "unit");
-  const std::size_t first = unit.find_first_not_of(" \t");
-  const char c = first == std::string::npos ? ' ' : unit[first];
-  if (std::isdigit(static_cast<unsigned char>(c)) || c == '.' || c == '+' || c == '-' || c == 'e' ||
-      c == 'E') {
-    r.fail(n, "attribute 'unit' is \"" + unit + "\", expected a unit alone such as mg/mL, ug/mL or mM");
-  }
+  Amount a;
+  a.value = 1.0;
   try {
-    return parse_amount("1" + unit);
+    a.unit = parse_unit(unit, "attribute 'unit'");
   } catch (const InputError& e) {
-    r.fail(n, "attribute 'unit': " + e.message());
+    r.fail(n, e.message());
   }
+  return a;
 }
 
 double formula_mass(Reader& r, const pugi::xml_node& n, const std::string& formula) {

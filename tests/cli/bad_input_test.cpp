@@ -133,6 +133,9 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       "pH,value,unit\n2,1e308,%w/v\n7,20,ug/mL\n",                                // 66 CSV
       "pH,value,unit\n2,1e400,mg/mL\n7,20,ug/mL\n",                               // 67 CSV
       "pH,value,unit\n2,1e-400,mg/mL\n7,20,ug/mL\n",                              // 68 CSV
+      // option and unit text that is not what it says (69..)
+      "pH,value,unit\n2,3,e3M\n7,20,ug/mL\n",                                      // 69 CSV
+      "pH,value,unit\n2,3,0mM\n7,20,ug/mL\n",                                      // 70 CSV
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -272,6 +275,26 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
        ":2:3: column 'value' is out of the range of numbers: \"1e400\""},
       {"data file", F(68), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
        ":2:3: column 'value' is out of the range of numbers: \"1e-400\""},
+      // numbers and units that wrap or are not what they say
+      {"option", nullptr, "fit --compound compounds/demo-base.xml --params pka4294967297", 2,
+       "--params: 'pka4294967297': compound 'demo-base' has 2 pKa values (pka1..pka2)"},
+      {"option", nullptr, "fit --compound compounds/demo-base.xml --params pka18446744073709551617", 2,
+       "--params: 'pka18446744073709551617': compound 'demo-base' has 2 pKa values"},
+      {"option", nullptr, "screen --compound compounds/demo-base.xml --dose 1mg/mL --target-ph 5 --threads 4294967297", 2,
+       "--threads: value 4294967297 is out of range, expected 0 to 1024"},
+      {"option", nullptr, "profile --compound compounds/demo-base.xml --uncertainty 10 --seed 1.5", 2,
+       "--seed: expected a whole number, got 1.5"},
+      {"option", nullptr, "profile --compound compounds/demo-base.xml --uncertainty 1e1.5", 2,
+       "--uncertainty: value is not a number: \"1e1.5\""},
+      {"option", nullptr, "report --compound compounds/demo-base.xml --format xml -o x.html", 2,
+       "--format: unknown format \"xml\": report accepts only text"},
+      {"option", nullptr, "report --compound compounds/demo-base.xml --format json -o x.html", 2,
+       "--format: unknown format \"json\": report accepts only text"},
+      {"option", nullptr, "demo --format csv", 2, "--format: unknown format \"csv\": demo accepts only text"},
+      {"data file", F(69), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:5: column 'unit' is \"e3M\", expected a unit alone such as mg/mL, ug/mL or mM"},
+      {"data file", F(70), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:5: column 'unit' is \"0mM\", expected a unit alone"},
       // data the model does not cover
       {"data", nullptr, "mix --add HCl=9M --add NaCl=9M", 1, "too concentrated for the model"},
   };
