@@ -121,6 +121,18 @@ std::vector<FitPoint> parse_solubility_csv(const std::string& text_in, const std
       static_cast<unsigned char>(text[1]) == 0xBB && static_cast<unsigned char>(text[2]) == 0xBF) {
     text.erase(0, 3);  // UTF-8 byte order mark
   }
+  if (const std::size_t bad = invalid_utf8_offset(text); bad != std::string_view::npos) {
+    int line = 1;
+    std::size_t start = 0;
+    for (std::size_t k = 0; k < bad; ++k) {
+      if (text[k] == '\n') {
+        ++line;
+        start = k + 1;
+      }
+    }
+    throw InputError(SourceLocation{name, line, static_cast<int>(bad - start) + 1},
+                     "invalid UTF-8; save the file as UTF-8 text");
+  }
   std::vector<FitPoint> out;
   std::istringstream in(text);
   std::string line;

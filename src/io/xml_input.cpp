@@ -27,6 +27,12 @@ extern const std::size_t kBuiltinLibraryXmlSize;
 
 namespace {
 
+std::string hex_byte(char c) {
+  static const char* const kDigits = "0123456789ABCDEF";
+  const auto u = static_cast<unsigned char>(c);
+  return std::string("0x") + kDigits[u >> 4] + kDigits[u & 15];
+}
+
 // Maps byte offsets to 1-based line and column.
 class Locator {
  public:
@@ -75,6 +81,13 @@ class Reader {
                          pugi::encoding_utf8);
     if (!r) {
       throw InputError(loc_.at(r.offset), std::string("malformed XML: ") + r.description());
+    }
+    // Well-formed XML may still hold bytes that are not UTF-8 (pugixml passes them through):
+    // refuse them where they are, before a name or id carries them into a report or JSON.
+    const std::size_t bad = invalid_utf8_offset(text);
+    if (bad != std::string_view::npos) {
+      throw InputError(loc_.at(static_cast<std::ptrdiff_t>(bad)),
+                       "invalid UTF-8 (byte " + hex_byte(text[bad]) + "); save the file as UTF-8 text");
     }
   }
   pugi::xml_node root(const char* expected) {

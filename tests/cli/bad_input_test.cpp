@@ -136,6 +136,19 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       // option and unit text that is not what it says (69..)
       "pH,value,unit\n2,3,e3M\n7,20,ug/mL\n",                                      // 69 CSV
       "pH,value,unit\n2,3,0mM\n7,20,ug/mL\n",                                      // 70 CSV
+      // bytes that are not UTF-8 in names and ids (71..)
+      "<compound id='x' name='bad\xff\xfename' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 71
+      "<compound id='x\xc3' name='n' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 72 cut sequence
+      "<compound id='x' name='\xc0\xafx' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 73 overlong
+      "<compound id='x' name='\xed\xa0\x80x' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 74 surrogate
+      base_with(" <salt id='h\xff" "cl' counterion='Cl-' ksp='1e-3'/>\n"),              // 75
+      library(" <ion id='Q\xff+' charge='1' molar-mass='10'/>\n"),                   // 76
+      library(" <medium id='m' name='sal\xe9ine'><add reagent='NaCl' amount='9g/L'/></medium>\n"),  // 77 Latin-1
+      "pH,value,unit,not\xff\n2,3,mg/mL,1\n7,20,ug/mL,1\n",                       // 78 CSV
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -295,6 +308,19 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
        ":2:5: column 'unit' is \"e3M\", expected a unit alone such as mg/mL, ug/mL or mM"},
       {"data file", F(70), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
        ":2:5: column 'unit' is \"0mM\", expected a unit alone"},
+      // names and ids that are not UTF-8: refused where they are, before any JSON or HTML
+      {"compound file", F(71), "check {F}", 2, ":1:27: invalid UTF-8 (byte 0xFF); save the file as UTF-8 text"},
+      {"compound file", F(71), "profile --compound {F} --format json", 2, ":1:27: invalid UTF-8 (byte 0xFF)"},
+      {"compound file", F(71), "mix --compound {F} --dose 1mg/mL --format json", 2, ":1:27: invalid UTF-8 (byte 0xFF)"},
+      {"compound file", F(71), "report --compound {F} -o never-written.html", 2, ":1:27: invalid UTF-8 (byte 0xFF)"},
+      {"compound file", F(72), "check {F}", 2, ":1:16: invalid UTF-8 (byte 0xC3)"},
+      {"compound file", F(73), "check {F}", 2, ":1:24: invalid UTF-8 (byte 0xC0)"},
+      {"compound file", F(74), "check {F}", 2, ":1:24: invalid UTF-8 (byte 0xED)"},
+      {"compound file", F(75), "check {F}", 2, ":4:13: invalid UTF-8 (byte 0xFF)"},
+      {"library file", F(76), "check {F}", 2, ":2:12: invalid UTF-8 (byte 0xFF)"},
+      {"library file", F(77), "mix --add NaCl=1mM --library {F} --format json", 2, ":2:26: invalid UTF-8 (byte 0xE9)"},
+      {"data file", F(78), "fit --compound compounds/demo-base.xml --params s0 --data {F} --format json", 2,
+       ":1:18: invalid UTF-8; save the file as UTF-8 text"},
       // data the model does not cover
       {"data", nullptr, "mix --add HCl=9M --add NaCl=9M", 1, "too concentrated for the model"},
   };

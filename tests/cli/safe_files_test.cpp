@@ -20,6 +20,7 @@
 #include "pkarta/base/error.h"
 #include "pkarta/base/format.h"
 #include "pkarta/io/atomic_file.h"
+#include "pkarta/io/text_file.h"
 
 namespace pkarta {
 namespace {
@@ -254,6 +255,44 @@ TEST(SafeFiles, NamesAndIdsStartingLikeFormulasAreNeutralisedInEveryCsv) {
   EXPECT_GE(tables_read, 5);
   // The text output is not CSV: the id is shown as written.
   EXPECT_NE(pkarta_test::run("mix --compound " + compound + " --dose 1mg/mL").out.find("=cmd HA+"), std::string::npos);
+}
+
+// Bytes that are not UTF-8 (RFC 3629) are found where they are; a compound file holding them
+// is refused before any HTML, CSV or JSON is written (JSON output once failed with an
+// internal error, and the HTML report was written with the bytes in it).
+TEST(SafeFiles, InvalidUtf8IsRefusedBeforeAnyOutputIsWritten) {
+  constexpr std::size_t kNone = std::string_view::npos;
+  EXPECT_EQ(invalid_utf8_offset("plain ASCII"), kNone);
+  EXPECT_EQ(invalid_utf8_offset("\xC2\xB5g/mL, 25 \xC2\xB0" "C, \xE2\x82\xAC, \xF0\x9F\x98\x80"), kNone);
+  EXPECT_EQ(invalid_utf8_offset("ab\xFF"), 2u);            // never a UTF-8 byte
+  EXPECT_EQ(invalid_utf8_offset("a\xC3"), 1u);             // sequence cut short
+  EXPECT_EQ(invalid_utf8_offset("a\xC3(x"), 1u);           // continuation missing
+  EXPECT_EQ(invalid_utf8_offset("\xC0\xAF"), 0u);          // overlong '/'
+  EXPECT_EQ(invalid_utf8_offset("\xE0\x80\xAF"), 0u);      // overlong, three bytes
+  EXPECT_EQ(invalid_utf8_offset("x\xED\xA0\x80"), 1u);     // surrogate U+D800
+  EXPECT_EQ(invalid_utf8_offset("\xF4\x90\x80\x80"), 0u);  // above U+10FFFF
+  EXPECT_EQ(invalid_utf8_offset("\x80"), 0u);              // lone continuation byte
+
+  const fs::path dir = fresh_dir();
+  const std::string compound = (dir / "latin1.xml").string();
+  std::ofstream(compound) << "<compound id='x' name='caf\xE9ine' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+                             " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n";
+  const std::string html = (dir / "report.html").string();
+  const pkarta_test::RunResult rep = pkarta_test::run("report --compound " + compound + " -o " + html);
+  EXPECT_EQ(rep.code, 2) << rep.err;
+  EXPECT_NE(rep.err.find(compound + ":1:27: invalid UTF-8 (byte 0xE9)"), std::string::npos) << rep.err;
+  EXPECT_EQ(files_in(dir), 1) << "the report or its tables were written";
+  for (const char* command : {"profile --format json", "profile --format csv", "check"}) {
+    const std::string cmd(command);
+    const std::string args = cmd.substr(0, cmd.find(' ')) == "check"
+                                 ? "check " + compound
+                                 : cmd.substr(0, cmd.find(' ')) + " --compound " + compound + cmd.substr(cmd.find(' '));
+    const pkarta_test::RunResult r = pkarta_test::run(args);
+    EXPECT_EQ(r.code, 2) << args << "\n" << r.err;
+    EXPECT_EQ(r.out, "") << args;
+    EXPECT_EQ(r.err.find("internal error"), std::string::npos) << args << "\n" << r.err;
+  }
+  fs::remove_all(dir);
 }
 
 }  // namespace
