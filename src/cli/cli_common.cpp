@@ -1,6 +1,8 @@
 #include "cli_common.h"
 
+#include <algorithm>
 #include <cctype>
+#include <cstdlib>
 #include <cmath>
 #include <filesystem>
 
@@ -176,18 +178,33 @@ std::string dose_basis_note(DoseBasis basis, const std::string& form) {
 }
 
 namespace {
-// The model covers totals up to 10 mol/L (the pH bracket of the solver); more of one
-// reagent than that is a typing error, not a solution.
-constexpr double kMaxConcMolPerL = 10.0;
-
+// The model covers totals up to 10 mol/L (kMaxConc_mol_per_L, the pH bracket of the solver);
+// more of one reagent than that is a typing error, not a solution.
 void check_concentration(const std::string& option, const std::string& what, const std::string& text,
                          double conc_mol_per_L) {
-  if (!(conc_mol_per_L <= kMaxConcMolPerL)) {
+  if (!(conc_mol_per_L <= kMaxConc_mol_per_L)) {
     throw InputError(SourceLocation{option, 0, 0}, what + " at " + text + " is " + sig(conc_mol_per_L, 3) +
                      " mol/L, beyond the 10 mol/L the model covers");
   }
 }
 }  // namespace
+
+void check_dose(const std::string& option, const Compound& compound, const std::string& text, double conc_mol_per_L) {
+  check_concentration(option, "the dose of " + compound.id, text, conc_mol_per_L);
+  // A highly charged drug needs as many equivalents of counterions: a permanent charge of 16
+  // at a few mol/L would need tens of mol/L of them (ionic strength above 1000 mol/L).
+  int z_max = 0;
+  for (int j = 0; j <= static_cast<int>(compound.system.pkas.size()); ++j) {
+    z_max = std::max(z_max, std::abs(compound.system.charge_of(j)));
+  }
+  const double equivalents = z_max * conc_mol_per_L;
+  if (!(equivalents <= kMaxConc_mol_per_L)) {
+    throw InputError(SourceLocation{option, 0, 0},
+                     "the dose of " + compound.id + " at " + text + " carries up to " + sig(equivalents, 3) +
+                         " mol/L of charge (species of charge " + std::to_string(z_max) + " at " +
+                         sig(conc_mol_per_L, 3) + " mol/L), beyond the 10 mol/L the model covers");
+  }
+}
 
 Mixture build_formulation(const FormulationOptions& f, const Library& library,
                           std::vector<std::string>* inputs, Compound* compound_out) {
@@ -229,7 +246,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
                                       e.where().line, e.where().column},
                        e.message());
     }
-    check_concentration("--dose", "the dose of " + c.id, f.dose, conc);
+    check_dose("--dose", c, f.dose, conc);
     if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + f.dose + dose_basis_note(basis, f.form));
     if (compound_out) *compound_out = c;
   } else if (!f.dose.empty()) {

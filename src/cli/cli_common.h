@@ -66,6 +66,10 @@ std::pair<std::string, std::string> split_assignment(const std::string& option, 
 /// Loads a compound file against a library, printing located warnings to stderr.
 Compound load_compound(const std::string& path, const Library& library);
 
+/// Refuses (InputError naming `option`) a dose above kMaxConc_mol_per_L (10 mol/L), or one
+/// whose most charged species would carry more than 10 mol/L of charge (|z| times the dose).
+void check_dose(const std::string& option, const Compound& compound, const std::string& text, double conc_mol_per_L);
+
 /// What `mix` and `dilute` share: the formulation options.
 struct FormulationOptions {
   std::string compound_file;

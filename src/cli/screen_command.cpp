@@ -254,6 +254,7 @@ int run_screen(const Args& args) {
       } catch (const InputError& e) {
         throw InputError(SourceLocation{"--form", 0, 0}, path + ": " + e.message());
       }
+      check_dose("--dose", job.compound, dose, job.dose_mol_per_L);
       jobs.push_back(std::move(job));
     }
     if (samples > 0 && jobs.size() != 1) {

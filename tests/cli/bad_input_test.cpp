@@ -149,6 +149,8 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       library(" <ion id='Q\xff+' charge='1' molar-mass='10'/>\n"),                   // 76
       library(" <medium id='m' name='sal\xe9ine'><add reagent='NaCl' amount='9g/L'/></medium>\n"),  // 77 Latin-1
       "pH,value,unit,not\xff\n2,3,mg/mL,1\n7,20,ug/mL,1\n",                       // 78 CSV
+      // extreme charge (79..)
+      "<compound id='q' name='q' molar-mass='300' permanent-charge='16'>\n <pka value='3' type='acid'/>\n</compound>\n",  // 79
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -321,6 +323,16 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"library file", F(77), "mix --add NaCl=1mM --library {F} --format json", 2, ":2:26: invalid UTF-8 (byte 0xE9)"},
       {"data file", F(78), "fit --compound compounds/demo-base.xml --params s0 --data {F} --format json", 2,
        ":1:18: invalid UTF-8; save the file as UTF-8 text"},
+      // valid-looking extremes: the 10 mol/L the model covers, in concentration and in charge
+      {"compound file", F(79), "mix --compound {F} --dose 1M", 2,
+       "--dose: the dose of q at 1M carries up to 16.0 mol/L of charge (species of charge 16 at 1.00 mol/L), beyond the 10 mol/L"},
+      {"compound file", F(79), "screen --compound {F} --dose 1M --target-ph 5", 2, "--dose: the dose of q at 1M carries up to 16.0 mol/L"},
+      {"compound file", F(79), "report --compound {F} --dose 1M -o never-written.html", 2, "--dose: the dose of q at 1M carries up to 16.0"},
+      {"compound file", F(79), "recipe --buffer phosphate --ph 7 --conc 50mM --compound {F} --dose 1M", 2, "--dose: the dose of q at 1M carries"},
+      {"option", nullptr, "classify --compound compounds/demo-base.xml --dose-mg 100 --volume-mL 1e-300", 2,
+       "--volume-mL: 100 mg in 1e-300 mL is 3.21e+299 mol/L, beyond the 10 mol/L the model covers"},
+      {"option", nullptr, "classify --compound compounds/demo-base.xml --dose-mg 4000 --volume-mL 1", 2,
+       "--volume-mL: 4000 mg in 1 mL is 12.8 mol/L, beyond the 10 mol/L"},
       // data the model does not cover
       {"data", nullptr, "mix --add HCl=9M --add NaCl=9M", 1, "too concentrated for the model"},
   };
