@@ -295,5 +295,36 @@ TEST(SafeFiles, InvalidUtf8IsRefusedBeforeAnyOutputIsWritten) {
   fs::remove_all(dir);
 }
 
+// Both writers keep a replaced file's mode and owner (one shared step). As root the file is
+// first given to another user; otherwise only the mode can be checked.
+TEST(SafeFiles, ReplacedFilesKeepTheirModeAndOwner) {
+  const fs::path dir = fresh_dir();
+  const std::string single = (dir / "fitted.xml").string();
+  const std::string main = (dir / "report.html").string();
+  std::ofstream(single) << "old";
+  std::ofstream(main) << "old report";
+  const bool root = geteuid() == 0;
+  const uid_t other_uid = 4242;
+  const gid_t other_gid = 4343;
+  for (const std::string& p : {single, main}) {
+    ASSERT_EQ(::chmod(p.c_str(), 0640), 0);
+    if (root) ASSERT_EQ(::chown(p.c_str(), other_uid, other_gid), 0);
+  }
+  write_file_atomically(single, "new");
+  write_file_set(main, "new report", (dir / "report").string(), {{"a.csv", "x\r\n"}}, {});
+  for (const std::string& p : {single, main}) {
+    struct stat st {};
+    ASSERT_EQ(::stat(p.c_str(), &st), 0);
+    EXPECT_EQ(st.st_mode & 07777, 0640u) << p;
+    if (root) {
+      EXPECT_EQ(st.st_uid, other_uid) << p;
+      EXPECT_EQ(st.st_gid, other_gid) << p;
+    }
+  }
+  EXPECT_EQ(slurp(single), "new");
+  EXPECT_EQ(slurp(main), "new report");
+  fs::remove_all(dir);
+}
+
 }  // namespace
 }  // namespace pkarta
