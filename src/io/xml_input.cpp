@@ -12,6 +12,7 @@
 #include <set>
 #include <sstream>
 
+#include "pkarta/base/format.h"
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/io/text_file.h"
 #include "pkarta/chem/formula.h"
@@ -114,6 +115,9 @@ class Reader {
                              "' on <" + n.name() + "> ignored");
       }
     }
+  }
+  void warn(const pugi::xml_node& n, const std::string& what) {
+    if (warnings_) warnings_->push_back(loc_.at(n).str() + ": warning: " + what);
   }
   void unknown_element(const pugi::xml_node& n) {
     if (warnings_) {
@@ -228,6 +232,29 @@ void check_ascending(Reader& r, const std::vector<Pka>& pkas, const std::vector<
          << pkas[i - 1].value << ")";
       r.fail(nodes[i], ss.str());
     }
+  }
+  // Ascending at their reference temperature, two constants may still cross within the 0-60 °C
+  // the pKa(T) data cover (different dH and dCp): warn, giving where they are out of order.
+  for (std::size_t i = 1; i < pkas.size() && i < nodes.size(); ++i) {
+    double first = -1.0, last = -1.0, at_first_lower = 0.0, at_first_upper = 0.0;
+    for (int step = 0; step <= 120; ++step) {
+      const double t = 0.5 * step;
+      const double lower = pkas[i - 1].at(t), upper = pkas[i].at(t);
+      if (upper > lower) continue;
+      if (first < 0) {
+        first = t;
+        at_first_lower = lower;
+        at_first_upper = upper;
+      }
+      last = t;
+    }
+    if (first < 0) continue;
+    std::ostringstream ss;
+    ss << "pKa " << i + 1 << " (" << pkas[i].value << ") and pKa " << i << " (" << pkas[i - 1].value
+       << ") cross by their temperature dependence: out of order from " << first << " to " << last
+       << " °C (at " << first << " °C " << fixed(at_first_upper, 2) << " and " << fixed(at_first_lower, 2)
+       << "); the macroscopic model, its constants in ascending order, no longer holds there";
+    r.warn(nodes[i], ss.str());
   }
   if (pkas.size() > static_cast<std::size_t>(kMaxPka)) {
     r.fail(nodes[kMaxPka], "at most " + std::to_string(kMaxPka) + " pKa values are supported");

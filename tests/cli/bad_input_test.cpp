@@ -151,6 +151,12 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       "pH,value,unit,not\xff\n2,3,mg/mL,1\n7,20,ug/mL,1\n",                       // 78 CSV
       // extreme charge (79..)
       "<compound id='q' name='q' molar-mass='300' permanent-charge='16'>\n <pka value='3' type='acid'/>\n</compound>\n",  // 79
+      // pKa values that cross with temperature (80..); van 't Hoff by hand: 0.4 = (120 kJ/mol /
+      // (R ln 10)) (1/298.15 K - 1/T) gives T = 303.9 K, 30.8 °C, so out of order from 31 °C
+      compound(" <pka value='7.0' type='acid' dH='-60'/>\n <pka value='7.4' type='acid' dH='60'/>\n"
+               " <intrinsic-solubility value='1' unit='ug/mL'/>\n"),                  // 80
+      library(" <system id='s' name='s' source='invented'>\n  <pka value='4' type='acid' dH='-40'/>\n"
+              "  <pka value='4.1' type='acid' dH='40'/>\n </system>\n"),              // 81
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -333,6 +339,11 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
        "--volume-mL: 100 mg in 1e-300 mL is 3.21e+299 mol/L, beyond the 10 mol/L the model covers"},
       {"option", nullptr, "classify --compound compounds/demo-base.xml --dose-mg 4000 --volume-mL 1", 2,
        "--volume-mL: 4000 mg in 1 mL is 12.8 mol/L, beyond the 10 mol/L"},
+      // pKa values that cross inside 0-60 °C: a warning, the input is still read
+      {"compound file", F(80), "check {F}", 0,
+       ":3:2: warning: pKa 2 (7.4) and pKa 1 (7) cross by their temperature dependence: out of order from 31 to 60 °C"},
+      {"compound file", F(80), "profile --compound {F} --temp 60", 0, "the macroscopic model, its constants in ascending order, no longer holds there"},
+      {"library file", F(81), "check {F}", 0, ":4:3: warning: pKa 2 (4.1) and pKa 1 (4) cross by their temperature dependence: out of order from"},
       // data the model does not cover
       {"data", nullptr, "mix --add HCl=9M --add NaCl=9M", 1, "too concentrated for the model"},
   };
