@@ -13,6 +13,7 @@
 #include "pkarta/base/format.h"
 #include "pkarta/base/suggest.h"
 #include "pkarta/chem/mixture_builder.h"
+#include "pkarta/io/atomic_file.h"
 #include "pkarta/io/xml_input.h"
 
 namespace pkarta::cli {
@@ -23,6 +24,30 @@ void add_common_options(po::options_description& desc, CommonOptions& common) {
       ("format", po::value(&common.format)->default_value("text"), "output format: text, csv or json")
       ("library", po::value(&common.library_files)->composing(),
        "extra library XML file (adds or overrides built-in entries); may repeat");
+}
+
+void add_output_option(po::options_description& desc, CommonOptions& common) {
+  desc.add_options()
+      ("output,o", po::value(&common.output), "write the result to this file instead of standard output (- : standard output)");
+}
+
+OutputTarget::OutputTarget(const std::string& path, std::vector<std::string> inputs)
+    : path_(path == "-" ? std::string() : path), inputs_(std::move(inputs)) {
+  if (path_.empty()) return;
+  refuse_to_overwrite_inputs(path_, inputs_);
+  saved_ = std::cout.rdbuf(buffer_.rdbuf());
+}
+
+OutputTarget::~OutputTarget() {
+  if (saved_) std::cout.rdbuf(saved_);
+}
+
+int OutputTarget::done(int code) {
+  if (!saved_) return code;
+  std::cout.rdbuf(saved_);
+  saved_ = nullptr;
+  if (code == 0) write_file_atomically(path_, buffer_.str(), inputs_);
+  return code;
 }
 
 po::variables_map parse(const std::vector<std::string>& args, const po::options_description& desc,

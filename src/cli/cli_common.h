@@ -6,6 +6,7 @@
 
 #include <functional>
 #include <iosfwd>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -30,9 +31,33 @@ struct CommonOptions {
   std::string format = "text";
   std::vector<std::string> library_files;
   bool help = false;
+  std::string output;  ///< -o of the one-stream commands; empty or "-": standard output
 };
 
 void add_common_options(po::options_description& desc, CommonOptions& common);
+/// -o FILE for a command whose result is one stream (mix, profile, screen): "-" means
+/// standard output, as when -o is not given.
+void add_output_option(po::options_description& desc, CommonOptions& common);
+
+/// Sends what a command prints on standard output to common.output instead (when it names a
+/// file, not "-"): the path is checked at once (before any work), the text is collected and
+/// written atomically by done(0); a refusal, an error or an exit code other than 0 writes
+/// nothing, so no half result is left.
+class OutputTarget {
+ public:
+  OutputTarget(const std::string& path, std::vector<std::string> inputs);
+  ~OutputTarget();
+  OutputTarget(const OutputTarget&) = delete;
+  OutputTarget& operator=(const OutputTarget&) = delete;
+  /// Restores standard output and, when `code` is 0, writes the file; returns `code`.
+  int done(int code);
+
+ private:
+  std::string path_;
+  std::vector<std::string> inputs_;
+  std::ostringstream buffer_;
+  std::streambuf* saved_ = nullptr;
+};
 
 /// Parses args (without the command word); throws po::error on bad usage.
 po::variables_map parse(const std::vector<std::string>& args, const po::options_description& desc,

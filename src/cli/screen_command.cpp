@@ -136,6 +136,7 @@ int run_screen(const Args& args) {
          "Monte Carlo samples over the pKa sd and S0 log-sd: 5/50/95 % bands of min conc (one compound)")
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
     add_common_options(desc, common);
+    add_output_option(desc, common);
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
@@ -148,6 +149,9 @@ int run_screen(const Args& args) {
     }
     check_format(common.format);
     if (compounds.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "give a compound file (--compound F)");
+    std::vector<std::string> protect = common.library_files;
+    protect.insert(protect.end(), compounds.begin(), compounds.end());
+    OutputTarget out(common.output, protect);
     if (dose.empty()) throw InputError(SourceLocation{"--dose", 0, 0}, "give the dose (--dose AMOUNT, e.g. 5mg/mL)");
     if (target.empty()) throw InputError(SourceLocation{"--target-ph", 0, 0}, "give the pH to hold (--target-ph P)");
 
@@ -270,7 +274,7 @@ int run_screen(const Args& args) {
       if (common.format == "json") write_screen_json(reports, std::cout);
       else if (common.format == "csv") write_screen_csv(reports, std::cout);
       else write_screen_text(reports, std::cout);
-      return 0;
+      return out.done(0);
     }
     MonteCarloRun run;
     run.progress = pkarta::cli::ProgressBar("uncertainty");
@@ -306,7 +310,7 @@ int run_screen(const Args& args) {
       std::cout << "\n";
       write_screen_bands_text(bands, std::cout);
     }
-    return 0;
+    return out.done(0);
   });
 }
 

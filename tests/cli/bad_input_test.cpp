@@ -344,6 +344,15 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
        ":3:2: warning: pKa 2 (7.4) and pKa 1 (7) cross by their temperature dependence: out of order from 31 to 60 °C"},
       {"compound file", F(80), "profile --compound {F} --temp 60", 0, "the macroscopic model, its constants in ascending order, no longer holds there"},
       {"library file", F(81), "check {F}", 0, ":4:3: warning: pKa 2 (4.1) and pKa 1 (4) cross by their temperature dependence: out of order from"},
+      // -o of the one-stream commands: checked before any work
+      {"option", nullptr, "mix --add KH2PO4=25mM --format json -o /nonexistent-folder/x.json", 2,
+       "/nonexistent-folder/x.json: cannot write: the folder /nonexistent-folder does not exist"},
+      {"option", nullptr, "profile --compound compounds/demo-base.xml -o compounds/demo-base.xml", 2,
+       "refusing to overwrite the input file compounds/demo-base.xml"},
+      {"option", nullptr, "screen --compound compounds/demo-base.xml --dose 1mg/mL --target-ph 6 -o /dev/null", 2,
+       "/dev/null: the output path is a character device, not a regular file"},
+      {"option", nullptr, "fit --compound compounds/demo-base.xml -o -", 2,
+       "--output: fit prints its result on standard output; give a file name for the fitted compound file"},
       // data the model does not cover
       {"data", nullptr, "mix --add HCl=9M --add NaCl=9M", 1, "too concentrated for the model"},
   };

@@ -326,5 +326,35 @@ TEST(SafeFiles, ReplacedFilesKeepTheirModeAndOwner) {
   fs::remove_all(dir);
 }
 
+// -o FILE of mix, profile and screen writes what standard output would hold, atomically; -o -
+// is standard output itself; a refused or unusable result writes no file.
+TEST(SafeFiles, DashOIsStandardOutputAndAFileGetsTheSameBytes) {
+  const fs::path dir = fresh_dir();
+  for (const std::string args : {std::string("mix --add KH2PO4=25mM --add Na2HPO4=25mM --format json"),
+                                 std::string("profile --compound compounds/demo-base.xml --format csv"),
+                                 std::string("screen --compound compounds/demo-base.xml --dose 1mg/mL --target-ph 6 --format csv"),
+                                 std::string("mix --add KH2PO4=25mM --temp 5,25,37")}) {
+    const pkarta_test::RunResult plain = pkarta_test::run(args);
+    ASSERT_EQ(plain.code, 0) << args << "\n" << plain.err;
+    ASSERT_FALSE(plain.out.empty());
+    const pkarta_test::RunResult dash = pkarta_test::run(args + " -o -");
+    EXPECT_EQ(dash.code, 0) << args;
+    EXPECT_EQ(dash.out, plain.out) << args;
+    const std::string file = (dir / "out.txt").string();
+    const pkarta_test::RunResult to_file = pkarta_test::run(args + " -o " + file);
+    EXPECT_EQ(to_file.code, 0) << args << "\n" << to_file.err;
+    EXPECT_EQ(to_file.out, "") << args;
+    EXPECT_EQ(slurp(file), plain.out) << args;
+    fs::remove(file);
+  }
+  const std::string kept = (dir / "kept.json").string();
+  std::ofstream(kept) << "old";
+  const pkarta_test::RunResult refused = pkarta_test::run("mix --add HCl=9M --add NaCl=9M --format json -o " + kept);
+  EXPECT_EQ(refused.code, 1) << refused.err;
+  EXPECT_EQ(slurp(kept), "old");
+  EXPECT_EQ(files_in(dir), 1) << "a temporary file was left behind";
+  fs::remove_all(dir);
+}
+
 }  // namespace
 }  // namespace pkarta
