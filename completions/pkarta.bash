@@ -12,7 +12,7 @@ _pkarta() {
   fi
   cmd=${COMP_WORDS[1]}
   case $prev in
-    --compound|--library|--data|-o|--out|--compounds|--out-dir)
+    --compound|--library|--data|-o|--out|--output|--compounds|--out-dir)
       COMPREPLY=($(compgen -f -- "$cur"))
       return ;;
     --format)

@@ -4,6 +4,7 @@
 #include <Eigen/SVD>
 
 #include <algorithm>
+#include <charconv>
 #include <cctype>
 #include <cmath>
 #include <cstdio>
@@ -175,6 +176,7 @@ std::vector<FitPoint> fit_points_from_compound(const Compound& compound) {
     p.pH = m.pH;
     p.solubility_mol_per_L = m.solubility_mol_per_L;
     p.temperature_C = m.temperature_C;
+    p.log10_sd = m.log10_sd;
     p.where = m.where;
     out.push_back(p);
   }
@@ -202,13 +204,16 @@ std::vector<FitParameter> parse_fit_parameters(const std::string& list, const Co
     } else if (it.rfind("pka", 0) == 0 && it.size() > 3 &&
                it.find_first_not_of("0123456789", 3) == std::string::npos) {
       const int n = static_cast<int>(compound.system.pkas.size());
-      const int k = std::atoi(it.c_str() + 3);
+      // The whole digit string is the index: "pka4294967297" is not pka1 (no wrap-around).
+      long long k = 0;
+      const auto [ptr, ec] = std::from_chars(it.data() + 3, it.data() + it.size(), k);
+      if (ec != std::errc() || ptr != it.data() + it.size()) k = -1;
       if (k < 1 || k > n) {
         throw InputError(at, "'" + raw + "': compound '" + compound.id + "' has " + std::to_string(n) +
                                  " pKa value" + (n == 1 ? "" : "s") + " (pka1" +
                                  (n > 1 ? "..pka" + std::to_string(n) : "") + ")");
       }
-      p = make_pka(compound, k - 1);
+      p = make_pka(compound, static_cast<int>(k - 1));
     } else if (it.rfind("ksp:", 0) == 0) {
       const std::string id = trim(raw.substr(4));
       int found = -1;
@@ -552,6 +557,17 @@ FitResult fit_all(const Compound& compound, const Library& library, const std::v
 FitResult fit_solubility(const Compound& compound, const Library& library,
                          const std::vector<FitPoint>& points, std::vector<FitParameter> parameters,
                          const FitOptions& options) {
+  // Points given through the API are checked as the readers check them: a solubility that
+  // underflows or overflows, or a degenerate weight, would give an infinite rms.
+  for (const FitPoint& pt : points) {
+    if (const std::string why = measured_solubility_problem(pt.solubility_mol_per_L); !why.empty()) {
+      throw InputError(pt.where, "measured solubility " + why);
+    }
+    if (!(pt.log10_sd == 0.0 || (pt.log10_sd >= kMinFitLog10Sd && pt.log10_sd <= 5.0))) {
+      throw InputError(pt.where, "the log10 sd of a measured point is " + format_g(pt.log10_sd, 3) +
+                                     ", expected 0 (unweighted) or 0.0001 to 5");
+    }
+  }
   const int m = static_cast<int>(points.size());
   const int n = static_cast<int>(parameters.size());
   std::string err;

@@ -7,6 +7,7 @@ namespace pkarta {
 MixResult analyse_mix(const Mixture& mixture, std::vector<std::string> inputs) {
   MixResult r;
   r.inputs = std::move(inputs);
+  r.activity = mixture.activity;
   r.equilibrium = solve(mixture);
   if (mixture.drug) r.drug_name = mixture.drug->compound.name;
   if (r.equilibrium.usable()) {

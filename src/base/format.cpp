@@ -1,6 +1,7 @@
 #include "pkarta/base/format.h"
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <cstdio>
 
@@ -30,7 +31,49 @@ std::string sig(double value, int digits) {
   return buf;
 }
 
-std::string csv_field(const std::string& text) {
+namespace {
+// A plain decimal number: optional sign, digits with at most one point, optional exponent.
+// Such a cell is data, not a formula, even when it starts with '-' or '+'.
+bool plain_number(const std::string& s) {
+  std::size_t i = 0;
+  if (i < s.size() && (s[i] == '-' || s[i] == '+')) ++i;
+  std::size_t digits = 0;
+  while (i < s.size() && std::isdigit(static_cast<unsigned char>(s[i]))) {
+    ++i;
+    ++digits;
+  }
+  if (i < s.size() && s[i] == '.') {
+    ++i;
+    while (i < s.size() && std::isdigit(static_cast<unsigned char>(s[i]))) {
+      ++i;
+      ++digits;
+    }
+  }
+  if (digits == 0) return false;
+  if (i < s.size() && (s[i] == 'e' || s[i] == 'E')) {
+    ++i;
+    if (i < s.size() && (s[i] == '-' || s[i] == '+')) ++i;
+    std::size_t exp_digits = 0;
+    while (i < s.size() && std::isdigit(static_cast<unsigned char>(s[i]))) {
+      ++i;
+      ++exp_digits;
+    }
+    if (exp_digits == 0) return false;
+  }
+  return i == s.size();
+}
+}  // namespace
+
+bool csv_formula_like(const std::string& text) {
+  if (text.empty()) return false;
+  const char c = text.front();
+  if (c != '=' && c != '+' && c != '-' && c != '@' && c != '\t' && c != '\r') return false;
+  return !plain_number(text);
+}
+
+std::string csv_field(const std::string& text_in) {
+  // OWASP, "CSV Injection": a cell a spreadsheet would read as a formula gets a leading quote.
+  std::string text = csv_formula_like(text_in) ? "'" + text_in : text_in;
   if (text.find_first_of(",\"\r\n") == std::string::npos) return text;
   std::string out = "\"";
   for (char c : text) {

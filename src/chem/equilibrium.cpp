@@ -814,6 +814,9 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
       i_cur = i_next;
     }
   }
+  // Ideal activities: the coefficients stay 1, but the ionic strength reported is still the
+  // real one of the solved state, counting every ion (I = 1/2 sum z^2 c).
+  if (ideal_ && std::isfinite(ev.ionic_strength)) set_ionic_strength(ev.ionic_strength);
   out.pH = x;
   out.ionic_strength_mol_per_L =
       diverged ? std::numeric_limits<double>::infinity() : ionic_strength_;

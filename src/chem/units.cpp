@@ -104,6 +104,25 @@ Amount parse_amount(std::string_view text) {
   return a;
 }
 
+AmountUnit parse_unit(std::string_view text, std::string_view what) {
+  const std::string_view t = trim(text);
+  const char c = t.empty() ? ' ' : t.front();
+  if (std::isdigit(static_cast<unsigned char>(c)) || c == '.' || c == '+' || c == '-' || c == 'e' ||
+      c == 'E') {
+    throw InputError(std::string(what) + " is \"" + shown(text) +
+                     "\", expected a unit alone such as mg/mL, ug/mL or mM");
+  }
+  if (t.empty()) {
+    throw InputError(std::string(what) + " is empty; expected one of M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v");
+  }
+  try {
+    return parse_amount("1" + std::string(t)).unit;
+  } catch (const InputError&) {
+    throw InputError(std::string(what) + ": unknown unit \"" + shown(text) +
+                     "\"; expected one of M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v");
+  }
+}
+
 bool Amount::is_mass_based() const {
   return unit == AmountUnit::kMgPerMl || unit == AmountUnit::kGPerL ||
          unit == AmountUnit::kUgPerMl || unit == AmountUnit::kPercentWv;

@@ -5,6 +5,7 @@
 #include "commands.h"
 #include "pkarta/analyses/classify.h"
 #include "pkarta/analyses/profile.h"
+#include "pkarta/base/format.h"
 #include "pkarta/writers/classify_writer.h"
 
 namespace pkarta::cli {
@@ -94,6 +95,13 @@ int run_classify(const Args& args) {
       for (const Salt& s : c.salts) known += ", " + s.id;
       throw InputError(SourceLocation{"--form", 0, 0},
                        "compound '" + c.id + "' has no form '" + form + "' (forms: " + known + ")");
+    }
+    // The dose in the volume of medium must be a concentration the model covers.
+    const double dose_mol_per_L = o.dose_mg / form_molar_mass(c, form, lib) / o.volume_mL;
+    if (!(dose_mol_per_L <= kMaxConc_mol_per_L)) {
+      throw InputError(SourceLocation{"--volume-mL", 0, 0},
+                       dose + " mg in " + volume + " mL is " + sig(dose_mol_per_L, 3) +
+                           " mol/L, beyond the 10 mol/L the model covers");
     }
     const ClassifyResult r = classify(c, lib, o);
     if (common.format == "json") write_classify_json(r, std::cout);

@@ -1,6 +1,8 @@
 #include "cli_common.h"
 
+#include <algorithm>
 #include <cctype>
+#include <cstdlib>
 #include <cmath>
 #include <filesystem>
 
@@ -11,6 +13,7 @@
 #include "pkarta/base/format.h"
 #include "pkarta/base/suggest.h"
 #include "pkarta/chem/mixture_builder.h"
+#include "pkarta/io/atomic_file.h"
 #include "pkarta/io/xml_input.h"
 
 namespace pkarta::cli {
@@ -21,6 +24,30 @@ void add_common_options(po::options_description& desc, CommonOptions& common) {
       ("format", po::value(&common.format)->default_value("text"), "output format: text, csv or json")
       ("library", po::value(&common.library_files)->composing(),
        "extra library XML file (adds or overrides built-in entries); may repeat");
+}
+
+void add_output_option(po::options_description& desc, CommonOptions& common) {
+  desc.add_options()
+      ("output,o", po::value(&common.output), "write the result to this file instead of standard output (- : standard output)");
+}
+
+OutputTarget::OutputTarget(const std::string& path, std::vector<std::string> inputs)
+    : path_(path == "-" ? std::string() : path), inputs_(std::move(inputs)) {
+  if (path_.empty()) return;
+  refuse_to_overwrite_inputs(path_, inputs_);
+  saved_ = std::cout.rdbuf(buffer_.rdbuf());
+}
+
+OutputTarget::~OutputTarget() {
+  if (saved_) std::cout.rdbuf(saved_);
+}
+
+int OutputTarget::done(int code) {
+  if (!saved_) return code;
+  std::cout.rdbuf(saved_);
+  saved_ = nullptr;
+  if (code == 0) write_file_atomically(path_, buffer_.str(), inputs_);
+  return code;
 }
 
 po::variables_map parse(const std::vector<std::string>& args, const po::options_description& desc,
@@ -90,6 +117,13 @@ void check_format(const std::string& format, bool allow_csv) {
                        std::string(allow_csv ? "csv or json" : "or json"));
 }
 
+void check_text_format_only(const std::string& command, const std::string& format) {
+  if (format == "text") return;
+  throw InputError(SourceLocation{"--format", 0, 0},
+                   "unknown format \"" + format + "\": " + command +
+                       " accepts only text (it writes HTML files with their CSV tables beside them)");
+}
+
 Amount option_amount(const std::string& option, const std::string& text) {
   try {
     return parse_amount(text);
@@ -117,7 +151,8 @@ long long option_count(const std::string& option, const std::string& text, doubl
                        const std::string& what) {
   const double v = option_number(option, text, lo, hi);
   if (v != std::floor(v)) {
-    throw InputError(SourceLocation{option, 0, 0}, "expected a whole number of " + what + ", got " + text);
+    throw InputError(SourceLocation{option, 0, 0},
+                     "expected a whole number" + (what.empty() ? std::string() : " of " + what) + ", got " + text);
   }
   return static_cast<long long>(v);
 }
@@ -168,18 +203,33 @@ std::string dose_basis_note(DoseBasis basis, const std::string& form) {
 }
 
 namespace {
-// The model covers totals up to 10 mol/L (the pH bracket of the solver); more of one
-// reagent than that is a typing error, not a solution.
-constexpr double kMaxConcMolPerL = 10.0;
-
+// The model covers totals up to 10 mol/L (kMaxConc_mol_per_L, the pH bracket of the solver);
+// more of one reagent than that is a typing error, not a solution.
 void check_concentration(const std::string& option, const std::string& what, const std::string& text,
                          double conc_mol_per_L) {
-  if (!(conc_mol_per_L <= kMaxConcMolPerL)) {
+  if (!(conc_mol_per_L <= kMaxConc_mol_per_L)) {
     throw InputError(SourceLocation{option, 0, 0}, what + " at " + text + " is " + sig(conc_mol_per_L, 3) +
                      " mol/L, beyond the 10 mol/L the model covers");
   }
 }
 }  // namespace
+
+void check_dose(const std::string& option, const Compound& compound, const std::string& text, double conc_mol_per_L) {
+  check_concentration(option, "the dose of " + compound.id, text, conc_mol_per_L);
+  // A highly charged drug needs as many equivalents of counterions: a permanent charge of 16
+  // at a few mol/L would need tens of mol/L of them (ionic strength above 1000 mol/L).
+  int z_max = 0;
+  for (int j = 0; j <= static_cast<int>(compound.system.pkas.size()); ++j) {
+    z_max = std::max(z_max, std::abs(compound.system.charge_of(j)));
+  }
+  const double equivalents = z_max * conc_mol_per_L;
+  if (!(equivalents <= kMaxConc_mol_per_L)) {
+    throw InputError(SourceLocation{option, 0, 0},
+                     "the dose of " + compound.id + " at " + text + " carries up to " + sig(equivalents, 3) +
+                         " mol/L of charge (species of charge " + std::to_string(z_max) + " at " +
+                         sig(conc_mol_per_L, 3) + " mol/L), beyond the 10 mol/L the model covers");
+  }
+}
 
 Mixture build_formulation(const FormulationOptions& f, const Library& library,
                           std::vector<std::string>* inputs, Compound* compound_out) {
@@ -221,7 +271,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
                                       e.where().line, e.where().column},
                        e.message());
     }
-    check_concentration("--dose", "the dose of " + c.id, f.dose, conc);
+    check_dose("--dose", c, f.dose, conc);
     if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + f.dose + dose_basis_note(basis, f.form));
     if (compound_out) *compound_out = c;
   } else if (!f.dose.empty()) {

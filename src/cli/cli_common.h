@@ -6,6 +6,7 @@
 
 #include <functional>
 #include <iosfwd>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -30,9 +31,33 @@ struct CommonOptions {
   std::string format = "text";
   std::vector<std::string> library_files;
   bool help = false;
+  std::string output;  ///< -o of the one-stream commands; empty or "-": standard output
 };
 
 void add_common_options(po::options_description& desc, CommonOptions& common);
+/// -o FILE for a command whose result is one stream (mix, profile, screen): "-" means
+/// standard output, as when -o is not given.
+void add_output_option(po::options_description& desc, CommonOptions& common);
+
+/// Sends what a command prints on standard output to common.output instead (when it names a
+/// file, not "-"): the path is checked at once (before any work), the text is collected and
+/// written atomically by done(0); a refusal, an error or an exit code other than 0 writes
+/// nothing, so no half result is left.
+class OutputTarget {
+ public:
+  OutputTarget(const std::string& path, std::vector<std::string> inputs);
+  ~OutputTarget();
+  OutputTarget(const OutputTarget&) = delete;
+  OutputTarget& operator=(const OutputTarget&) = delete;
+  /// Restores standard output and, when `code` is 0, writes the file; returns `code`.
+  int done(int code);
+
+ private:
+  std::string path_;
+  std::vector<std::string> inputs_;
+  std::ostringstream buffer_;
+  std::streambuf* saved_ = nullptr;
+};
 
 /// Parses args (without the command word); throws po::error on bad usage.
 po::variables_map parse(const std::vector<std::string>& args, const po::options_description& desc,
@@ -44,12 +69,17 @@ Library load_libraries(const CommonOptions& common);
 /// Checks --format; throws InputError naming the option.
 void check_format(const std::string& format, bool allow_csv = true);
 
+/// For commands whose results go to HTML and CSV files (report, demo): --format accepts only
+/// text, the summary on standard output; anything else is refused naming the option.
+void check_text_format_only(const std::string& command, const std::string& format);
+
 /// Amount from an option value; errors name the option.
 Amount option_amount(const std::string& option, const std::string& text);
 /// Number in [lo, hi] from an option value; errors name the option.
 double option_number(const std::string& option, const std::string& text, double lo, double hi);
 /// Temperature option (°C, -10..100).
-/// A whole number within [lo, hi] ("--threads 1.5" is refused, naming the option and `what`).
+/// A whole number within [lo, hi] ("--threads 1.5" is refused, naming the option and `what`,
+/// which may be empty).
 long long option_count(const std::string& option, const std::string& text, double lo, double hi,
                        const std::string& what);
 
@@ -60,6 +90,10 @@ std::pair<std::string, std::string> split_assignment(const std::string& option, 
 
 /// Loads a compound file against a library, printing located warnings to stderr.
 Compound load_compound(const std::string& path, const Library& library);
+
+/// Refuses (InputError naming `option`) a dose above kMaxConc_mol_per_L (10 mol/L), or one
+/// whose most charged species would carry more than 10 mol/L of charge (|z| times the dose).
+void check_dose(const std::string& option, const Compound& compound, const std::string& text, double conc_mol_per_L);
 
 /// What `mix` and `dilute` share: the formulation options.
 struct FormulationOptions {

@@ -71,6 +71,7 @@ int run_demo(const Args& args) {
       print_help(std::cout, "pkarta demo [--compounds DIR] [--out-dir DIR]", desc);
       return 0;
     }
+    check_text_format_only("demo", common.format);
     if (!vm_has_dir(dir) && !shipped_compounds_dir().empty()) dir = shipped_compounds_dir();
     const Library lib = load_libraries(common);
     std::error_code ec;

@@ -42,6 +42,10 @@ int run_fit(const Args& args) {
     check_format(common.format);
     if (compound_file.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "fit needs --compound FILE");
     const Library lib = load_libraries(common);
+    if (output == "-") {
+      throw InputError(SourceLocation{"--output", 0, 0},
+                       "fit prints its result on standard output; give a file name for the fitted compound file");
+    }
     if (!output.empty()) {
       std::vector<std::string> inputs{compound_file};
       if (!data_file.empty()) inputs.push_back(data_file);

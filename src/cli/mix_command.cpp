@@ -77,6 +77,7 @@ int run_mix(const Args& args) {
     po::options_description desc("mix options");
     add_formulation_options(desc, f);
     add_common_options(desc, common);
+    add_output_option(desc, common);
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
@@ -86,6 +87,9 @@ int run_mix(const Args& args) {
       return 0;
     }
     check_format(common.format);
+    std::vector<std::string> protect = common.library_files;
+    if (!f.compound_file.empty()) protect.push_back(f.compound_file);
+    OutputTarget out(common.output, protect);
     const Library lib = load_libraries(common);
     // --temp may list several temperatures (e.g. 5,25,37): one state each, same contents.
     std::vector<std::string> temps;
@@ -95,7 +99,7 @@ int run_mix(const Args& args) {
       if (comma == std::string::npos) break;
       start = comma + 1;
     }
-    if (temps.size() > 1) return run_mix_temperatures(f, lib, temps, common.format);
+    if (temps.size() > 1) return out.done(run_mix_temperatures(f, lib, temps, common.format));
     std::vector<std::string> inputs;
     const Mixture m = build_formulation(f, lib, &inputs);
     if (m.systems.empty() && m.ions.empty() && !m.drug) {
@@ -113,7 +117,7 @@ int run_mix(const Args& args) {
     for (const std::string& w : r.equilibrium.warnings) {
       if (common.format != "text") std::cerr << "pkarta: warning: " << w << "\n";
     }
-    return 0;
+    return out.done(0);
   });
 }
 

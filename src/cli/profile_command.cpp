@@ -61,6 +61,7 @@ int run_profile(const Args& args) {
          "Monte Carlo samples over the pKa sd and S0 log-sd of the compound file: 5/50/95 % bands")
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
     add_common_options(desc, common);
+    add_output_option(desc, common);
     const po::variables_map vm = parse(args, desc);
     if (common.help) {
       print_help(std::cout,
@@ -78,6 +79,9 @@ int run_profile(const Args& args) {
     if (f.compound_file.empty()) {
       throw InputError(SourceLocation{"--compound", 0, 0}, "--compound FILE is required");
     }
+    std::vector<std::string> protect = common.library_files;
+    protect.push_back(f.compound_file);
+    OutputTarget out(common.output, protect);
     const bool explicit_grid = !vm["from"].defaulted() || !vm["to"].defaulted() || !vm["step"].defaulted();
     ProfileGrid grid;
     if (vm.count("points")) {
@@ -130,7 +134,7 @@ int run_profile(const Args& args) {
     const Compound c = load_compound(compound_file, lib);
 
     const int samples = static_cast<int>(option_count("--uncertainty", uncertainty, 0, 1e6, "samples"));
-    const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
+    const long long seed_value = option_count("--seed", seed, 0, 9.007199254740992e15, "");  // 1.5 is no seed
 
     const Profile p = compute_profile(c, lib, cond, grid, contents);
     ProfileBands bands;
@@ -151,7 +155,7 @@ int run_profile(const Args& args) {
     if (common.format != "text") {
       for (const std::string& w : p.warnings) std::cerr << "pkarta: warning: " << w << "\n";
     }
-    return 0;
+    return out.done(0);
   });
 }
 

@@ -117,6 +117,7 @@ int run_recipe(const Args& args) {
       } catch (const InputError& e) {
         throw InputError(SourceLocation{"--form", 0, 0}, e.message());
       }
+      check_dose("--dose", drug, dose, dose_mol);
       Formulation f;
       try {
         f = make_formulation(lib, o, drug, dose_mol, form,

@@ -100,6 +100,7 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
       throw InputError(SourceLocation{"--form", 0, 0}, e.message());
     }
     if (!(req.dose_mol_per_L > 0)) throw InputError(SourceLocation{"--dose", 0, 0}, "the dose must be above 0");
+    check_dose("--dose", compound, r.dose, req.dose_mol_per_L);
     req.dose_text = r.dose + dose_basis_note(basis, r.form);
   } else if (r.form != "free") {
     form_molar_mass(compound, r.form, library);  // an unknown form is an error even without a dose

@@ -25,6 +25,7 @@ int run_report(const Args& args) {
                  desc);
       return 0;
     }
+    check_text_format_only("report", common.format);
     if (r.compound_file.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "the report needs --compound FILE");
     if (r.output.empty()) throw InputError(SourceLocation{"--output", 0, 0}, "give the HTML file to write with -o FILE");
     const Library lib = load_libraries(common);

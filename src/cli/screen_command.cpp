@@ -136,6 +136,7 @@ int run_screen(const Args& args) {
          "Monte Carlo samples over the pKa sd and S0 log-sd: 5/50/95 % bands of min conc (one compound)")
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
     add_common_options(desc, common);
+    add_output_option(desc, common);
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
@@ -148,6 +149,9 @@ int run_screen(const Args& args) {
     }
     check_format(common.format);
     if (compounds.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "give a compound file (--compound F)");
+    std::vector<std::string> protect = common.library_files;
+    protect.insert(protect.end(), compounds.begin(), compounds.end());
+    OutputTarget out(common.output, protect);
     if (dose.empty()) throw InputError(SourceLocation{"--dose", 0, 0}, "give the dose (--dose AMOUNT, e.g. 5mg/mL)");
     if (target.empty()) throw InputError(SourceLocation{"--target-ph", 0, 0}, "give the pH to hold (--target-ph P)");
 
@@ -217,7 +221,7 @@ int run_screen(const Args& args) {
       if (!(opt.round_step_mol_per_L > 0)) throw InputError(SourceLocation{"--round", 0, 0}, "the step must be > 0");
     }
     const int samples = static_cast<int>(option_count("--uncertainty", uncertainty, 0, 1e6, "samples"));
-    const double seed_value = option_number("--seed", seed, 0, 9.007199254740992e15);
+    const long long seed_value = option_count("--seed", seed, 0, 9.007199254740992e15, "");  // 1.5 is no seed
     BatchOptions batch;
     batch.threads = static_cast<int>(option_count("--threads", threads, 0, 1024, "threads"));
 
@@ -254,6 +258,7 @@ int run_screen(const Args& args) {
       } catch (const InputError& e) {
         throw InputError(SourceLocation{"--form", 0, 0}, path + ": " + e.message());
       }
+      check_dose("--dose", job.compound, dose, job.dose_mol_per_L);
       jobs.push_back(std::move(job));
     }
     if (samples > 0 && jobs.size() != 1) {
@@ -269,7 +274,7 @@ int run_screen(const Args& args) {
       if (common.format == "json") write_screen_json(reports, std::cout);
       else if (common.format == "csv") write_screen_csv(reports, std::cout);
       else write_screen_text(reports, std::cout);
-      return 0;
+      return out.done(0);
     }
     MonteCarloRun run;
     run.progress = pkarta::cli::ProgressBar("uncertainty");
@@ -305,7 +310,7 @@ int run_screen(const Args& args) {
       std::cout << "\n";
       write_screen_bands_text(bands, std::cout);
     }
-    return 0;
+    return out.done(0);
   });
 }
 

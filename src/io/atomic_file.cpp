@@ -50,6 +50,16 @@ void refuse_to_overwrite_inputs(const std::string& path, const std::vector<std::
   }
 }
 
+namespace {
+// The one "keep metadata" step of both writers: a file that replaces an existing one keeps its
+// mode and owner. Best effort: a user who may not chown keeps the file under their own name,
+// without set-id bits.
+void keep_metadata(int fd, const struct stat& old_stat) {
+  (void)::fchmod(fd, old_stat.st_mode & 07777);
+  if (::fchown(fd, old_stat.st_uid, old_stat.st_gid) != 0) (void)::fchmod(fd, old_stat.st_mode & 0777);
+}
+}  // namespace
+
 void write_file_atomically(const std::string& path, std::string_view content,
                            const std::vector<std::string>& inputs_to_protect, bool durable) {
   refuse_to_overwrite_inputs(path, inputs_to_protect);
@@ -92,11 +102,7 @@ void write_file_atomically(const std::string& path, std::string_view content,
     p += n;
     left -= static_cast<std::size_t>(n);
   }
-  if (had_file) {
-    // Best effort: a user who may not chown keeps the file under their own name.
-    (void)::fchmod(fd, old_stat.st_mode & 07777);
-    if (::fchown(fd, old_stat.st_uid, old_stat.st_gid) != 0) (void)::fchmod(fd, old_stat.st_mode & 0777);
-  }
+  if (had_file) keep_metadata(fd, old_stat);
   if (durable && ::fsync(fd) != 0 && errno != EINVAL && errno != EROFS) {
     const int err = errno;
     ::close(fd);
@@ -117,8 +123,9 @@ void write_file_atomically(const std::string& path, std::string_view content,
 
 namespace {
 
-// Writes a whole file (no temporary: used inside a temporary folder).
-void write_plain(const fs::path& path, std::string_view content) {
+// Writes a whole file (no temporary: used inside a temporary folder); with `keep`, it takes
+// that file's mode and owner (keep_metadata).
+void write_plain(const fs::path& path, std::string_view content, const struct stat* keep = nullptr) {
   const int fd = ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0666);
   if (fd < 0) throw std::system_error(errno, std::generic_category(), "cannot write " + path.string());
   const char* p = content.data();
@@ -134,6 +141,7 @@ void write_plain(const fs::path& path, std::string_view content) {
     p += n;
     left -= static_cast<std::size_t>(n);
   }
+  if (keep) keep_metadata(fd, *keep);
   if (::close(fd) != 0) throw std::system_error(errno, std::generic_category(), "cannot write " + path.string());
 }
 
@@ -217,11 +225,9 @@ void write_file_set(const std::string& main_path, std::string_view main_content,
     // 2. The main file, under a temporary name too.
     staged_main = dir / ("." + fs::path(main_path).filename().string() + "." + std::to_string(::getpid()) + ".tmp");
     fs::remove(staged_main, ec);
-    write_plain(staged_main, main_content);
     struct stat old_stat {};
-    if (::stat(main_path.c_str(), &old_stat) == 0) {
-      (void)::chmod(staged_main.c_str(), old_stat.st_mode & 07777);
-    }
+    const bool had_main = ::stat(main_path.c_str(), &old_stat) == 0;
+    write_plain(staged_main, main_content, had_main ? &old_stat : nullptr);
     // 3. Folder and main file into place, one right after the other.
     if (had_folder) {
       if (::renameat2(AT_FDCWD, staged.c_str(), AT_FDCWD, folder.c_str(), RENAME_EXCHANGE) != 0) {

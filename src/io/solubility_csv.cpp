@@ -2,8 +2,10 @@
 #include "pkarta/io/solubility_csv.h"
 
 #include <cctype>
+#include <cmath>
 #include <sstream>
 
+#include "pkarta/base/format.h"
 #include "pkarta/chem/units.h"
 #include "pkarta/io/text_file.h"
 
@@ -27,6 +29,12 @@ std::string join(const std::vector<std::string>& v, const std::string& sep) {
   std::string s;
   for (std::size_t i = 0; i < v.size(); ++i) s += (i ? sep : "") + v[i];
   return s;
+}
+
+std::string shown_number(double v) {
+  std::ostringstream ss;
+  ss << v;
+  return ss.str();
 }
 
 struct CsvField {
@@ -79,16 +87,31 @@ std::vector<CsvField> split_csv_line(const std::string& line, const std::string&
 }
 
 double cell_number(const CsvField& f, const std::string& column, const std::string& name, int line) {
+  if (f.text.empty()) {
+    throw InputError(SourceLocation{name, line, f.column}, "column '" + column + "' is not a number: \"\"");
+  }
   try {
-    if (f.text.empty()) throw InputError("empty cell");
-    return parse_number(f.text, "cell");
-  } catch (const InputError&) {
-    throw InputError(SourceLocation{name, line, f.column},
-                     "column '" + column + "' is not a number: \"" + f.text + "\"");
+    // Says "is out of the range of numbers" for 1e400 or 1e-400, "is not a number" otherwise.
+    return parse_number(f.text, "column '" + column + "'");
+  } catch (const InputError& e) {
+    throw InputError(SourceLocation{name, line, f.column}, e.message());
   }
 }
 
 }  // namespace
+
+std::string measured_solubility_problem(double solubility_mol_per_L) {
+  if (solubility_mol_per_L >= kMinMeasuredSolubility_mol_per_L && solubility_mol_per_L <= kMaxConc_mol_per_L) {
+    return "";
+  }
+  std::ostringstream ss;
+  if (solubility_mol_per_L == 0.0) ss << "underflows to 0 mol/L";
+  else if (!std::isfinite(solubility_mol_per_L)) ss << "overflows in mol/L";
+  else ss << "is " << sig(solubility_mol_per_L, 3) << " mol/L";
+  ss << ", expected " << kMinMeasuredSolubility_mol_per_L << " to "
+     << kMaxConc_mol_per_L << " mol/L";
+  return ss.str();
+}
 
 std::vector<FitPoint> parse_solubility_csv(const std::string& text_in, const std::string& name,
                                            double molar_mass_g_per_mol,
@@ -97,6 +120,18 @@ std::vector<FitPoint> parse_solubility_csv(const std::string& text_in, const std
   if (text.size() >= 3 && static_cast<unsigned char>(text[0]) == 0xEF &&
       static_cast<unsigned char>(text[1]) == 0xBB && static_cast<unsigned char>(text[2]) == 0xBF) {
     text.erase(0, 3);  // UTF-8 byte order mark
+  }
+  if (const std::size_t bad = invalid_utf8_offset(text); bad != std::string_view::npos) {
+    int line = 1;
+    std::size_t start = 0;
+    for (std::size_t k = 0; k < bad; ++k) {
+      if (text[k] == '\n') {
+        ++line;
+        start = k + 1;
+      }
+    }
+    throw InputError(SourceLocation{name, line, static_cast<int>(bad - start) + 1},
+                     "invalid UTF-8; save the file as UTF-8 text");
   }
   std::vector<FitPoint> out;
   std::istringstream in(text);
@@ -182,26 +217,28 @@ std::vector<FitPoint> parse_solubility_csv(const std::string& text_in, const std
     }
     if (col_sd >= 0 && !fields[col_sd].text.empty()) {
       p.log10_sd = cell_number(fields[col_sd], "log_sd", name, line_no);
-      if (!(p.log10_sd > 0 && p.log10_sd <= 5.0)) {
+      if (!(p.log10_sd >= kMinFitLog10Sd && p.log10_sd <= 5.0)) {
         throw InputError(SourceLocation{name, line_no, fields[col_sd].column},
-                         "column 'log_sd' is " + fields[col_sd].text + ", expected > 0 and <= 5");
+                         "column 'log_sd' is " + fields[col_sd].text + ", expected " + shown_number(kMinFitLog10Sd) +
+                             " to 5 (log10 units; weights are 1/sd^2)");
       }
     }
     const CsvField& fu = fields[col_unit];
     Amount a;
     try {
-      if (fu.text.empty()) throw InputError("empty unit");
-      a = parse_amount("1" + fu.text);
+      a.unit = parse_unit(fu.text, "column 'unit'");  // as a compound file's 'unit' attribute
     } catch (const InputError& e) {
-      throw InputError(SourceLocation{name, line_no, fu.column},
-                       "column 'unit': unknown unit \"" + fu.text +
-                           "\" (expected e.g. M, mM, mg/mL, ug/mL, g/L)");
+      throw InputError(SourceLocation{name, line_no, fu.column}, e.message());
     }
     a.value = v;
     try {
       p.solubility_mol_per_L = a.to_mol_per_L(molar_mass_g_per_mol, p.temperature_C);
     } catch (const InputError& e) {
       throw InputError(SourceLocation{name, line_no, fu.column}, e.message());
+    }
+    if (const std::string why = measured_solubility_problem(p.solubility_mol_per_L); !why.empty()) {
+      throw InputError(SourceLocation{name, line_no, fv.column},
+                       "solubility " + fv.text + " " + fu.text + " " + why);
     }
     out.push_back(p);
   }

@@ -69,4 +69,38 @@ std::string read_text_file(const std::string& path) {
   return text;
 }
 
+std::size_t invalid_utf8_offset(std::string_view text) {
+  const auto* b = reinterpret_cast<const unsigned char*>(text.data());
+  const std::size_t n = text.size();
+  std::size_t i = 0;
+  while (i < n) {
+    const unsigned char c = b[i];
+    if (c < 0x80) {
+      ++i;
+      continue;
+    }
+    std::size_t len = 0;
+    unsigned char lo = 0x80, hi = 0xBF;  // range of the second byte
+    if (c >= 0xC2 && c <= 0xDF) {
+      len = 2;
+    } else if (c >= 0xE0 && c <= 0xEF) {
+      len = 3;
+      if (c == 0xE0) lo = 0xA0;  // no overlong form
+      if (c == 0xED) hi = 0x9F;  // no surrogate
+    } else if (c >= 0xF0 && c <= 0xF4) {
+      len = 4;
+      if (c == 0xF0) lo = 0x90;  // no overlong form
+      if (c == 0xF4) hi = 0x8F;  // nothing above U+10FFFF
+    } else {
+      return i;
+    }
+    if (i + len > n || b[i + 1] < lo || b[i + 1] > hi) return i;
+    for (std::size_t k = 2; k < len; ++k) {
+      if (b[i + k] < 0x80 || b[i + k] > 0xBF) return i;
+    }
+    i += len;
+  }
+  return std::string_view::npos;
+}
+
 }  // namespace pkarta

@@ -12,10 +12,12 @@
 #include <set>
 #include <sstream>
 
+#include "pkarta/base/format.h"
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/io/text_file.h"
 #include "pkarta/chem/formula.h"
 #include "pkarta/chem/units.h"
+#include "pkarta/io/solubility_csv.h"
 
 namespace pkarta {
 
@@ -25,6 +27,12 @@ extern const std::size_t kBuiltinLibraryXmlSize;
 }  // namespace detail
 
 namespace {
+
+std::string hex_byte(char c) {
+  static const char* const kDigits = "0123456789ABCDEF";
+  const auto u = static_cast<unsigned char>(c);
+  return std::string("0x") + kDigits[u >> 4] + kDigits[u & 15];
+}
 
 // Maps byte offsets to 1-based line and column.
 class Locator {
@@ -75,6 +83,13 @@ class Reader {
     if (!r) {
       throw InputError(loc_.at(r.offset), std::string("malformed XML: ") + r.description());
     }
+    // Well-formed XML may still hold bytes that are not UTF-8 (pugixml passes them through):
+    // refuse them where they are, before a name or id carries them into a report or JSON.
+    const std::size_t bad = invalid_utf8_offset(text);
+    if (bad != std::string_view::npos) {
+      throw InputError(loc_.at(static_cast<std::ptrdiff_t>(bad)),
+                       "invalid UTF-8 (byte " + hex_byte(text[bad]) + "); save the file as UTF-8 text");
+    }
   }
   pugi::xml_node root(const char* expected) {
     pugi::xml_node n = doc_.document_element();
@@ -100,6 +115,9 @@ class Reader {
                              "' on <" + n.name() + "> ignored");
       }
     }
+  }
+  void warn(const pugi::xml_node& n, const std::string& what) {
+    if (warnings_) warnings_->push_back(loc_.at(n).str() + ": warning: " + what);
   }
   void unknown_element(const pugi::xml_node& n) {
     if (warnings_) {
@@ -215,26 +233,46 @@ void check_ascending(Reader& r, const std::vector<Pka>& pkas, const std::vector<
       r.fail(nodes[i], ss.str());
     }
   }
+  // Ascending at their reference temperature, two constants may still cross within the 0-60 °C
+  // the pKa(T) data cover (different dH and dCp): warn, giving where they are out of order.
+  for (std::size_t i = 1; i < pkas.size() && i < nodes.size(); ++i) {
+    double first = -1.0, last = -1.0, at_first_lower = 0.0, at_first_upper = 0.0;
+    for (int step = 0; step <= 120; ++step) {
+      const double t = 0.5 * step;
+      const double lower = pkas[i - 1].at(t), upper = pkas[i].at(t);
+      if (upper > lower) continue;
+      if (first < 0) {
+        first = t;
+        at_first_lower = lower;
+        at_first_upper = upper;
+      }
+      last = t;
+    }
+    if (first < 0) continue;
+    std::ostringstream ss;
+    ss << "pKa " << i + 1 << " (" << pkas[i].value << ") and pKa " << i << " (" << pkas[i - 1].value
+       << ") cross by their temperature dependence: out of order from " << first << " to " << last
+       << " °C (at " << first << " °C " << fixed(at_first_upper, 2) << " and " << fixed(at_first_lower, 2)
+       << "); the macroscopic model, its constants in ascending order, no longer holds there";
+    r.warn(nodes[i], ss.str());
+  }
   if (pkas.size() > static_cast<std::size_t>(kMaxPka)) {
     r.fail(nodes[kMaxPka], "at most " + std::to_string(kMaxPka) + " pKa values are supported");
   }
 }
 
-// The 'unit' attribute alone (the value is in 'value'): parsed as the amount "1 UNIT", so the
-// unit text must not start like a number ("e3M" or "0mM" would silently read as M or mM).
+// The 'unit' attribute alone (the value is in 'value'); the solubility CSV reads its 'unit'
+// column with the same parse_unit, so both accept and refuse the same texts.
 Amount unit_attribute(Reader& r, const pugi::xml_node& n) {
   const std::string unit = r.required(n, "unit");
-  const std::size_t first = unit.find_first_not_of(" \t");
-  const char c = first == std::string::npos ? ' ' : unit[first];
-  if (std::isdigit(static_cast<unsigned char>(c)) || c == '.' || c == '+' || c == '-' || c == 'e' ||
-      c == 'E') {
-    r.fail(n, "attribute 'unit' is \"" + unit + "\", expected a unit alone such as mg/mL, ug/mL or mM");
-  }
+  Amount a;
+  a.value = 1.0;
   try {
-    return parse_amount("1" + unit);
+    a.unit = parse_unit(unit, "attribute 'unit'");
   } catch (const InputError& e) {
-    r.fail(n, "attribute 'unit': " + e.message());
+    r.fail(n, e.message());
   }
+  return a;
 }
 
 double formula_mass(Reader& r, const pugi::xml_node& n, const std::string& formula) {
@@ -597,7 +635,7 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
           r.unknown_element(p);
           continue;
         }
-        r.check_attributes(p, {"pH", "value", "unit", "temperature"});
+        r.check_attributes(p, {"pH", "value", "unit", "temperature", "log-sd"});
         MeasuredPoint m;
         m.where = r.at(p);
         m.pH = r.in_range(p, "pH", r.number(p, "pH"), -1.0, 15.0);
@@ -606,7 +644,14 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         Amount a = unit_attribute(r, p);
         a.value = v;
         m.temperature_C = r.temperature(p, "temperature", 25.0);
+        if (p.attribute("log-sd")) {
+          // As the CSV's log_sd column: 1/sd^2 must stay a finite weight.
+          m.log10_sd = r.in_range(p, "log-sd", r.number(p, "log-sd"), kMinFitLog10Sd, 5.0);
+        }
         m.solubility_mol_per_L = a.to_mol_per_L(c.molar_mass_g_per_mol, m.temperature_C);
+        if (const std::string why = measured_solubility_problem(m.solubility_mol_per_L); !why.empty()) {
+          r.fail(p, "measured solubility " + r.required(p, "value") + " " + r.required(p, "unit") + " " + why);
+        }
         c.measured.push_back(m);
       }
     } else {

@@ -43,7 +43,9 @@ void write_mix_text(const MixResult& r, std::ostream& out) {
     out << "\n";
     for (const std::string& w : e.warnings) out << "warning: " << w << "\n";
   }
-  out << "\nActivity model: Davies; pH = -log10 a(H+). " << caution_text() << "\n";
+  out << "\nActivity model: "
+      << (r.activity == ActivityModel::kDavies ? "Davies" : "ideal (activity coefficients 1)")
+      << "; pH = -log10 a(H+). " << caution_text() << "\n";
 }
 
 void write_mix_csv(const MixResult& r, std::ostream& out) {

@@ -12,6 +12,7 @@
 #include <cstdio>
 #include <cstdlib>
 #include <fstream>
+#include <limits>
 #include <random>
 #include <sstream>
 
@@ -331,6 +332,32 @@ TEST(FitInput, FewerPointsThanParametersNamesTheData) {
     EXPECT_EQ(e.where().line, 3);
     EXPECT_NE(e.message().find("2 measured points for 3 parameters"), std::string::npos) << e.message();
   }
+}
+
+// Points given through the API are held to the readers' limits: a solubility that underflowed
+// to 0 or overflowed, or a log10 sd so small its weight 1/sd^2 overflows, is refused at the
+// point rather than "converged" with an infinite rms.
+TEST(FitInput, DegeneratePointsAreRefusedAtThePoint) {
+  const Library lib = builtin_library();
+  const Compound c = synthetic_ampholyte(-4, 4, 8.5);
+  const std::vector<FitParameter> params = parse_fit_parameters("s0", c);
+  for (int k = 0; k < 4; ++k) {
+    std::vector<FitPoint> pts = {point(3, -3), point(5, -4), point(6, -4)};
+    pts[1].where = SourceLocation{"x.csv", 3, 5};
+    if (k == 0) pts[1].solubility_mol_per_L = 0.0;
+    if (k == 1) pts[1].solubility_mol_per_L = std::numeric_limits<double>::infinity();
+    if (k == 2) pts[1].log10_sd = 1e-300;
+    if (k == 3) pts[1].log10_sd = std::numeric_limits<double>::quiet_NaN();
+    try {
+      fit_solubility(c, lib, pts, params);
+      ADD_FAILURE() << "case " << k << ": no error";
+    } catch (const InputError& e) {
+      EXPECT_EQ(e.where().str(), "x.csv:3:5") << k;
+    }
+  }
+  std::vector<FitPoint> ok = {point(3, -3), point(5, -4), point(6, -4)};
+  ok[1].log10_sd = 1e-4;  // the smallest sd accepted
+  EXPECT_TRUE(fit_solubility(c, lib, ok, params).usable());
 }
 
 TEST(FitInput, ParameterNamesAreChecked) {

@@ -14,7 +14,7 @@
 namespace {
 
 struct Case {
-  const char* kind;     // "option", "compound file", "library file", "data"
+  const char* kind;     // "option", "compound file", "library file", "data file", "data"
   const char* file;     // text of {F}, or nullptr
   const char* args;     // command line; {F} is replaced by the file's path
   int code;             // expected exit code
@@ -122,6 +122,41 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       library(" <ion id='Q+' charge='1.5' molar-mass='10'/>\n"),                      // 56
       library(" <reagent id='r' formula='Ca(OH'><gives ion='Ca2+'/></reagent>\n"),    // 57
       library(" <buffer id='b' system='phosphate' max-conc='5 mg/mL'/>\n"),           // 58
+      // measured points that underflow, overflow or weigh without limit (59..)
+      base_with(" <measured-solubility><point pH='2' value='1e-320' unit='ug/mL'/></measured-solubility>\n"),  // 59
+      base_with(" <measured-solubility><point pH='2' value='1e308' unit='%w/v'/></measured-solubility>\n"),  // 60
+      base_with(" <measured-solubility><point pH='2' value='1e-400' unit='mg/mL'/></measured-solubility>\n"),  // 61
+      base_with(" <measured-solubility><point pH='2' value='1e400' unit='mg/mL'/></measured-solubility>\n"),  // 62
+      base_with(" <measured-solubility><point pH='2' value='3' unit='mg/mL' log-sd='1e-300'/></measured-solubility>\n"),  // 63
+      "pH,value,unit,log_sd\n2,3,mg/mL,1e-300\n7,20,ug/mL,0.1\n",               // 64 CSV
+      "pH,value,unit\n2,1e-320,ug/mL\n7,20,ug/mL\n",                             // 65 CSV
+      "pH,value,unit\n2,1e308,%w/v\n7,20,ug/mL\n",                                // 66 CSV
+      "pH,value,unit\n2,1e400,mg/mL\n7,20,ug/mL\n",                               // 67 CSV
+      "pH,value,unit\n2,1e-400,mg/mL\n7,20,ug/mL\n",                              // 68 CSV
+      // option and unit text that is not what it says (69..)
+      "pH,value,unit\n2,3,e3M\n7,20,ug/mL\n",                                      // 69 CSV
+      "pH,value,unit\n2,3,0mM\n7,20,ug/mL\n",                                      // 70 CSV
+      // bytes that are not UTF-8 in names and ids (71..)
+      "<compound id='x' name='bad\xff\xfename' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 71
+      "<compound id='x\xc3' name='n' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 72 cut sequence
+      "<compound id='x' name='\xc0\xafx' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 73 overlong
+      "<compound id='x' name='\xed\xa0\x80x' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n</compound>\n",             // 74 surrogate
+      base_with(" <salt id='h\xff" "cl' counterion='Cl-' ksp='1e-3'/>\n"),              // 75
+      library(" <ion id='Q\xff+' charge='1' molar-mass='10'/>\n"),                   // 76
+      library(" <medium id='m' name='sal\xe9ine'><add reagent='NaCl' amount='9g/L'/></medium>\n"),  // 77 Latin-1
+      "pH,value,unit,not\xff\n2,3,mg/mL,1\n7,20,ug/mL,1\n",                       // 78 CSV
+      // extreme charge (79..)
+      "<compound id='q' name='q' molar-mass='300' permanent-charge='16'>\n <pka value='3' type='acid'/>\n</compound>\n",  // 79
+      // pKa values that cross with temperature (80..); van 't Hoff by hand: 0.4 = (120 kJ/mol /
+      // (R ln 10)) (1/298.15 K - 1/T) gives T = 303.9 K, 30.8 °C, so out of order from 31 °C
+      compound(" <pka value='7.0' type='acid' dH='-60'/>\n <pka value='7.4' type='acid' dH='60'/>\n"
+               " <intrinsic-solubility value='1' unit='ug/mL'/>\n"),                  // 80
+      library(" <system id='s' name='s' source='invented'>\n  <pka value='4' type='acid' dH='-40'/>\n"
+              "  <pka value='4.1' type='acid' dH='40'/>\n </system>\n"),              // 81
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -245,6 +280,79 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"library file", F(57), "check {F}", 2, "formula \"Ca(OH\": missing ')'"},
       {"library file", F(58), "check {F}", 2, "max-conc must be in M, mM or mol/kg"},
       {"library file", F(52), "mix --add NaCl=10mM --library {F}", 2, "beyond the 10 mol/L"},
+      // measured solubilities for the fit: every one must give a finite log10 S and weight
+      {"compound file", F(59), "check {F}", 2, ":4:23: measured solubility 1e-320 ug/mL underflows to 0 mol/L, expected 1e-15 to 10 mol/L"},
+      {"compound file", F(60), "check {F}", 2, ":4:23: measured solubility 1e308 %w/v overflows in mol/L"},
+      {"compound file", F(61), "check {F}", 2, ":4:23: attribute 'value' is out of the range of numbers: \"1e-400\""},
+      {"compound file", F(62), "check {F}", 2, ":4:23: attribute 'value' is out of the range of numbers: \"1e400\""},
+      {"compound file", F(63), "fit --compound {F} --params s0", 2, ":4:23: attribute 'log-sd' of <point> is 1e-300, expected 0.0001 to 5"},
+      {"data file", F(64), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:11: column 'log_sd' is 1e-300, expected 0.0001 to 5"},
+      {"data file", F(65), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: solubility 1e-320 ug/mL underflows to 0 mol/L"},
+      {"data file", F(66), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: solubility 1e308 %w/v overflows in mol/L"},
+      {"data file", F(67), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: column 'value' is out of the range of numbers: \"1e400\""},
+      {"data file", F(68), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:3: column 'value' is out of the range of numbers: \"1e-400\""},
+      // numbers and units that wrap or are not what they say
+      {"option", nullptr, "fit --compound compounds/demo-base.xml --params pka4294967297", 2,
+       "--params: 'pka4294967297': compound 'demo-base' has 2 pKa values (pka1..pka2)"},
+      {"option", nullptr, "fit --compound compounds/demo-base.xml --params pka18446744073709551617", 2,
+       "--params: 'pka18446744073709551617': compound 'demo-base' has 2 pKa values"},
+      {"option", nullptr, "screen --compound compounds/demo-base.xml --dose 1mg/mL --target-ph 5 --threads 4294967297", 2,
+       "--threads: value 4294967297 is out of range, expected 0 to 1024"},
+      {"option", nullptr, "profile --compound compounds/demo-base.xml --uncertainty 10 --seed 1.5", 2,
+       "--seed: expected a whole number, got 1.5"},
+      {"option", nullptr, "profile --compound compounds/demo-base.xml --uncertainty 1e1.5", 2,
+       "--uncertainty: value is not a number: \"1e1.5\""},
+      {"option", nullptr, "report --compound compounds/demo-base.xml --format xml -o x.html", 2,
+       "--format: unknown format \"xml\": report accepts only text"},
+      {"option", nullptr, "report --compound compounds/demo-base.xml --format json -o x.html", 2,
+       "--format: unknown format \"json\": report accepts only text"},
+      {"option", nullptr, "demo --format csv", 2, "--format: unknown format \"csv\": demo accepts only text"},
+      {"data file", F(69), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:5: column 'unit' is \"e3M\", expected a unit alone such as mg/mL, ug/mL or mM"},
+      {"data file", F(70), "fit --compound compounds/demo-base.xml --params s0 --data {F}", 2,
+       ":2:5: column 'unit' is \"0mM\", expected a unit alone"},
+      // names and ids that are not UTF-8: refused where they are, before any JSON or HTML
+      {"compound file", F(71), "check {F}", 2, ":1:27: invalid UTF-8 (byte 0xFF); save the file as UTF-8 text"},
+      {"compound file", F(71), "profile --compound {F} --format json", 2, ":1:27: invalid UTF-8 (byte 0xFF)"},
+      {"compound file", F(71), "mix --compound {F} --dose 1mg/mL --format json", 2, ":1:27: invalid UTF-8 (byte 0xFF)"},
+      {"compound file", F(71), "report --compound {F} -o never-written.html", 2, ":1:27: invalid UTF-8 (byte 0xFF)"},
+      {"compound file", F(72), "check {F}", 2, ":1:16: invalid UTF-8 (byte 0xC3)"},
+      {"compound file", F(73), "check {F}", 2, ":1:24: invalid UTF-8 (byte 0xC0)"},
+      {"compound file", F(74), "check {F}", 2, ":1:24: invalid UTF-8 (byte 0xED)"},
+      {"compound file", F(75), "check {F}", 2, ":4:13: invalid UTF-8 (byte 0xFF)"},
+      {"library file", F(76), "check {F}", 2, ":2:12: invalid UTF-8 (byte 0xFF)"},
+      {"library file", F(77), "mix --add NaCl=1mM --library {F} --format json", 2, ":2:26: invalid UTF-8 (byte 0xE9)"},
+      {"data file", F(78), "fit --compound compounds/demo-base.xml --params s0 --data {F} --format json", 2,
+       ":1:18: invalid UTF-8; save the file as UTF-8 text"},
+      // valid-looking extremes: the 10 mol/L the model covers, in concentration and in charge
+      {"compound file", F(79), "mix --compound {F} --dose 1M", 2,
+       "--dose: the dose of q at 1M carries up to 16.0 mol/L of charge (species of charge 16 at 1.00 mol/L), beyond the 10 mol/L"},
+      {"compound file", F(79), "screen --compound {F} --dose 1M --target-ph 5", 2, "--dose: the dose of q at 1M carries up to 16.0 mol/L"},
+      {"compound file", F(79), "report --compound {F} --dose 1M -o never-written.html", 2, "--dose: the dose of q at 1M carries up to 16.0"},
+      {"compound file", F(79), "recipe --buffer phosphate --ph 7 --conc 50mM --compound {F} --dose 1M", 2, "--dose: the dose of q at 1M carries"},
+      {"option", nullptr, "classify --compound compounds/demo-base.xml --dose-mg 100 --volume-mL 1e-300", 2,
+       "--volume-mL: 100 mg in 1e-300 mL is 3.21e+299 mol/L, beyond the 10 mol/L the model covers"},
+      {"option", nullptr, "classify --compound compounds/demo-base.xml --dose-mg 4000 --volume-mL 1", 2,
+       "--volume-mL: 4000 mg in 1 mL is 12.8 mol/L, beyond the 10 mol/L"},
+      // pKa values that cross inside 0-60 °C: a warning, the input is still read
+      {"compound file", F(80), "check {F}", 0,
+       ":3:2: warning: pKa 2 (7.4) and pKa 1 (7) cross by their temperature dependence: out of order from 31 to 60 °C"},
+      {"compound file", F(80), "profile --compound {F} --temp 60", 0, "the macroscopic model, its constants in ascending order, no longer holds there"},
+      {"library file", F(81), "check {F}", 0, ":4:3: warning: pKa 2 (4.1) and pKa 1 (4) cross by their temperature dependence: out of order from"},
+      // -o of the one-stream commands: checked before any work
+      {"option", nullptr, "mix --add KH2PO4=25mM --format json -o /nonexistent-folder/x.json", 2,
+       "/nonexistent-folder/x.json: cannot write: the folder /nonexistent-folder does not exist"},
+      {"option", nullptr, "profile --compound compounds/demo-base.xml -o compounds/demo-base.xml", 2,
+       "refusing to overwrite the input file compounds/demo-base.xml"},
+      {"option", nullptr, "screen --compound compounds/demo-base.xml --dose 1mg/mL --target-ph 6 -o /dev/null", 2,
+       "/dev/null: the output path is a character device, not a regular file"},
+      {"option", nullptr, "fit --compound compounds/demo-base.xml -o -", 2,
+       "--output: fit prints its result on standard output; give a file name for the fitted compound file"},
       // data the model does not cover
       {"data", nullptr, "mix --add HCl=9M --add NaCl=9M", 1, "too concentrated for the model"},
   };

@@ -1,6 +1,8 @@
 // The measured-solubility CSV reader: columns in any order, units, weights, located errors.
 #include "pkarta/io/solubility_csv.h"
 
+#include "pkarta/io/xml_input.h"
+
 #include <gtest/gtest.h>
 
 #include <string>
@@ -59,6 +61,44 @@ TEST(SolubilityCsv, ErrorsNameLineAndColumn) {
   EXPECT_NE(e.message().find("header"), std::string::npos);
   e = error_of("pH,value,unit\n20,3,mg/mL\n");
   EXPECT_NE(e.message().find("expected -1 to 15"), std::string::npos);
+}
+
+// The CSV 'unit' column and a compound file's 'unit' attribute accept and refuse the same
+// texts: "e3M" was read by the CSV as M (the amount "1e3M") but refused by the XML reader.
+TEST(SolubilityCsv, UnitColumnAgreesWithTheCompoundFileUnitAttribute) {
+  const Library lib = builtin_library();
+  auto csv_ok = [](const std::string& unit) {
+    try {
+      parse_solubility_csv("pH,value,unit\n2,3,\"" + unit + "\"\n", "d.csv", 300.0, nullptr);
+      return true;
+    } catch (const InputError&) {
+      return false;
+    }
+  };
+  auto xml_ok = [&](const std::string& unit) {
+    try {
+      parse_compound("<compound id='x' name='x' molar-mass='300'><pka value='8' type='base'/>"
+                     "<intrinsic-solubility value='1' unit='ug/mL'/><measured-solubility>"
+                     "<point pH='2' value='3' unit='" + unit + "'/></measured-solubility></compound>",
+                     "c.xml", lib, nullptr);
+      return true;
+    } catch (const InputError&) {
+      return false;
+    }
+  };
+  for (const char* unit : {"mg/mL", "ug/mL", "M", "mM", "uM", "g/L", "%w/v", " mg/mL ", "mol/kg"}) {
+    EXPECT_TRUE(csv_ok(unit)) << unit;
+    EXPECT_TRUE(xml_ok(unit)) << unit;
+  }
+  for (const char* unit : {"e3M", "E3M", "0mM", "1mM", ".5M", "-M", "+mM", "stone", "", "mg/mL 2"}) {
+    EXPECT_FALSE(csv_ok(unit)) << unit;
+    EXPECT_FALSE(xml_ok(unit)) << unit;
+  }
+  try {
+    parse_solubility_csv("pH,value,unit\n2,3,e3M\n", "d.csv", 300.0, nullptr);
+  } catch (const InputError& e) {
+    EXPECT_EQ(std::string(e.what()), "d.csv:2:5: column 'unit' is \"e3M\", expected a unit alone such as mg/mL, ug/mL or mM");
+  }
 }
 
 }  // namespace

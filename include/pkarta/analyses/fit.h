@@ -123,7 +123,8 @@ std::vector<FitParameter> default_fit_parameters(const Compound& compound, const
 /// data do not determine (FitOptions::min_leverage, or an estimate at the end of its range) are
 /// held at their starting values (std_error NaN, listed in `held`, with a warning naming them).
 /// Throws InputError (located at the data's last point) when there are fewer points than
-/// parameters; numerical trouble is reported through status, message and warnings.
+/// parameters, and (located at the point) for a solubility outside 1e-15 to 10 mol/L or a
+/// log10 sd that is neither 0 nor 1e-4 to 5, as the readers refuse them; numerical trouble is reported through status, message and warnings.
 /// Example: fit_solubility(c, lib, fit_points_from_compound(c), parse_fit_parameters("", c), {})
 FitResult fit_solubility(const Compound& compound, const Library& library,
                          const std::vector<FitPoint>& points, std::vector<FitParameter> parameters,

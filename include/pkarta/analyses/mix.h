@@ -15,6 +15,7 @@ struct MixResult {
   double osmolality_estimate_mOsm_per_kg = 0.0;  ///< osmotic coefficient 0.93: an estimate
   std::vector<std::string> inputs;               ///< "KH2PO4 25 mM", for the text header
   std::string drug_name;
+  ActivityModel activity = ActivityModel::kDavies;  ///< as solved (named in the text footer)
 };
 
 /// Osmotic coefficient used for the osmolality estimate (NaCl at physiological strength,

@@ -13,8 +13,14 @@ std::string fixed(double value, int decimals);
 /// Significant digits in plain or scientific notation ("0.0250", "1.23e-05").
 std::string sig(double value, int digits = 4);
 
-/// RFC 4180 field: quoted when it holds a comma, quote, CR or LF; quotes doubled.
-std::string csv_field(const std::string& text);
+/// True for a text cell a spreadsheet would take for a formula: it starts with '=', '+', '-',
+/// '@', tab or CR and is not a plain number ("-0.25", "+3", "1e-3" are numbers).
+bool csv_formula_like(const std::string& text);
+/// RFC 4180 field: quoted when it holds a comma, quote, CR or LF; quotes doubled. A
+/// formula-like text cell (csv_formula_like) is first prefixed with a single quote (OWASP,
+/// "CSV Injection"), so "=HYPERLINK(...)" reaches a spreadsheet as text. Every CSV pkarta
+/// writes goes through this function (write_csv_row).
+std::string csv_field(const std::string& text_in);
 /// Writes one CSV record (RFC 4180, CRLF line ending).
 void write_csv_row(std::ostream& out, const std::vector<std::string>& fields);
 

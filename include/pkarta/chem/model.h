@@ -181,6 +181,7 @@ struct MeasuredPoint {
   double pH = 7.0;
   double solubility_mol_per_L = 0.0;
   double temperature_C = 25.0;
+  double log10_sd = 0.0;  ///< standard uncertainty of log10 S (the fit's weight 1/sd^2); 0: unweighted
   SourceLocation where;
 };
 

@@ -27,6 +27,16 @@ struct Amount {
 /// Throws InputError (without location; callers add it) naming the problem.
 Amount parse_amount(std::string_view text);
 
+/// The highest concentration of one reagent, dose or solubility the model covers, mol/L: the
+/// solver's pH bracket (-3 to 17) holds for totals up to this. More is a typing error.
+inline constexpr double kMaxConc_mol_per_L = 10.0;
+
+/// A unit alone, as a file gives it beside a separate value (a compound file's 'unit'
+/// attribute, the 'unit' column of a solubility CSV). Text that starts like a number is
+/// refused ("e3M" or "0mM" would otherwise read as the amount 1e3 M or 10 mM). Throws
+/// InputError whose message starts with `what` ("attribute 'unit'", "column 'unit'").
+AmountUnit parse_unit(std::string_view text, std::string_view what);
+
 /// Parses a finite number (whole string, locale-independent). Throws InputError.
 double parse_number(std::string_view text, std::string_view what);
 

@@ -51,7 +51,8 @@ inline constexpr const char* kSetManifest = ".pkarta-files";
 /// on that folder, so eight writers to the same path leave one complete set.
 /// Refuses (InputError, before writing anything) a folder that holds files pkarta did not write
 /// (no manifest lists them), a folder name "." or "..", and everything refuse_to_overwrite_inputs
-/// refuses. A failed run removes what it wrote and leaves the old set as it was.
+/// refuses. A failed run removes what it wrote and leaves the old set as it was. A replaced
+/// main file keeps its mode and owner, as with write_file_atomically (one shared step).
 void write_file_set(const std::string& main_path, std::string_view main_content, const std::string& folder_path,
                     const std::vector<SetFile>& files, const std::vector<std::string>& inputs_to_protect);
 
