@@ -415,6 +415,84 @@ double EquilibriumModel::solubility_limit(double pH, int* limiting) const {
   return best;
 }
 
+bool EquilibriumModel::partition_slope(const Partition& p, double h, double zb, double z2,
+                                       double* slope) const {
+  // Unknowns: dmu_l (l: the drug and the counterions of the salts present) and dlambda_r (the
+  // solids present). Rows: c_l dmu_l + sum_r nu_rl dlambda_r = 0 (totals fixed);
+  // sum_l nu_rl dmu_l = dlogk_r, with d ln alpha_j / d ln h = z_j - zbar.
+  const int nc = static_cast<int>(comp_ion_.size());
+  int local_of[kMaxComp], comps[kMaxComp], ncl = 0;
+  for (int c = 0; c < nc; ++c) local_of[c] = -1;
+  local_of[0] = 0;
+  comps[ncl++] = 0;
+  int salt_of[kMaxComp];  // -1 free form, else model salt
+  int ns = 0;
+  if (p.solids.free) salt_of[ns++] = -1;
+  for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
+    if (!p.solids.has_salt(salts_[k].index)) continue;
+    salt_of[ns++] = k;
+    if (local_of[salts_[k].comp] < 0) {
+      local_of[salts_[k].comp] = ncl;
+      comps[ncl++] = salts_[k].comp;
+    }
+  }
+  double conc[kMaxComp];
+  conc[0] = p.dissolved;
+  for (int l = 1; l < ncl; ++l) {
+    const int c = comps[l];
+    double left = component_total(c);
+    for (int k = 0; k < static_cast<int>(salts_.size()); ++k) {
+      if (salts_[k].comp == c) left -= salts_[k].n * p.salt_solid[k];
+    }
+    conc[l] = left;
+  }
+  double sys_zb[kMaxSalts] = {}, sys_var[kMaxSalts] = {};
+  const int dim = ncl + ns;
+  double a[2 * kMaxComp][2 * kMaxComp + 1] = {};
+  for (int l = 0; l < ncl; ++l) {
+    if (!(conc[l] > 0)) return false;
+    a[l][l] = conc[l];
+  }
+  for (int r = 0; r < ns; ++r) {
+    double dlogk;
+    if (salt_of[r] < 0) {
+      a[0][ncl + r] = 1.0;
+      a[ncl + r][0] = 1.0;
+      dlogk = zb;  // ln(S0 / alpha_neutral), the neutral species of charge 0
+    } else {
+      const SaltPhase& s = salts_[salt_of[r]];
+      const int l = local_of[s.comp];
+      a[0][ncl + r] = s.m;
+      a[ncl + r][0] = s.m;
+      a[l][ncl + r] = s.n;
+      a[ncl + r][l] = s.n;
+      dlogk = -s.m * (s.zd - zb);
+      if (s.sys >= 0) {
+        double al[kMaxPka + 1], szb, sz2;
+        moments(systems_[s.sys], h, al, &szb, &sz2);
+        sys_zb[salt_of[r]] = szb;
+        sys_var[salt_of[r]] = sz2 - szb * szb;
+        dlogk -= s.n * (s.zx - szb);
+      }
+    }
+    a[ncl + r][dim] = dlogk;
+  }
+  double sol[2 * kMaxComp];
+  if (!solve_dense(dim, a, sol)) return false;
+  double g = p.dissolved * (sol[0] * zb + (z2 - zb * zb));
+  for (int r = 0; r < ns; ++r) {
+    if (salt_of[r] < 0) continue;
+    const int k = salt_of[r];
+    const SaltPhase& s = salts_[k];
+    const double zq = s.sys >= 0 ? sys_zb[k] : s.zx;
+    g -= s.n * sol[ncl + r] * zq;
+    if (s.sys >= 0) g -= s.n * p.salt_solid[k] * sys_var[k];
+  }
+  if (!std::isfinite(g)) return false;
+  *slope = g;
+  return true;
+}
+
 // True when every candidate solid outside `subset` is undersaturated (within `slack`), at
 // dissolved drug d and dissolved counterion x[c] of each component.
 bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double* alpha,
@@ -661,8 +739,10 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
       dsum += d * (z2 - zb * zb);
     } else if (p.solids.free && p.solids.salts == 0) {
       dsum += d * z2;  // c_j = S0 alpha_j/alpha_n grows as h^z_j: d(sum z c)/d ln h = sum z^2 c
+    } else if (double slope = 0.0; partition_slope(p, h, zb, z2, &slope)) {
+      dsum += slope;  // salts present: the slope at fixed solids, by implicit differentiation
     } else {
-      // Salt present: differentiate the drug's share numerically (rare branch).
+      // Singular at fixed solids (a solid at zero amount): differentiate numerically.
       const double step = 1e-6;
       auto drug_charge = [&](double x) {
         double a2[kMaxPka + 1], zb2, z22;

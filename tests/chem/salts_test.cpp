@@ -184,7 +184,7 @@ TEST(Property, SeveralSolidsRandomCompoundsConvergeAtSaturation) {
   const Option options[] = {{"Cl-", -1, 1, 1}, {"Cl-", -1, 1, 2}, {"Br-", -1, 1, 1},
                             {"SO4--", -2, 2, 1}, {"SO4--", -2, 1, 1}, {"Cl-", -1, 1, 3},
                             {"Na+", 1, 1, 1},   {"Ca2+", 2, 2, 1},   {"K+", 1, 1, 2}};
-  int states = 0, multi = 0;
+  int states = 0, multi = 0, slopes = 0;
   for (int trial = 0; trial < 10000; ++trial) {
     Compound c;
     c.id = "drug";
@@ -238,6 +238,21 @@ TEST(Property, SeveralSolidsRandomCompoundsConvergeAtSaturation) {
     ASSERT_LT(e.mass_residual_rel, 1e-10) << trial;
     const SolidSet& sol = e.drug->solids;
     if (sol.count() >= 2) ++multi;
+    // The charge balance's analytic slope (solids held, implicit differentiation) against a
+    // central difference, where the same solids stay present on both sides.
+    if (sol.salts != 0) {
+      EquilibriumModel model(m);
+      model.set_ionic_strength(e.ionic_strength_mol_per_L);
+      const double step = 1e-6;
+      const EquilibriumModel::Evaluation at = model.evaluate(e.pH);
+      const EquilibriumModel::Evaluation up = model.evaluate(e.pH + step);
+      const EquilibriumModel::Evaluation down = model.evaluate(e.pH - step);
+      if (up.drug.solids == sol && down.drug.solids == sol && at.drug.solids == sol) {
+        const double fd = (up.charge - down.charge) / (2 * step);
+        ASSERT_NEAR(at.dcharge_dpH / fd, 1.0, 1e-4) << trial << " " << e.drug->solid;
+        ++slopes;
+      }
+    }
     for (int k = -1; k < static_cast<int>(c.salts.size()); ++k) {
       const bool present = k < 0 ? sol.free : sol.has_salt(k);
       const double ratio = saturation_of(e, m, k);
@@ -250,6 +265,7 @@ TEST(Property, SeveralSolidsRandomCompoundsConvergeAtSaturation) {
   }
   EXPECT_GT(states, 5000);
   EXPECT_GT(multi, 100);  // the test does reach states of two or more solids
+  EXPECT_GT(slopes, 1000);  // and checks the slope with salts present
 }
 
 }  // namespace

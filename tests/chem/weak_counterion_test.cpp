@@ -201,6 +201,13 @@ TEST(WeakCounterion, SlurryOfTheSaltInWaterByHand) {
     if (sp.system == "maleate") maleate_total += sp.conc_mol_per_L;
   }
   EXPECT_NEAR(maleate_total / e.drug->dissolved_mol_per_L, 1.0, 1e-9);
+  // The charge balance's analytic slope with the salt held present (the counterion system's
+  // fractions move with the pH too) against a central difference.
+  EquilibriumModel model(salt_solution(0.2, ksp, true));
+  const double step = 1e-6;
+  const EquilibriumModel::Evaluation at = model.evaluate(e.pH);
+  const double fd = (model.evaluate(e.pH + step).charge - model.evaluate(e.pH - step).charge) / (2 * step);
+  EXPECT_NEAR(at.dcharge_dpH / fd, 1.0, 1e-5);
 }
 
 // With Davies activities the salt's Ksp is an activity product: derived from the salt's

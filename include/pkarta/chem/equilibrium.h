@@ -236,6 +236,11 @@ class EquilibriumModel {
   void update_effective_constants();
   static double moments(const Sys& s, double h, double* alpha, double* zbar, double* z2bar);
   Partition partition(const double* alpha, double h, double dose) const;
+  /// d/d ln[H+] of the drug's share of the charge (dissolved drug charge less the counterion
+  /// its salts hold) with the partition's solids kept present: implicit differentiation of the
+  /// solids' solubility products and the mass balances (the Newton matrix of the dual).
+  /// zb, z2: the drug's mean charge and mean squared charge at h. False when singular.
+  bool partition_slope(const Partition& p, double h, double zb, double z2, double* slope) const;
   /// Charge, |charge|, z^2 and particle sums of the counterion taken out of solution by the
   /// partition's salts (strong ions by their charge, system species by the system's moments).
   void removed_moments(const Partition& p, double h, double* charge, double* abs_charge, double* z2,
