@@ -171,11 +171,27 @@ class Reader {
   }
   Amount amount(const pugi::xml_node& n, const char* attr) const {
     const std::string v = required(n, attr);
+    Amount a;
     try {
-      return parse_amount(v);
+      a = parse_amount(v);
     } catch (const InputError& e) {
       fail(n, "attribute '" + std::string(attr) + "': " + e.message());
     }
+    // Files are read as strictly as their schema: a number, at most one space, and the unit
+    // spelled as the schema spells it (the command line is more lenient).
+    const std::string canon = unit_spelling(a.unit);
+    std::string number = v.size() >= canon.size() && v.compare(v.size() - canon.size(), canon.size(), canon) == 0
+                             ? v.substr(0, v.size() - canon.size())
+                             : std::string("?");
+    if (!number.empty() && number.back() == ' ') number.pop_back();
+    const bool plain = !number.empty() && number.find_first_not_of("0123456789.eE+-") == std::string::npos &&
+                       (std::isdigit(static_cast<unsigned char>(number[0])) || number[0] == '.');
+    if (!plain) {
+      fail(n, "attribute '" + std::string(attr) + "' is \"" + v + "\": write a number, at most one space " +
+                  "and the unit as the schema spells it (" + canon + "; units: M, mM, uM, mol/kg, mg/mL, " +
+                  "g/L, ug/mL, %w/v)");
+    }
+    return a;
   }
   double temperature(const pugi::xml_node& n, const char* attr, double def) const {
     const double t = number_or(n, attr, def);
@@ -271,6 +287,10 @@ Amount unit_attribute(Reader& r, const pugi::xml_node& n) {
     a.unit = parse_unit(unit, "attribute 'unit'");
   } catch (const InputError& e) {
     r.fail(n, e.message());
+  }
+  if (unit != unit_spelling(a.unit)) {
+    r.fail(n, "attribute 'unit' is \"" + unit + "\": write it as the schema spells it, " +
+                  unit_spelling(a.unit) + " (units: M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v)");
   }
   return a;
 }

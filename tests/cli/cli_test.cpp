@@ -209,6 +209,37 @@ TEST(Schema, ShippedFilesValidateAgainstTheXsd) {
   EXPECT_FALSE(valid("compound.xsd", broken));
 }
 
+// `check` and the XSD (xmllint) agree on how amounts and units are spelled in a compound
+// file: each variant below is accepted by both or refused by both.
+TEST(Schema, CheckAgreesWithTheXsdOnUnitsAndAmounts) {
+  const std::string src = PKARTA_SOURCE_DIR;
+  auto xsd_ok = [&](const std::string& file) {
+    const std::string cmd = "xmllint --noout --schema " + src + "/compounds/schema/compound.xsd " + file +
+                            " >/dev/null 2>&1";
+    return std::system(cmd.c_str()) == 0;
+  };
+  const std::string head = "<compound id='x' name='x' molar-mass='300'><pka value='8' type='base'/>";
+  int i = 0;
+  for (const char* unit : {"ug/mL", "mg/mL", "uM", "M", "%w/v", "µg/mL", "mg/ml", "MG/ML", "mcg/mL", " mg/mL"}) {
+    const std::string f = write_file("u" + std::to_string(i++) + ".xml",
+                                     head + "<intrinsic-solubility value='1' unit='" + unit + "'/></compound>");
+    const RunResult r = run("check " + f);
+    EXPECT_EQ(r.code == 0, xsd_ok(f)) << unit << ": " << r.err;
+    if (r.code != 0) {
+      EXPECT_EQ(r.code, 2) << unit;
+      EXPECT_NE(r.err.find(":1:"), std::string::npos) << r.err;
+    }
+  }
+  for (const char* amount : {"5 mg/mL", "5mg/mL", "0.02 M", "5 mg/ml", "5  mg/mL", "5 µg/mL"}) {
+    const std::string f = write_file("a" + std::to_string(i++) + ".xml",
+                                     head + "<intrinsic-solubility value='1' unit='mg/mL'/>"
+                                     "<salt id='hydrochloride' counterion='Cl-' solubility-in-water='" + amount +
+                                     "'/></compound>");
+    const RunResult r = run("check " + f);
+    EXPECT_EQ(r.code == 0, xsd_ok(f)) << amount << ": " << r.err;
+  }
+}
+
 // A label claim "equivalent to 2 mg/mL of the base" (common practice for salts): with
 // --dose-as free the amount converts with the free form's molar mass (demo base 311.4 g/mol,
 // invented), otherwise with the salt's (hydrochloride 347.9 g/mol); the chloride follows the

@@ -11,6 +11,9 @@ namespace pkarta {
 /// ug/mL (µg/mL also accepted), %w/v (g per 100 mL).
 enum class AmountUnit { kMolar, kMillimolar, kMicromolar, kMolal, kMgPerMl, kGPerL, kUgPerMl, kPercentWv };
 
+/// The unit as the file schemas spell it: M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v.
+const char* unit_spelling(AmountUnit unit);
+
 /// A value with its unit, as written by the user.
 struct Amount {
   double value = 0.0;
