@@ -244,9 +244,63 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
                      [](const auto& x, const auto& y) { return x.first < y.first; });
     for (const auto& st : sets) subsets_.push_back(st.second);
   }
+  per_species_ = m.activity == ActivityModel::kSit || m.activity == ActivityModel::kTruesdellJones;
+  if (per_species_) prepare_activity_terms(m);
   double i0 = 0.0;
   for (const IonC& i : ions_) i0 += 0.5 * i.charge * i.charge * i.conc;
   set_ionic_strength(i0);
+}
+
+// Terms of every species under a model with specific terms (docs/model.md, "Activities"):
+// the strong ions of the mixture make the medium; a species whose terms have the generic
+// form (Ba and b of a species without parameters) needs no power of its own at each I, only
+// the generic coefficient of its charge times the constant factor 10^c.
+void EquilibriumModel::prepare_activity_terms(const Mixture& m) {
+  ActivityMedium medium(m.activity, temperature_C_);
+  for (const IonAmount& i : m.ions) medium.add_ion(i.id, i.charge, i.conc_mol_per_L);
+  const LogGammaTerms g1 = medium.terms("", 1);
+  generic_ba_ = g1.ba;
+  generic_b1_ = g1.b;
+  auto generic = [&](const LogGammaTerms& t, int z) {
+    return z == 0 || (t.ba == generic_ba_ && t.b == generic_b1_ * z * z);
+  };
+  auto prepare = [&](Sys& s, const std::string& key) {
+    for (int j = 0; j <= s.n; ++j) {
+      const int z = s.z0 - j;
+      s.act[j] = medium.terms(key, z);
+      s.generic_form[j] = generic(s.act[j], z);
+      s.fixed[j] = std::pow(10.0, s.act[j].c);
+    }
+  };
+  for (std::size_t k = 0; k < systems_.size(); ++k) prepare(systems_[k], m.systems[k].system.id);
+  if (has_drug_) prepare(drug_, "");  // a drug has no published terms: the generic form
+  for (std::size_t t = 0; t < ions_.size(); ++t) {
+    IonC& i = ions_[t];
+    i.act = medium.terms(m.ions[t].id, i.charge);
+    i.generic_form = generic(i.act, i.charge);
+    i.fixed = std::pow(10.0, i.act.c);
+  }
+  h_act_ = medium.terms("H+", 1);
+  oh_act_ = medium.terms("OH-", -1);
+  for (std::size_t t = 0; t < ions_.size(); ++t) {
+    const std::optional<HydroxoComplex> hc = hydroxo_complex(m.ions[t].id, ions_[t].charge);
+    if (!hc || !(ions_[t].conc > 0)) continue;
+    HydroxoPair q;
+    q.ion = static_cast<int>(t);
+    q.z = ions_[t].charge;
+    q.k = hc->k_at(temperature_C_);
+    q.act = medium.terms(m.ions[t].id + "OH", q.z - 1);
+    pairs_.push_back(q);
+  }
+}
+
+double EquilibriumModel::hydroxo_paired(int ion, double pH) const {
+  for (const HydroxoPair& q : pairs_) {
+    if (q.ion != ion) continue;
+    const double kx = q.k_eff * kw_ / (std::pow(10.0, -pH) * gamma_oh_);
+    return ions_[ion].conc * kx / (1.0 + kx);
+  }
+  return 0.0;
 }
 
 void EquilibriumModel::set_ionic_strength(double I) {
@@ -255,7 +309,14 @@ void EquilibriumModel::set_ionic_strength(double I) {
     gamma_.fill(1.0);
   } else {
     // gamma_z = gamma_1^(z^2), built by multiplication: z^2 - (z-1)^2 = 2z - 1.
-    const double g1 = std::pow(10.0, -a_davies_ * davies_bracket(I));
+    double g1;
+    double sqrt_i = 0.0;
+    if (per_species_) {
+      sqrt_i = std::sqrt(I > 0 ? I : 0.0);
+      g1 = std::pow(10.0, log10_gamma({generic_ba_, generic_b1_, 0.0}, 1, a_davies_, I, sqrt_i));
+    } else {
+      g1 = std::pow(10.0, -a_davies_ * davies_bracket(I));
+    }
     const double g1sq = g1 * g1;
     double g = 1.0, factor = g1;
     gamma_[kGammaOffset] = 1.0;
@@ -265,8 +326,36 @@ void EquilibriumModel::set_ionic_strength(double I) {
       gamma_[kGammaOffset + z] = g;
       gamma_[kGammaOffset - z] = g;
     }
+    if (per_species_) {
+      auto coefficient = [&](const LogGammaTerms& t, bool generic_form, double fixed, int z) {
+        if (generic_form) return gamma(z) * fixed;
+        return std::pow(10.0, log10_gamma(t, z, a_davies_, I, sqrt_i));
+      };
+      for (Sys& s : systems_) {
+        for (int j = 0; j <= s.n; ++j) s.gamma[j] = coefficient(s.act[j], s.generic_form[j], s.fixed[j], s.z0 - j);
+      }
+      if (has_drug_) {
+        for (int j = 0; j <= drug_.n; ++j) drug_.gamma[j] = gamma(drug_.z0 - j) * drug_.fixed[j];
+      }
+      for (IonC& i : ions_) i.gamma = coefficient(i.act, i.generic_form, i.fixed, i.charge);
+      gamma_h_ = coefficient(h_act_, false, 1.0, 1);
+      gamma_oh_ = coefficient(oh_act_, false, 1.0, -1);
+      for (HydroxoPair& q : pairs_) {
+        const double g_pair = coefficient(q.act, false, 1.0, q.z - 1);
+        q.k_eff = q.k * ions_[q.ion].gamma * gamma_oh_ / g_pair;
+      }
+      update_effective_constants();
+      return;
+    }
   }
+  gamma_h_ = gamma_oh_ = gamma_[kGammaOffset + 1];
+  for (IonC& i : ions_) i.gamma = gamma(i.charge);
   update_effective_constants();
+}
+
+double EquilibriumModel::species_gamma(int system, int j) const {
+  const Sys& s = system < 0 ? drug_ : systems_[system];
+  return per_species_ ? s.gamma[j] : gamma(s.z0 - j);
 }
 
 double EquilibriumModel::gamma(int charge) const {
@@ -278,6 +367,19 @@ double EquilibriumModel::gamma(int charge) const {
 }
 
 void EquilibriumModel::update_effective_constants() {
+  if (per_species_) {
+    for (Sys& s : systems_) {
+      for (int i = 0; i < s.n; ++i) s.ka_eff[i] = s.ka[i] * s.gamma[i] / s.gamma[i + 1];
+    }
+    if (has_drug_) {
+      for (int i = 0; i < drug_.n; ++i) drug_.ka_eff[i] = drug_.ka[i] * drug_.gamma[i] / drug_.gamma[i + 1];
+      for (SaltPhase& p : salts_) {
+        const double gx = p.ion >= 0 ? ions_[p.ion].gamma : systems_[p.sys].gamma[p.cj];
+        p.ksp_eff = p.ksp / (ipow(drug_.gamma[p.species], p.m) * ipow(gx, p.n));
+      }
+    }
+    return;
+  }
   auto update = [&](Sys& s) {
     for (int i = 0; i < s.n; ++i) {
       const int z_acid = s.z0 - i;  // charge of the protonated side of step i
@@ -757,13 +859,29 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
       dsum += -deriv / kLn10;
     }
   }
-  const double g1 = gamma(1);
-  const double hc = h / g1;
-  const double oh = kw_ / (h * g1);
-  charge += hc - oh;
-  dsum += hc + oh;
-  abs_sum += hc + oh;
-  i2 += hc + oh;
+  const double hc = h / gamma_h_;
+  const double oh = kw_ / (h * gamma_oh_);
+  if (pairs_.empty()) {
+    charge += hc - oh;
+    dsum += hc + oh;
+    abs_sum += hc + oh;
+    i2 += hc + oh;
+  } else {
+    // Hydroxo complexes MOH+: hydroxide held by the metal ions is charge taken from them; the
+    // complex counts at charge z - 1 in I, and its particles replace M and OH.
+    double paired = 0.0, dpaired = 0.0;
+    for (const HydroxoPair& q : pairs_) {
+      const double kx = q.k_eff * oh;
+      const double c = ions_[q.ion].conc * kx / (1.0 + kx);
+      paired += c;
+      dpaired += c / (1.0 + kx);
+      i2 -= 2.0 * q.z * c;
+    }
+    charge += hc - oh - paired;
+    dsum += hc + oh + dpaired;
+    abs_sum += hc + oh - paired;
+    i2 += hc + oh + paired;
+  }
   osm += hc + oh;
   ev.charge = charge;
   ev.dcharge_dpH = -kLn10 * dsum;
@@ -774,6 +892,12 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
 }
 
 namespace {
+/// The activity model in a message: "Davies equation" (the text of every earlier release),
+/// else the model's label followed by "model".
+std::string model_words(ActivityModel a) {
+  return a == ActivityModel::kDavies ? "Davies equation" : activity_model_label(a) + " model";
+}
+
 // Safeguarded Newton on the charge balance, which is decreasing in pH, inside [kPhLow, kPhHigh].
 // On return, *last holds the evaluation at the returned pH when it was the last evaluated
 // point (*have_last true); otherwise the caller evaluates again.
@@ -932,7 +1056,7 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
         !std::isfinite(s.charge_residual_rel)) {
       r.termination = Termination::kNumericalFailure;
       r.message = "the activity corrections diverge: the ionic strength grows beyond the range of "
-                  "the Davies equation (the mixture is too concentrated for the model)";
+                  "the " + model_words(mixture.activity) + " (the mixture is too concentrated for the model)";
       r.pH = 0.0;
       r.ionic_strength_mol_per_L = 0.0;
     } else if (!(s.charge_residual_rel <= kMaxChargeResidual) &&
@@ -966,7 +1090,7 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
       const double c = dissolved * alpha[j];
       sum += c;
       r.species.push_back({sa.system.id + " " + sa.system.species_label(j), sa.system.id, z, c,
-                           model.gamma(z)});
+                           model.species_gamma(k, j)});
     }
     if (sa.total_mol_per_L > 0) {
       mass_res = std::max(mass_res, std::fabs(sum + removed - sa.total_mol_per_L) / sa.total_mol_per_L);
@@ -976,12 +1100,17 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
   for (std::size_t t = 0; t < mixture.ions.size(); ++t) {
     const IonAmount& i = mixture.ions[t];
     // Clamped: a counterion precipitated to exhaustion may round to just below zero.
-    const double c = std::max(0.0, i.conc_mol_per_L - model.ion_removed(p, static_cast<int>(t)));
-    r.species.push_back({i.id, "", i.charge, c, model.gamma(i.charge)});
+    const double paired = model.hydroxo_paired(static_cast<int>(t), s.pH);
+    const double c = std::max(0.0, i.conc_mol_per_L - model.ion_removed(p, static_cast<int>(t)) - paired);
+    r.species.push_back({i.id, "", i.charge, c, model.ion_gamma(static_cast<int>(t))});
+    if (paired > 0) {
+      r.species.push_back({i.id.substr(0, i.id.size() - 2) + "OH+", "", i.charge - 1, paired,
+                           model.gamma(i.charge - 1)});
+    }
   }
   const double h = std::pow(10.0, -s.pH);
-  r.species.push_back({"H+", "", 1, h / model.gamma(1), model.gamma(1)});
-  r.species.push_back({"OH-", "", -1, model.kw() / (h * model.gamma(1)), model.gamma(1)});
+  r.species.push_back({"H+", "", 1, h / model.h_gamma(), model.h_gamma()});
+  r.species.push_back({"OH-", "", -1, model.kw() / (h * model.oh_gamma()), model.oh_gamma()});
 
   if (mixture.drug) {
     const DrugAmount& d = *mixture.drug;
@@ -1004,7 +1133,7 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     for (int j = 0; j <= n; ++j) {
       const int z = sys.charge_of(j);
       r.species.push_back({d.compound.id + " " + sys.species_label(j), d.compound.id, z,
-                           p.dissolved * alpha[j], model.gamma(z)});
+                           p.dissolved * alpha[j], model.species_gamma(-1, j)});
     }
     ds.solids = p.solids;
     ds.solid = to_string(p.solids, d.compound);
@@ -1043,22 +1172,24 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
         if (j < 0 || j > n || cj < 0 || cj > static_cast<int>(sa.system.pkas.size())) continue;
         double ac[kMaxPka + 1];
         mm.fractions(static_cast<int>(k), s2.pH, ac);
-        const double ip = ipow(mm.gamma(zd) * alpha[j] * d.dose_mol_per_L, salt.drug_count) *
-                          ipow(mm.gamma(zc) * ac[cj] * sa.total_mol_per_L, salt.counterion_count);
+        const double ip =
+            ipow(mm.species_gamma(-1, j) * alpha[j] * d.dose_mol_per_L, salt.drug_count) *
+            ipow(mm.species_gamma(static_cast<int>(k), cj) * ac[cj] * sa.total_mol_per_L, salt.counterion_count);
         sat = std::max(sat, ip / salt_ksp_at(salt, mixture.temperature_C));
       }
-      for (const IonAmount& i : mixture.ions) {
-        if (salt.counterion_is_system) break;
+      for (std::size_t t = 0; !salt.counterion_is_system && t < mixture.ions.size(); ++t) {
+        const IonAmount& i = mixture.ions[t];
         if (i.id != salt.counterion || i.charge == 0) continue;
         const int zd = salt.drug_charge(i.charge);
         const int j = sys.z0() - zd;
         if (j < 0 || j > n) continue;
         const int sm = salt.drug_count, sn = salt.counterion_count;
+        const double gd = mm.species_gamma(-1, j);
+        const double gx = mm.ion_gamma(static_cast<int>(t));
         const double ip =
             (sm == 1 && sn == 1)
-                ? (mm.gamma(zd) * mm.gamma(i.charge)) * alpha[j] * d.dose_mol_per_L * i.conc_mol_per_L
-                : ipow(mm.gamma(zd) * alpha[j] * d.dose_mol_per_L, sm) *
-                      ipow(mm.gamma(i.charge) * i.conc_mol_per_L, sn);
+                ? (gd * gx) * alpha[j] * d.dose_mol_per_L * i.conc_mol_per_L
+                : ipow(gd * alpha[j] * d.dose_mol_per_L, sm) * ipow(gx * i.conc_mol_per_L, sn);
         sat = std::max(sat, ip / salt_ksp_at(salt, mixture.temperature_C));
       }
     }
@@ -1073,6 +1204,11 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
   }
   if (mixture.activity == ActivityModel::kDavies && r.ionic_strength_mol_per_L > 0.5) {
     r.warnings.push_back("ionic strength above 0.5 mol/L: the Davies equation is outside its range");
+  }
+  if ((mixture.activity == ActivityModel::kSit || mixture.activity == ActivityModel::kTruesdellJones) &&
+      r.ionic_strength_mol_per_L > 0.6) {
+    r.warnings.push_back("ionic strength above 0.6 mol/L: beyond the range in which the " +
+                         model_words(mixture.activity) + " was checked against published buffer tables");
   }
   if (r.drug && r.drug->solid != "none") {
     r.warnings.push_back("the dose does not dissolve completely: solid " + r.drug->solid + " remains");
@@ -1093,8 +1229,9 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     refused.evaluations = r.evaluations;
     refused.message = "the activity corrections diverge: at ionic strength " +
                       std::to_string(r.ionic_strength_mol_per_L).substr(0, 5) +
-                      " mol/L the Davies equation is far outside its range (0.5 mol/L); the "
-                      "mixture is too concentrated for the model";
+                      " mol/L the " + model_words(mixture.activity) + " is far outside its range (" +
+                      (mixture.activity == ActivityModel::kDavies ? "0.5" : "0.6") +
+                      " mol/L); the mixture is too concentrated for the model";
     return refused;
   }
   r.termination = Termination::kConverged;

@@ -27,6 +27,7 @@ struct Standard {
   const char* name;
   std::vector<std::pair<const char*, double>> molal;  // reagent id, mol/kg
   double ph5, ph25, ph37;                             // NaN where not defined
+  double ph50;                                        // pH(S) at 50 °C
   double capacity;                                    // Lange, mol/L per pH (NaN: not used)
 };
 
@@ -34,13 +35,13 @@ const double kNa = std::nan("");
 
 const std::vector<Standard>& standards() {
   static const std::vector<Standard> s = {
-      {"KH tartrate (sat. at 25 C, 0.0341 mol/kg)", {{"potassium-hydrogen-tartrate", 0.0341}}, kNa, 3.557, 3.548, 0.027},
-      {"KH2 citrate 0.05 mol/kg", {{"potassium-dihydrogen-citrate", 0.05}}, 3.840, 3.776, 3.756, 0.034},
-      {"KH phthalate 0.05 mol/kg", {{"potassium-hydrogen-phthalate", 0.05}}, 3.998, 4.005, 4.022, 0.016},
-      {"phosphate 0.025/0.025 mol/kg", {{"KH2PO4", 0.025}, {"Na2HPO4", 0.025}}, 6.951, 6.865, 6.841, 0.029},
-      {"phosphate 0.008695/0.03043 mol/kg", {{"KH2PO4", 0.008695}, {"Na2HPO4", 0.03043}}, 7.500, 7.413, 7.386, 0.016},
-      {"borax 0.01 mol/kg", {{"borax", 0.01}}, 9.395, 9.180, 9.088, 0.020},
-      {"carbonate 0.025/0.025 mol/kg", {{"NaHCO3", 0.025}, {"Na2CO3", 0.025}}, 10.245, 10.012, 9.910, 0.029},
+      {"KH tartrate (sat. at 25 C, 0.0341 mol/kg)", {{"potassium-hydrogen-tartrate", 0.0341}}, kNa, 3.557, 3.548, 3.549, 0.027},
+      {"KH2 citrate 0.05 mol/kg", {{"potassium-dihydrogen-citrate", 0.05}}, 3.840, 3.776, 3.756, 3.749, 0.034},
+      {"KH phthalate 0.05 mol/kg", {{"potassium-hydrogen-phthalate", 0.05}}, 3.998, 4.005, 4.022, 4.060, 0.016},
+      {"phosphate 0.025/0.025 mol/kg", {{"KH2PO4", 0.025}, {"Na2HPO4", 0.025}}, 6.951, 6.865, 6.841, 6.833, 0.029},
+      {"phosphate 0.008695/0.03043 mol/kg", {{"KH2PO4", 0.008695}, {"Na2HPO4", 0.03043}}, 7.500, 7.413, 7.386, 7.367, 0.016},
+      {"borax 0.01 mol/kg", {{"borax", 0.01}}, 9.395, 9.180, 9.088, 9.011, 0.020},
+      {"carbonate 0.025/0.025 mol/kg", {{"NaHCO3", 0.025}, {"Na2CO3", 0.025}}, 10.245, 10.012, 9.910, 9.828, 0.029},
   };
   return s;
 }
@@ -90,6 +91,35 @@ TEST_F(PrimaryStandards, PhAt5CWithin003) {
     // KHP at 5 °C: the NBS equations (Hamer 1946, Hetzer 1977) give 4.004-4.005 against the
     // recalled IUPAC 3.998, to be verified; a difference up to 0.008 below 15 °C stays inside our 0.03.
     EXPECT_NEAR(e.pH, s.ph5, 0.03) << s.name;
+  }
+}
+
+// The specific ion interaction model (SIT) from 5 to 50 °C. Its Debye-Hückel term,
+// A sqrt(I)/(1 + 1.5 sqrt(I)), is the Bates-Guggenheim convention on which pH(S) is defined;
+// the interaction coefficients of carbonate (eps(Na+, CO3 2-) = -0.08) put the carbonate
+// standard 0.02 low, which is why SIT is not the default (docs/model.md, "Activities").
+// Tolerance 0.03 as for Davies at 5 and 37 °C. 50 °C values recalled from the same IUPAC 2002
+// table, to be verified.
+TEST_F(PrimaryStandards, SitWithin003From5To50C) {
+  for (const Standard& s : standards()) {
+    for (const auto& [t, ph] : {std::pair<double, double>{5.0, s.ph5}, {25.0, s.ph25}, {37.0, s.ph37}, {50.0, s.ph50}}) {
+      if (std::isnan(ph)) continue;
+      Mixture m = build(lib_, s, t);
+      m.activity = ActivityModel::kSit;
+      const Equilibrium e = solve(m);
+      ASSERT_TRUE(e.usable()) << s.name;
+      std::printf("  %-40s %2.0f C: sit %.3f  IUPAC %.3f  (%+.3f)\n", s.name, t, e.pH, ph, e.pH - ph);
+      EXPECT_NEAR(e.pH, ph, 0.03) << s.name << " at " << t << " C";
+    }
+  }
+}
+
+TEST_F(PrimaryStandards, DaviesAt50CWithin003) {
+  for (const Standard& s : standards()) {
+    const Equilibrium e = solve(build(lib_, s, 50.0));
+    ASSERT_TRUE(e.usable()) << s.name;
+    std::printf("  %-40s 50 C: pkarta %.3f  IUPAC %.3f\n", s.name, e.pH, s.ph50);
+    EXPECT_NEAR(e.pH, s.ph50, 0.03) << s.name;
   }
 }
 

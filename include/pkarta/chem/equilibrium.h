@@ -13,6 +13,7 @@
 #include <string>
 #include <vector>
 
+#include "pkarta/chem/activity.h"
 #include "pkarta/chem/model.h"
 
 namespace pkarta {
@@ -24,8 +25,6 @@ inline constexpr int kMaxPka = 8;
 inline constexpr int kMaxSalts = 8;
 /// Components of the solid partition: the drug and up to one counterion per salt.
 inline constexpr int kMaxSolidComponents = 1 + kMaxSalts;
-
-enum class ActivityModel { kDavies, kIdeal };
 
 /// The drug solids present in a state: the free form and any of the compound's salts.
 struct SolidSet {
@@ -66,7 +65,7 @@ struct DrugAmount {
 /// Everything in the solution.
 struct Mixture {
   double temperature_C = 25.0;
-  ActivityModel activity = ActivityModel::kDavies;
+  ActivityModel activity = kDefaultActivityModel;
   std::vector<SystemAmount> systems;
   std::vector<IonAmount> ions;
   std::optional<DrugAmount> drug;
@@ -169,7 +168,18 @@ class EquilibriumModel {
   /// Sets the ionic strength used for activity coefficients (no effect when ideal).
   void set_ionic_strength(double ionic_strength_mol_per_L);
   double ionic_strength() const { return ionic_strength_; }
+  /// The activity coefficient of an ion of this charge without specific terms (the model's
+  /// form for a species it has no parameters for); Davies: every ion of the charge.
   double gamma(int charge) const;
+  /// Activity coefficient of species j of system k (drug: k = -1), of strong ion t of the
+  /// mixture, of H+ and of OH-, under the current ionic strength.
+  double species_gamma(int system, int j) const;
+  double ion_gamma(int ion) const { return ions_[ion].gamma; }
+  /// Strong ion t held in its hydroxo complex (CaOH+, MgOH+; models with specific terms) at
+  /// pH, mol/L; 0 for other ions and models.
+  double hydroxo_paired(int ion, double pH) const;
+  double h_gamma() const { return gamma_h_; }
+  double oh_gamma() const { return gamma_oh_; }
   double kw() const { return kw_; }
 
   /// Charge balance and everything derived at pH, under the current activity coefficients.
@@ -206,6 +216,10 @@ class EquilibriumModel {
     double total = 0.0;
     std::array<double, kMaxPka> ka{};      // thermodynamic
     std::array<double, kMaxPka> ka_eff{};  // activity-corrected
+    std::array<LogGammaTerms, kMaxPka + 1> act{};  // per-species activity terms
+    std::array<double, kMaxPka + 1> gamma{};        // per-species activity coefficients
+    std::array<double, kMaxPka + 1> fixed{};        // 10^c where the form is the generic one
+    std::array<bool, kMaxPka + 1> generic_form{};   // Ba and b as generic_act_: no pow needed
   };
   struct SaltPhase {
     int index = -1;          // the compound's salt index
@@ -230,10 +244,16 @@ class EquilibriumModel {
   /// Total of component c (c >= 1): the counterion ion's concentration or the system's total.
   double component_total(int c) const;
   struct IonC {
+    IonC(int z, double c) : charge(z), conc(c) {}
     int charge = 0;
     double conc = 0.0;
+    LogGammaTerms act;
+    double gamma = 1.0;
+    double fixed = 1.0;
+    bool generic_form = true;
   };
   void update_effective_constants();
+  void prepare_activity_terms(const Mixture& mixture);
   static double moments(const Sys& s, double h, double* alpha, double* zbar, double* z2bar);
   Partition partition(const double* alpha, double h, double dose) const;
   /// d/d ln[H+] of the drug's share of the charge (dissolved drug charge less the counterion
@@ -247,11 +267,25 @@ class EquilibriumModel {
                        double* particles) const;
 
   bool ideal_ = false;
+  bool per_species_ = false;  // an activity model with specific terms (not Davies, not ideal)
   double temperature_C_ = 25.0;
   double a_davies_ = 0.5108;
   double kw_ = 1e-14;
   double ionic_strength_ = 0.0;
   std::array<double, 33> gamma_{};  // index z + 16, charges -16..16
+  LogGammaTerms generic_act_[33];   // per-species models: terms of a species without parameters
+  struct HydroxoPair {
+    int ion = -1;        // index into ions_
+    int z = 2;           // charge of the metal ion
+    double k = 0.0;      // thermodynamic formation constant at T
+    double k_eff = 0.0;  // k gamma(M) gamma(OH) / gamma(MOH)
+    LogGammaTerms act;   // of MOH+
+  };
+  std::vector<HydroxoPair> pairs_;
+  LogGammaTerms h_act_, oh_act_;
+  double gamma_h_ = 1.0, gamma_oh_ = 1.0;
+  double generic_ba_ = 1.0;         // per-species models: Ba of the generic form
+  double generic_b1_ = 0.0;         // ... and its b for charge 1 (b_z = b_1 z^2)
   std::vector<Sys> systems_;
   std::vector<IonC> ions_;
   bool has_drug_ = false;

@@ -1,0 +1,214 @@
+#include "pkarta/chem/activity.h"
+
+#include <cmath>
+
+#include "pkarta/chem/water.h"
+
+namespace pkarta {
+
+namespace {
+
+// Specific ion interaction coefficients eps(cation, anion), kg/mol, at 25 °C (taken as
+// independent of temperature, as the compilation does between about 10 and 40 °C). Sources in
+// docs/data-sources.md, "Activity coefficients": NEA-TDB, Grenthe, Fuger, Konings, Lemire,
+// Muller, Nguyen-Trung and Wanner 1992, Chemical Thermodynamics of Uranium, Appendix B, and
+// Guillaumont, Fanghänel, Fuger, Grenthe, Neck, Palmer and Rand 2003, Update on the Chemical
+// Thermodynamics of U, Np, Pu, Am and Tc, Appendix B, Tables B-3 and B-4; acetate and citrate
+// from Hummel, Anderegg, Puigdomènech, Rao and Tochiyama 2005, Chemical Thermodynamics of
+// Compounds and Complexes of U, Np, Pu, Am, Tc, Se, Ni and Zr with Selected Organic Ligands.
+// All recalled from those tables, to be verified. A system's species is keyed by the system id
+// and its charge.
+struct SitPair {
+  const char* cation;
+  int zc;
+  const char* anion;
+  int za;
+  double eps;
+};
+constexpr SitPair kSit[] = {
+    // hydrogen ion and metal ions with chloride, nitrate, bromide
+    {"H+", 1, "Cl-", -1, 0.12},
+    {"H+", 1, "NO3-", -1, 0.07},
+    {"H+", 1, "Br-", -1, 0.17},
+    {"Li+", 1, "Cl-", -1, 0.10},
+    {"Na+", 1, "Cl-", -1, 0.03},
+    {"K+", 1, "Cl-", -1, 0.00},
+    {"Ca2+", 2, "Cl-", -1, 0.14},
+    {"Mg2+", 2, "Cl-", -1, 0.19},
+    {"Na+", 1, "NO3-", -1, -0.04},
+    {"K+", 1, "NO3-", -1, -0.11},
+    {"Na+", 1, "Br-", -1, 0.05},
+    // hydroxide
+    {"Li+", 1, "OH-", -1, -0.02},
+    {"Na+", 1, "OH-", -1, 0.04},
+    {"K+", 1, "OH-", -1, 0.09},
+    // phosphate
+    {"Na+", 1, "phosphate", -1, -0.08},
+    {"Na+", 1, "phosphate", -2, -0.15},
+    {"Na+", 1, "phosphate", -3, -0.25},
+    {"K+", 1, "phosphate", -1, -0.14},
+    {"K+", 1, "phosphate", -2, -0.10},
+    {"K+", 1, "phosphate", -3, -0.09},
+    // carbonate
+    {"Na+", 1, "carbonate", -1, 0.00},
+    {"Na+", 1, "carbonate", -2, -0.08},
+    {"K+", 1, "carbonate", -2, 0.02},
+    // sulfate (the strong ion and the system's species)
+    {"Na+", 1, "SO4--", -2, -0.12},
+    {"K+", 1, "SO4--", -2, -0.06},
+    {"Na+", 1, "sulfate", -2, -0.12},
+    {"K+", 1, "sulfate", -2, -0.06},
+    {"Na+", 1, "sulfate", -1, -0.01},
+    // borate
+    {"Na+", 1, "borate", -1, -0.07},
+    // acetate and citrate
+    {"Na+", 1, "acetate", -1, 0.08},
+    {"Na+", 1, "citrate", -1, -0.05},
+    {"Na+", 1, "citrate", -2, -0.04},
+    {"Na+", 1, "citrate", -3, -0.076},
+};
+
+// Ion-size parameters a (angstrom) and b (L/mol) of the extended Debye-Hückel equation:
+// a from Kielland 1937, J. Am. Chem. Soc. 59, 1675, Table I; a and b together, where given,
+// from Truesdell and Jones 1974, J. Res. U.S. Geol. Surv. 2, 233, Table 1. Recalled from those
+// tables, to be verified.
+struct IonSize {
+  const char* key;
+  int z;
+  double a;
+  double b;
+};
+constexpr IonSize kIonSize[] = {
+    {"H+", 1, 9.0, 0.0},         {"OH-", -1, 3.5, 0.0},       {"Li+", 1, 6.0, 0.0},
+    {"Na+", 1, 4.0, 0.075},      {"K+", 1, 3.5, 0.015},       {"Ca2+", 2, 5.0, 0.165},
+    {"Mg2+", 2, 5.5, 0.20},      {"Cl-", -1, 3.5, 0.015},     {"Br-", -1, 3.0, 0.0},
+    {"I-", -1, 3.0, 0.0},        {"NO3-", -1, 3.0, 0.0},      {"SO4--", -2, 5.0, -0.04},
+    {"sulfate", -2, 5.0, -0.04}, {"sulfate", -1, 4.0, 0.0},   {"carbonate", -1, 5.4, 0.0},
+    {"carbonate", -2, 5.4, 0.0}, {"phosphate", -1, 4.0, 0.0}, {"phosphate", -2, 4.0, 0.0},
+    {"phosphate", -3, 4.0, 0.0}, {"acetate", -1, 4.5, 0.0},   {"citrate", -1, 3.5, 0.0},
+    {"citrate", -2, 4.5, 0.0},   {"citrate", -3, 5.0, 0.0},
+};
+
+// First hydroxo complexes of Ca2+ and Mg2+ (log10 K at I = 0, 25 °C): recalled from Smith and
+// Martell, Critical Stability Constants, vol. 4 (Inorganic Complexes), Plenum 1976, to be
+// verified; their enthalpies are not given here (0: K held at every temperature).
+struct Hydroxo {
+  const char* ion;
+  int z;
+  double log10_k;
+  double dH;
+};
+constexpr Hydroxo kHydroxo[] = {{"Ca2+", 2, 1.30, 0.0}, {"Mg2+", 2, 2.58, 0.0}};
+
+/// SIT's Ba, kg^1/2 mol^-1/2, the same at every temperature.
+constexpr double kSitBa = 1.5;
+
+}  // namespace
+
+std::string activity_model_id(ActivityModel model) {
+  switch (model) {
+    case ActivityModel::kDavies: return "davies";
+    case ActivityModel::kIdeal: return "ideal";
+    case ActivityModel::kSit: return "sit";
+    case ActivityModel::kTruesdellJones: return "truesdell-jones";
+  }
+  return "davies";
+}
+
+std::string activity_model_label(ActivityModel model) {
+  switch (model) {
+    case ActivityModel::kDavies: return "Davies";
+    case ActivityModel::kIdeal: return "ideal (activity coefficients 1)";
+    case ActivityModel::kSit: return "specific ion interaction (SIT)";
+    case ActivityModel::kTruesdellJones: return "extended Debye-Hückel (Truesdell-Jones)";
+  }
+  return "Davies";
+}
+
+std::optional<ActivityModel> parse_activity_model(const std::string& name) {
+  for (ActivityModel m : {ActivityModel::kDavies, ActivityModel::kSit,
+                          ActivityModel::kTruesdellJones, ActivityModel::kIdeal}) {
+    if (name == activity_model_id(m)) return m;
+  }
+  return std::nullopt;
+}
+
+std::string activity_model_names() { return "davies|sit|truesdell-jones|ideal"; }
+
+double HydroxoComplex::k_at(double temperature_C) const {
+  const double k = std::pow(10.0, log10_k);
+  if (dH_kJ_per_mol == 0.0) return k;
+  const double T = kelvin(temperature_C);
+  return k * std::exp(-dH_kJ_per_mol * 1000.0 / kGasConstant * (1.0 / T - 1.0 / kelvin(25.0)));
+}
+
+std::optional<HydroxoComplex> hydroxo_complex(const std::string& ion, int charge) {
+  for (const Hydroxo& h : kHydroxo) {
+    if (h.z == charge && ion == h.ion) return HydroxoComplex{h.log10_k, h.dH};
+  }
+  return std::nullopt;
+}
+
+double debye_huckel_b(double temperature_C) {
+  const double rho = water_density_kg_per_L(temperature_C);
+  return 50.29 * std::sqrt(rho / (water_dielectric_constant(temperature_C) * kelvin(temperature_C)));
+}
+
+std::optional<double> sit_epsilon(const std::string& cation, int cation_charge,
+                                  const std::string& anion, int anion_charge) {
+  for (const SitPair& p : kSit) {
+    if (p.zc == cation_charge && p.za == anion_charge && cation == p.cation && anion == p.anion) {
+      return p.eps;
+    }
+  }
+  return std::nullopt;
+}
+
+ActivityMedium::ActivityMedium(ActivityModel model, double temperature_C)
+    : model_(model),
+      a_(davies_a(temperature_C)),
+      b_dh_(debye_huckel_b(temperature_C)),
+      rho_(water_density_kg_per_L(temperature_C)) {}
+
+void ActivityMedium::add_ion(const std::string& id, int charge, double conc_mol_per_L) {
+  if (charge == 0 || !(conc_mol_per_L > 0)) return;
+  for (MediumIon& i : ions_) {
+    if (i.id == id && i.charge == charge) {
+      i.molal += conc_mol_per_L / rho_;
+      return;
+    }
+  }
+  ions_.push_back({id, charge, conc_mol_per_L / rho_});
+}
+
+LogGammaTerms ActivityMedium::terms(const std::string& key, int charge) const {
+  LogGammaTerms t;
+  const LogGammaTerms davies{1.0, 0.3 * a_ * charge * charge, 0.0};
+  switch (model_) {
+    case ActivityModel::kIdeal:  // the solver sets every coefficient to 1 and does not ask
+    case ActivityModel::kDavies:
+      return davies;
+    case ActivityModel::kSit:
+      t.ba = kSitBa;
+      if (charge == 0) return t;
+      for (const MediumIon& k : ions_) {
+        if ((k.charge > 0) == (charge > 0)) continue;
+        const std::optional<double> eps = charge > 0 ? sit_epsilon(key, charge, k.id, k.charge)
+                                                     : sit_epsilon(k.id, k.charge, key, charge);
+        if (eps) t.c += *eps * k.molal;
+      }
+      return t;
+    case ActivityModel::kTruesdellJones:
+      for (const IonSize& s : kIonSize) {
+        if (s.z == charge && key == s.key) {
+          t.ba = b_dh_ * s.a;
+          t.b = s.b;
+          return t;
+        }
+      }
+      return davies;
+  }
+  return davies;
+}
+
+}  // namespace pkarta
