@@ -18,6 +18,9 @@ _pkarta() {
     --format)
       COMPREPLY=($(compgen -W "text csv json" -- "$cur"))
       return ;;
+    --activity)
+      COMPREPLY=($(compgen -W "davies sit truesdell-jones ideal" -- "$cur"))
+      return ;;
     --buffer|--buffers|--medium|--into)
       words=$("${COMP_WORDS[0]}" library list 2>/dev/null |
               awk '/^  [^ -]/ && $1 != "id" { print $1 }')

@@ -141,7 +141,7 @@ ClassifyResult classify(const Compound& compound, const Library& library, const 
                 "%g pH over %g-%g with the minimum refined to 1e-6 pH; D0 = (dose / %g mL) / S; "
                 "high when D0 <= 1 at the minimum",
                 o.acid_titrant.c_str(), o.base_titrant.c_str(),
-                o.activity == ActivityModel::kDavies ? "Davies" : "ideal", o.scan_step_pH, o.from_pH, o.to_pH,
+                o.activity == ActivityModel::kIdeal ? "ideal" : activity_model_label(o.activity).c_str(), o.scan_step_pH, o.from_pH, o.to_pH,
                 o.volume_mL);
   r.convention = conv;
   r.notes = scan.notes;

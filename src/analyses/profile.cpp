@@ -153,7 +153,7 @@ struct SolubilityScanner::Impl {
     acid_charge = a.charge;
     base_ion = b.id;
     base_charge = b.charge;
-    davies = c.activity == ActivityModel::kDavies;
+    davies = c.activity != ActivityModel::kIdeal;  // activity corrections on
     const AcidBaseSystem& sys = compound.system;
     n = static_cast<int>(sys.pkas.size());
     jn = compound.has_intrinsic_solubility ? sys.neutral_index() : -1;
@@ -232,7 +232,7 @@ struct SolubilityScanner::Impl {
   EquilibriumModel ideal;
   std::string acid_ion, base_ion;
   int acid_charge = -1, base_charge = 1;
-  bool davies = true;
+  bool davies = true;  // any model but ideal: iterate the ionic strength
   int n = 0;
   int jn = -1;
   double s0 = 0.0;

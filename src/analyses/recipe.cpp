@@ -189,6 +189,7 @@ Recipe make_recipe(const Library& library, const RecipeOptions& o) {
   out.conc_mol_per_L = o.conc_mol_per_L;
   out.volume_L = o.volume_L;
   out.temperature_C = o.temperature_C;
+  out.activity = o.activity;
 
   std::vector<std::string> ids = o.reagents;
   if (ids.empty()) {
@@ -409,6 +410,15 @@ const char* kModelNote =
     "target pH. Osmolarity is ideal; the osmolality estimate (0.93 x osmolarity / density of "
     "water) must be measured.";
 
+/// The model note with the recipe's activity model.
+std::string model_note(ActivityModel activity) {
+  std::string s = kModelNote;
+  const std::string davies = "Davies activities";
+  const std::size_t at = s.find(davies);
+  if (at != std::string::npos) s.replace(at, davies.size(), activity_words(activity));
+  return s;
+}
+
 }  // namespace
 
 std::string tonicity_id(const Recipe& r) {
@@ -457,7 +467,7 @@ void write_recipe_text(const Recipe& r, std::ostream& out) {
   for (const std::string& n : r.notes) write_wrapped(out, "  note: " + n, 4);
   for (const std::string& w : r.warnings) write_wrapped(out, "  warning: " + w, 4);
   out << "\n";
-  write_wrapped(out, kModelNote);
+  write_wrapped(out, model_note(r.activity));
   out << "\n";
   write_wrapped(out, caution_text());
 }
@@ -530,7 +540,7 @@ void write_recipe_json(const Recipe& r, std::ostream& out) {
   }
   j["notes"] = r.notes;
   j["warnings"] = r.warnings;
-  j["model"] = kModelNote;
+  j["model"] = model_note(r.activity);
   j["caution"] = caution_text();
   out << j.dump(2) << "\n";
 }

@@ -652,6 +652,7 @@ ScreenReport report_header(const ScreenJob& job, const ScreenOptions& options) {
   rep.target_pH = options.target_pH;
   rep.tolerance_pH = options.tolerance_pH;
   rep.temperature_C = options.temperature_C;
+  rep.activity = options.activity;
   rep.low_temperature_C = options.low_temperature_C;
   rep.high_temperature_C = options.high_temperature_C;
   rep.dose_mol_per_L = job.dose_mol_per_L;
@@ -812,6 +813,15 @@ const char* kMethodNote =
     "solubility in water at the target pH. Davies activities; thermodynamic pKa (I = 0) corrected "
     "for temperature by van 't Hoff.";
 
+/// The method note with the activity model the screen used.
+std::string method_note(ActivityModel activity) {
+  std::string s = kMethodNote;
+  const std::string davies = "Davies activities";
+  const std::size_t at = s.find(davies);
+  if (at != std::string::npos) s.replace(at, davies.size(), activity_words(activity));
+  return s;
+}
+
 const char* kOsmolalityNote =
     "Osmolarity is ideal (sum of dissolved species); osmolality estimate = 0.93 x osmolarity / "
     "density of water, an estimate that must be measured.";
@@ -932,7 +942,7 @@ void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& o
     for (const ScreenReport& rep : reports) all.push_back(report_json(rep));
     j["screens"] = all;
   }
-  j["method"] = kMethodNote;
+  j["method"] = method_note(reports.empty() ? kDefaultActivityModel : reports.front().activity);
   j["osmolality_note"] = kOsmolalityNote;
   j["caution"] = caution_text();
   out << j.dump(2) << "\n";
@@ -1012,7 +1022,7 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     }
   }
   out << "\n";
-  write_wrapped(out, std::string(kMethodNote) +
+  write_wrapped(out, method_note(reports.empty() ? kDefaultActivityModel : reports.front().activity) +
                          " \"<\" marks the lower end of the search (the dose alone holds the target). " +
                          kOsmolalityNote);
   out << "\n";

@@ -125,6 +125,11 @@ std::string activity_model_label(ActivityModel model) {
   return "Davies";
 }
 
+std::string activity_words(ActivityModel model) {
+  if (model == ActivityModel::kIdeal) return "ideal activities (coefficients 1)";
+  return activity_model_label(model) + " activities";
+}
+
 std::optional<ActivityModel> parse_activity_model(const std::string& name) {
   for (ActivityModel m : {ActivityModel::kDavies, ActivityModel::kSit,
                           ActivityModel::kTruesdellJones, ActivityModel::kIdeal}) {

@@ -1043,6 +1043,7 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     return r;
   }
   r.temperature_C = mixture.temperature_C;
+  r.activity = mixture.activity;
   EquilibriumModel model(mixture);
   const StateSummary s = model.solve(options);
   r.evaluations = s.evaluations;

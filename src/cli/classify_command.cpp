@@ -29,7 +29,8 @@ int run_classify(const Args& args) {
     CommonOptions common;
     std::string compound_file, dose, volume = "250", temp = "37", form = "free", acid = "HCl", base = "NaOH",
                 step = "0.01";
-    bool ideal = false, no_media = false;
+    bool no_media = false;
+    ActivityOptions activity;
     po::options_description desc("classify options");
     desc.add_options()
         ("compound", po::value(&compound_file), "compound XML file (required)")
@@ -40,8 +41,8 @@ int run_classify(const Args& args) {
         ("step", po::value(&step)->default_value("0.01"), "scan step over pH 1.2-6.8 (at most 0.1)")
         ("acid", po::value(&acid)->default_value("HCl"), "strong acid holding the low pH of the scan")
         ("base", po::value(&base)->default_value("NaOH"), "strong base holding the high pH of the scan")
-        ("ideal", po::bool_switch(&ideal), "activity coefficients 1 (no Davies correction)")
         ("no-media", po::bool_switch(&no_media), "skip the dose in the pharmacopeial media");
+    add_activity_options(desc, activity);
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
@@ -75,7 +76,7 @@ int run_classify(const Args& args) {
     o.form = form;
     o.acid_titrant = acid;
     o.base_titrant = base;
-    o.activity = ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
+    o.activity = activity_model_of(activity);
     o.check_media = !no_media;
 
     const Library lib = load_libraries(common);

@@ -186,8 +186,37 @@ void add_formulation_options(po::options_description& desc, FormulationOptions& 
        "weighed: --dose is of the form weighed; free: of its free-form equivalent")
       ("add", po::value(&f.adds)->composing(), "reagent and amount, e.g. KH2PO4=25mM; may repeat")
       ("medium", po::value(&f.medium), "library medium to start from (e.g. saline-0.9)")
-      ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C (mix: a list such as 5,25,37 compares them)")
-      ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)");
+      ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C (mix: a list such as 5,25,37 compares them)");
+  add_activity_options(desc, f.activity);
+}
+
+void add_activity_options(po::options_description& desc, ActivityOptions& a) {
+  desc.add_options()
+      ("activity", po::value(&a.activity),
+       ("activity model: " + activity_model_names() + " (default " +
+        activity_model_id(kDefaultActivityModel) + "; sit: specific ion interaction, for ionic "
+        "strength up to 0.6 mol/L; ideal: the same as --ideal)").c_str())
+      ("ideal", po::bool_switch(&a.ideal), "activity coefficients 1 (no Davies correction)");
+}
+
+ActivityModel activity_model_of(const ActivityOptions& a) {
+  if (a.activity.empty()) return a.ideal ? ActivityModel::kIdeal : kDefaultActivityModel;
+  const std::optional<ActivityModel> m = parse_activity_model(a.activity);
+  if (!m) {
+    throw InputError(SourceLocation{"--activity", 0, 0},
+                     "unknown activity model \"" + a.activity + "\" (expected one of " +
+                         activity_model_names() + ")");
+  }
+  if (a.ideal && *m != ActivityModel::kIdeal) {
+    throw InputError(SourceLocation{"--activity", 0, 0},
+                     "--ideal and --activity " + a.activity + " name two different activity models");
+  }
+  return *m;
+}
+
+std::string activity_arguments(const ActivityOptions& a) {
+  if (a.activity.empty()) return a.ideal ? " --ideal" : "";
+  return " --activity " + a.activity;
 }
 
 DoseBasis option_dose_basis(const std::string& text) {
@@ -235,7 +264,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
                           std::vector<std::string>* inputs, Compound* compound_out) {
   Mixture m;
   m.temperature_C = option_temperature("--temp", f.temperature);
-  m.activity = f.ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
+  m.activity = activity_model_of(f.activity);
   if (!f.medium.empty()) {
     try {
       library.medium(f.medium);

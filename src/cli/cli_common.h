@@ -77,6 +77,19 @@ void check_text_format_only(const std::string& command, const std::string& forma
 Amount option_amount(const std::string& option, const std::string& text);
 /// Number in [lo, hi] from an option value; errors name the option.
 double option_number(const std::string& option, const std::string& text, double lo, double hi);
+
+/// The activity model options of every command that solves equilibria: --activity NAME and
+/// --ideal (kept; the same as --activity ideal).
+struct ActivityOptions {
+  std::string activity;  ///< "" = the default model
+  bool ideal = false;
+};
+void add_activity_options(po::options_description& desc, ActivityOptions& a);
+/// The model the options name; InputError naming --activity for an unknown name or for
+/// --ideal together with another model.
+ActivityModel activity_model_of(const ActivityOptions& a);
+/// The options as arguments (" --activity sit", " --ideal" or ""), for traceability.
+std::string activity_arguments(const ActivityOptions& a);
 /// Temperature option (°C, -10..100).
 /// A whole number within [lo, hi] ("--threads 1.5" is refused, naming the option and `what`,
 /// which may be empty).
@@ -104,7 +117,7 @@ struct FormulationOptions {
   std::vector<std::string> adds;
   std::string medium;
   std::string temperature = "25";
-  bool ideal = false;
+  ActivityOptions activity;
 };
 void add_formulation_options(po::options_description& desc, FormulationOptions& f);
 /// Reads --dose-as: "weighed" (the amount is of the form weighed) or "free" (its free-form

@@ -15,7 +15,7 @@ int run_fit(const Args& args) {
   return guarded([&] {
     CommonOptions common;
     std::string compound_file, data_file, params, output, medium, acid = "HCl", base = "NaOH";
-    bool ideal = false;
+    ActivityOptions activity;
     po::options_description desc("fit options");
     desc.add_options()
         ("compound", po::value(&compound_file), "compound XML file (starting values; measured points)")
@@ -28,14 +28,14 @@ int run_fit(const Args& args) {
         ("output,o", po::value(&output), "write the fitted compound file here (other content kept)")
         ("medium", po::value(&medium), "library medium the measurements were made in (default: water)")
         ("acid", po::value(&acid)->default_value("HCl"), "strong acid that set the pH")
-        ("base", po::value(&base)->default_value("NaOH"), "strong base that set the pH")
-        ("ideal", po::bool_switch(&ideal), "activity coefficients 1 (Henderson-Hasselbalch)");
+        ("base", po::value(&base)->default_value("NaOH"), "strong base that set the pH");
+    add_activity_options(desc, activity);
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
                  "pkarta fit --compound F [--data CSV] [--params s0,pka1,pka2,ksp:SALT] [-o OUT.xml] "
-                 "[--medium ID] [--acid HCl] [--base NaOH] [--ideal]",
+                 "[--medium ID] [--acid HCl] [--base NaOH] [--activity MODEL | --ideal]",
                  desc);
       return 0;
     }
@@ -55,7 +55,7 @@ int run_fit(const Args& args) {
     const Compound compound = load_compound(compound_file, lib);
 
     FitOptions options;
-    options.conditions.activity = ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
+    options.conditions.activity = activity_model_of(activity);
     options.conditions.acid_titrant = acid;
     options.conditions.base_titrant = base;
     try {

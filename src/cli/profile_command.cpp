@@ -55,8 +55,9 @@ int run_profile(const Args& args) {
          "methanesulfonic-acid); its anion can form a salt")
         ("base", po::value(&base)->default_value("NaOH"),
          "strong base holding the high pH (NaOH, KOH); its cation can form a salt")
-        ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C")
-        ("ideal", po::bool_switch(&f.ideal), "activity coefficients 1 (no Davies correction)")
+        ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C");
+    add_activity_options(desc, f.activity);
+    desc.add_options()
         ("uncertainty", po::value(&uncertainty)->default_value("0"),
          "Monte Carlo samples over the pKa sd and S0 log-sd of the compound file: 5/50/95 % bands")
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
@@ -66,7 +67,7 @@ int run_profile(const Args& args) {
     if (common.help) {
       print_help(std::cout,
                  "pkarta profile --compound F [--from 1 --to 13 --step 0.05 | --points LIST] "
-                 "[--add REAGENT=AMOUNT]... [--medium ID] [--acid HCl] [--base NaOH] [--temp C] [--ideal]",
+                 "[--add REAGENT=AMOUNT]... [--medium ID] [--acid HCl] [--base NaOH] [--temp C] [--activity MODEL | --ideal]",
                  desc);
       std::cout << "At each pH the drug's excess free form is equilibrated in the medium, the pH held by\n"
                    "the acid or the base; a salt limits where its ion product would exceed Ksp, its\n"

@@ -34,6 +34,8 @@ int run_recipe(const Args& args) {
         ("preparation", po::value(&preparation)->default_value("premade"),
          "premade: buffer made at the pH, drug dissolved in it; adjusted: buffer reagent and drug "
          "dissolved, pH brought to target with the titrant (with --compound)");
+    ActivityOptions activity;
+    add_activity_options(desc, activity);
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
@@ -50,6 +52,7 @@ int run_recipe(const Args& args) {
     if (conc.empty()) throw InputError(SourceLocation{"--conc", 0, 0}, "give the buffer strength (--conc, e.g. 50mM)");
 
     RecipeOptions o;
+    o.activity = activity_model_of(activity);
     o.buffer = buffer;
     o.pH = option_number("--ph", ph, 0.0, 14.0);
     o.temperature_C = option_temperature("--temp", temp);

@@ -42,8 +42,9 @@ void add_report_options(po::options_description& desc, ReportOptions& r) {
       ("dose-mg", po::value(&r.dose_mg), "highest single dose in mg of the form, for the ICH M9 solubility class at 37 °C")
       ("into", po::value(&r.into), "medium the formulation is diluted into (default by route; none: no dilution)")
       ("route", po::value(&r.route)->default_value("any"), "oral, parenteral, ophthalmic, topical or any")
-      ("temp", po::value(&r.temperature)->default_value("25"), "temperature, °C")
-      ("ideal", po::bool_switch(&r.ideal), "activity coefficients 1 (no Davies correction)")
+      ("temp", po::value(&r.temperature)->default_value("25"), "temperature, °C");
+  add_activity_options(desc, r.activity);
+  desc.add_options()
       ("output,o", po::value(&r.output), "HTML file to write; its CSV tables go to the folder beside it");
 }
 
@@ -57,7 +58,7 @@ std::string report_arguments(const ReportOptions& r) {
   if (!r.dose_mg.empty()) s += " --dose-mg " + r.dose_mg;
   if (!r.into.empty()) s += " --into " + r.into;
   s += " --temp " + r.temperature;
-  if (r.ideal) s += " --ideal";
+  s += activity_arguments(r.activity);
   return s;
 }
 
@@ -73,7 +74,7 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
   }
   ReportRequest req;
   req.temperature_C = option_temperature("--temp", r.temperature);
-  req.activity = r.ideal ? ActivityModel::kIdeal : ActivityModel::kDavies;
+  req.activity = activity_model_of(r.activity);
   req.form = r.form;
   req.tolerance_pH = option_number("--tolerance", r.tolerance, 1e-4, 2.0);
   if (!r.target_ph.empty()) req.target_pH = option_number("--target-ph", r.target_ph, 0.0, 14.0);

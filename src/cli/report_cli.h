@@ -21,7 +21,7 @@ struct ReportOptions {
   std::string temperature = "25";
   std::string dose_mg;                ///< highest single dose for the ICH M9 class
   std::string into;                   ///< dilution medium ("" = by route, "none" = no dilution)
-  bool ideal = false;
+  ActivityOptions activity;
   std::string output;
 };
 

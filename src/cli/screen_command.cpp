@@ -135,6 +135,8 @@ int run_screen(const Args& args) {
         ("uncertainty", po::value(&uncertainty)->default_value("0"),
          "Monte Carlo samples over the pKa sd and S0 log-sd: 5/50/95 % bands of min conc (one compound)")
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
+    ActivityOptions activity;
+    add_activity_options(desc, activity);
     add_common_options(desc, common);
     add_output_option(desc, common);
     parse(args, desc);
@@ -156,6 +158,7 @@ int run_screen(const Args& args) {
     if (target.empty()) throw InputError(SourceLocation{"--target-ph", 0, 0}, "give the pH to hold (--target-ph P)");
 
     ScreenOptions opt;
+    opt.activity = activity_model_of(activity);
     opt.target_pH = option_number("--target-ph", target, 0.0, 14.0);
     opt.tolerance_pH = option_number("--tolerance", tolerance, -1e9, 1e9);
     if (!(opt.tolerance_pH > 0)) {

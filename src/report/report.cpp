@@ -1270,7 +1270,7 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
          "<li>Buffer capacity as d(strong base)/d(pH) of the closed system; its ideal limit is van Slyke's [4].</li>\n"
          "<li>Solubility classification follows ICH M9 [5]: highest dose in 250 mL over pH 1.2-6.8 at 37 °C.</li>\n"
          "<li>Activity model: "
-      << (d.request.activity == ActivityModel::kDavies ? "Davies" : "ideal (activity coefficients 1)")
+      << activity_model_label(d.request.activity)
       << ". pH means -log10 a(H+). Closed systems: no CO2 exchange with air. Not modelled: aggregation, micelles, "
          "complexation, polymorphs and hydrates of the drug, cosolvents, ion pairing, kinetics.</li>\n</ul>\n"
          "<ol class=\"refs\">\n"
@@ -1293,7 +1293,8 @@ void write_report_html(const ReportData& d, const std::string& csv_folder, std::
   out << "<dl class=\"trace\">\n<dt>tool</dt><dd>pkarta " << esc(p.tool_version) << "</dd>\n<dt>library</dt><dd>"
       << esc(p.library_id) << " version " << esc(p.library_version) << "</dd>\n<dt>date (UTC)</dt><dd>"
       << esc(p.date_utc) << "</dd>\n<dt>temperature</dt><dd>" << fixed(T, 1) << " °C</dd>\n<dt>activity model</dt><dd>"
-      << (d.request.activity == ActivityModel::kDavies ? "Davies" : "ideal") << "</dd>\n<dt>profile</dt><dd>pH "
+      << (d.request.activity == ActivityModel::kIdeal ? "ideal" : activity_model_label(d.request.activity))
+      << "</dd>\n<dt>profile</dt><dd>pH "
       << fixed(d.request.profile_from_pH, 2) << " to " << fixed(d.request.profile_to_pH, 2) << " step "
       << fixed(d.request.profile_step_pH, 2) << ", water, HCl or NaOH</dd>\n";
   if (!p.command_line.empty()) out << "<dt>command</dt><dd><code>" << esc(p.command_line) << "</code></dd>\n";

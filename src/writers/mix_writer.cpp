@@ -43,9 +43,8 @@ void write_mix_text(const MixResult& r, std::ostream& out) {
     out << "\n";
     for (const std::string& w : e.warnings) out << "warning: " << w << "\n";
   }
-  out << "\nActivity model: "
-      << (r.activity == ActivityModel::kDavies ? "Davies" : "ideal (activity coefficients 1)")
-      << "; pH = -log10 a(H+). " << caution_text() << "\n";
+  out << "\nActivity model: " << activity_model_label(r.activity) << "; pH = -log10 a(H+). "
+      << caution_text() << "\n";
 }
 
 void write_mix_csv(const MixResult& r, std::ostream& out) {
@@ -75,6 +74,7 @@ void write_mix_json(const MixResult& r, std::ostream& out) {
   nlohmann::ordered_json j;
   j["pH"] = e.pH;
   j["temperature_C"] = e.temperature_C;
+  j["activity_model"] = activity_model_id(e.activity);
   j["ionic_strength_mol_per_L"] = e.ionic_strength_mol_per_L;
   j["osmolarity_mOsm_per_L"] = e.osmolarity_mOsm_per_L;
   j["osmolality_estimate_mOsm_per_kg"] = r.osmolality_estimate_mOsm_per_kg;

@@ -26,7 +26,7 @@ std::string titrant_cell(const Profile& p, double tau) {
 }
 
 std::string activity_text(ActivityModel a) {
-  return a == ActivityModel::kDavies ? "Davies" : "ideal (activity coefficients 1)";
+  return activity_model_label(a);
 }
 
 bool on_interval(double pH, double interval) {
@@ -175,7 +175,7 @@ nlohmann::ordered_json profile_json(const Profile& p) {
   j["compound"] = {{"id", p.compound_id}, {"name", p.compound_name},
                    {"molar_mass_g_per_mol", p.molar_mass_g_per_mol}};
   j["temperature_C"] = p.temperature_C;
-  j["activity_model"] = p.activity == ActivityModel::kDavies ? "davies" : "ideal";
+  j["activity_model"] = activity_model_id(p.activity);
   j["medium"] = p.medium_contents;
   j["acid_titrant"] = p.acid_titrant;
   j["base_titrant"] = p.base_titrant;

@@ -35,6 +35,34 @@ TEST(Cli, MixPrintsPhOfAPhosphateBuffer) {
   EXPECT_NE(r.out.find("\"capacity_mol_per_L_per_pH\""), std::string::npos);
 }
 
+TEST(Cli, ActivityModelOption) {
+  // McIlvaine 1921 (J. Biol. Chem. 49, 183), the pH 8.0 row: 19.45 mL 0.2 M Na2HPO4 + 0.55 mL
+  // 0.1 M citric acid, I about 0.58 mol/L; 8.04 on today's scale (Sørensen's scale + 0.04,
+  // see tests/chem/buffer_tables_test.cpp). SIT within the table's 0.08; Davies 0.11 high.
+  const std::string mix = "mix --add Na2HPO4=194.5mM --add citric-acid=2.75mM --format json";
+  const RunResult s = run(mix + " --activity sit");
+  ASSERT_EQ(s.code, 0) << s.err;
+  EXPECT_NE(s.out.find("\"activity_model\": \"sit\""), std::string::npos) << s.out;
+  const double ph_sit = std::stod(s.out.substr(s.out.find("\"pH\": ") + 6));
+  EXPECT_NEAR(ph_sit, 8.04, 0.08);
+  const RunResult d = run(mix + " --activity davies");
+  ASSERT_EQ(d.code, 0) << d.err;
+  const double ph_davies = std::stod(d.out.substr(d.out.find("\"pH\": ") + 6));
+  EXPECT_GT(ph_davies - 8.04, 0.08);
+  EXPECT_EQ(run(mix).out, d.out);  // Davies is the default
+  // --ideal stays, the same as --activity ideal; an unknown name or two models are refused.
+  EXPECT_EQ(run(mix + " --ideal").out, run(mix + " --activity ideal").out);
+  const RunResult bad = run(mix + " --activity pitzer");
+  EXPECT_EQ(bad.code, 2);
+  EXPECT_NE(bad.err.find("--activity"), std::string::npos) << bad.err;
+  EXPECT_TRUE(bad.out.empty());
+  EXPECT_EQ(run(mix + " --ideal --activity sit").code, 2);
+  // Every command that solves equilibria takes the option.
+  for (const char* c : {"profile", "classify", "fit", "screen", "recipe", "dilute", "report"}) {
+    EXPECT_NE(run(std::string(c) + " --help").out.find("--activity"), std::string::npos) << c;
+  }
+}
+
 TEST(Cli, MixWithTheDemoBase) {
   const RunResult r = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride "
                     "--add KH2PO4=25mM --add Na2HPO4=25mM --format csv");

@@ -81,6 +81,7 @@ struct Recipe {
   double conc_mol_per_L = 0.0;
   double volume_L = 1.0;
   double temperature_C = 25.0;
+  ActivityModel activity = kDefaultActivityModel;
   std::vector<RecipeReagent> reagents;
   std::optional<RecipeTitrant> titrant;
   // The solution as made, by the full equilibrium solve (docs/model.md):

@@ -180,6 +180,7 @@ struct ScreenReport {
   double target_pH = 0.0;
   double tolerance_pH = 0.0;
   double temperature_C = 25.0;
+  ActivityModel activity = kDefaultActivityModel;
   double low_temperature_C = 5.0;
   double high_temperature_C = 40.0;
   double dose_mol_per_L = 0.0;

@@ -23,6 +23,9 @@ enum class ActivityModel { kDavies, kIdeal, kSit, kTruesdellJones };
 std::string activity_model_id(ActivityModel model);
 /// A model named in words for notes and reports, e.g. "specific ion interaction (SIT)".
 std::string activity_model_label(ActivityModel model);
+/// The model in a method note: "Davies activities", "ideal activities (coefficients 1)",
+/// "specific ion interaction (SIT) activities", ...
+std::string activity_words(ActivityModel model);
 /// The model of a name as activity_model_id() gives it; nullopt for an unknown name.
 std::optional<ActivityModel> parse_activity_model(const std::string& name);
 /// The names accepted by parse_activity_model(), joined by '|'.

@@ -120,6 +120,7 @@ struct Equilibrium {
   int evaluations = -1;                   ///< charge-balance evaluations
   double pH = 0.0;
   double temperature_C = 25.0;
+  ActivityModel activity = kDefaultActivityModel;  ///< the model the state was solved with
   double ionic_strength_mol_per_L = 0.0;
   double osmolarity_mOsm_per_L = 0.0;     ///< ideal: sum of all dissolved species
   double charge_residual_rel = 0.0;       ///< |sum z c| / sum |z c|
