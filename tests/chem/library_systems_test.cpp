@@ -21,10 +21,12 @@
 // Fumarate has no published pH checked here.
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <cstdio>
 
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/mixture_builder.h"
+#include "pkarta/chem/water.h"
 #include "pkarta/io/xml_input.h"
 
 namespace pkarta {
@@ -93,6 +95,35 @@ TEST(LibrarySystems, NewReagentsGiveTheirFormulaCounts) {
   add_reagent(ca, lib, "calcium-hydroxide", 0.01);
   ASSERT_EQ(ca.ions.size(), 1u);
   EXPECT_EQ(ca.ions[0].charge, 2);
+}
+
+}  // namespace
+}  // namespace pkarta
+
+namespace pkarta {
+namespace {
+
+// The sulfate system (HSO4- / SO4 2-, pK 1.99 at 25 °C, Martell and Smith, recalled, to be
+// verified): 10 mM sodium hydrogen sulfate with activity coefficients 1 against the hand
+// calculation of a weak acid, [H+]^2 / (C - [H+]) = Ka (the textbook quadratic, common
+// practice); the charges of its species (-1, -2) and its temperature dependence (protonation
+// enthalpy +22.6 kJ/mol: the pK rises with temperature, by van 't Hoff 0.133 from 25 to 50 °C).
+TEST(LibrarySystems, SulfateSecondStep) {
+  const Library lib = builtin_library();
+  const AcidBaseSystem& s = lib.system("sulfate");
+  ASSERT_EQ(s.pkas.size(), 1u);
+  EXPECT_EQ(s.charge_of(0), -1);
+  EXPECT_EQ(s.charge_of(1), -2);
+  EXPECT_NEAR(s.pkas[0].at(50.0) - s.pkas[0].at(25.0),
+              22.6e3 / (kGasConstant * kLn10) * (1.0 / 298.15 - 1.0 / 323.15), 1e-9);
+  Mixture m;
+  m.activity = ActivityModel::kIdeal;
+  add_reagent(m, lib, "sodium-hydrogen-sulfate", 0.010);
+  const Equilibrium e = solve(m);
+  ASSERT_TRUE(e.usable());
+  const double ka = std::pow(10.0, -1.99), c = 0.010;
+  const double h = 0.5 * (-ka + std::sqrt(ka * ka + 4.0 * ka * c));  // water negligible
+  EXPECT_NEAR(e.pH, -std::log10(h), 1e-3);
 }
 
 }  // namespace
