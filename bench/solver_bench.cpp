@@ -2,6 +2,7 @@
 #include <benchmark/benchmark.h>
 
 #include <random>
+#include <vector>
 
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/mixture_builder.h"
@@ -31,7 +32,7 @@ Compound bench_base() {
   return c;
 }
 
-void closed_system_solve(benchmark::State& state) {
+void solve_states(benchmark::State& state, ActivityModel activity) {
   const Library lib = builtin_library();
   const Compound base = bench_base();
   std::mt19937_64 rng(42);
@@ -40,6 +41,7 @@ void closed_system_solve(benchmark::State& state) {
   add_reagent(m, lib, "KH2PO4", 0.025);
   add_reagent(m, lib, "Na2HPO4", 0.025);
   add_drug(m, lib, base, 1e-3, "free");
+  m.activity = activity;
   SolverOptions opt;
   long evaluations = 0, saturated = 0, states = 0;
   for (auto _ : state) {
@@ -56,7 +58,48 @@ void closed_system_solve(benchmark::State& state) {
   state.counters["saturated_fraction"] = static_cast<double>(saturated) / states;
   state.counters["states_per_s"] = benchmark::Counter(static_cast<double>(states), benchmark::Counter::kIsRate);
 }
+void closed_system_solve(benchmark::State& state) { solve_states(state, ActivityModel::kDavies); }
 BENCHMARK(closed_system_solve);
+
+// The same states under the specific ion interaction model (per-species coefficients).
+void closed_system_solve_sit(benchmark::State& state) { solve_states(state, ActivityModel::kSit); }
+BENCHMARK(closed_system_solve_sit);
+
+// A formulation at the top of the SIT range: citrate-phosphate (McIlvaine-like, random share of
+// 0.2 M Na2HPO4 against 0.1 M citric acid) with 0-150 mM NaCl and the weak base above at
+// 0.01-5 mg/mL, 5-40 °C, I 0.05-0.75 mol/L; `model` 0 Davies, 1 SIT.
+void citrate_phosphate_saline(benchmark::State& state) {
+  const Library lib = builtin_library();
+  const Compound base = bench_base();
+  const ActivityModel activity = state.range(0) == 0 ? ActivityModel::kDavies : ActivityModel::kSit;
+  std::mt19937_64 rng(7);
+  std::uniform_real_distribution<double> share(0.0, 1.0), nacl(0.0, 0.150), dose_mg(0.01, 5.0),
+      temp(5.0, 40.0);
+  SolverOptions opt;
+  long evaluations = 0, states = 0;
+  std::vector<Mixture> mixtures;
+  for (int k = 0; k < 256; ++k) {
+    Mixture m;
+    m.activity = activity;
+    const double x = share(rng);
+    add_reagent(m, lib, "Na2HPO4", 0.2 * x);
+    add_reagent(m, lib, "citric-acid", 0.1 * (1.0 - x));
+    add_reagent(m, lib, "NaCl", nacl(rng));
+    add_drug(m, lib, base, dose_mg(rng) / 320.4, "free");
+    m.temperature_C = temp(rng);
+    mixtures.push_back(m);
+  }
+  std::size_t k = 0;
+  for (auto _ : state) {
+    EquilibriumModel model(mixtures[k++ % mixtures.size()]);
+    const StateSummary s = model.solve(opt);
+    benchmark::DoNotOptimize(s.pH);
+    evaluations += s.evaluations;
+    ++states;
+  }
+  state.counters["evaluations_per_state"] = static_cast<double>(evaluations) / states;
+}
+BENCHMARK(citrate_phosphate_saline)->ArgName("model")->Arg(0)->Arg(1);
 
 // Up to three candidate solids: a dibasic base (pKa 6.0 and 9.0, S0 0.1 mg/mL, molar mass
 // 300) with a hydrochloride (1:1, Ksp 1e-3) and a dihydrochloride (1:2, Ksp 1e-5), at random

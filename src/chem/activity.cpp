@@ -1,6 +1,7 @@
 #include "pkarta/chem/activity.h"
 
 #include <cmath>
+#include <string_view>
 
 #include "pkarta/chem/water.h"
 
@@ -19,9 +20,9 @@ namespace {
 // All recalled from those tables, to be verified. A system's species is keyed by the system id
 // and its charge.
 struct SitPair {
-  const char* cation;
+  std::string_view cation;
   int zc;
-  const char* anion;
+  std::string_view anion;
   int za;
   double eps;
 };
@@ -73,7 +74,7 @@ constexpr SitPair kSit[] = {
 // from Truesdell and Jones 1974, J. Res. U.S. Geol. Surv. 2, 233, Table 1. Recalled from those
 // tables, to be verified.
 struct IonSize {
-  const char* key;
+  std::string_view key;
   int z;
   double a;
   double b;
@@ -93,7 +94,7 @@ constexpr IonSize kIonSize[] = {
 // Martell, Critical Stability Constants, vol. 4 (Inorganic Complexes), Plenum 1976, to be
 // verified; their enthalpies are not given here (0: K held at every temperature).
 struct Hydroxo {
-  const char* ion;
+  std::string_view ion;
   int z;
   double log10_k;
   double dH;
@@ -196,11 +197,18 @@ LogGammaTerms ActivityMedium::terms(const std::string& key, int charge) const {
     case ActivityModel::kSit:
       t.ba = kSitBa;
       if (charge == 0) return t;
-      for (const MediumIon& k : ions_) {
-        if ((k.charge > 0) == (charge > 0)) continue;
-        const std::optional<double> eps = charge > 0 ? sit_epsilon(key, charge, k.id, k.charge)
-                                                     : sit_epsilon(k.id, k.charge, key, charge);
-        if (eps) t.c += *eps * k.molal;
+      // Each pair of the table naming this species, with every medium ion of opposite charge
+      // it names (one pass over the table: this runs for every species of every mixture).
+      for (const SitPair& p : kSit) {
+        const bool cation = charge > 0;
+        if ((cation ? p.zc : p.za) != charge) continue;
+        const std::string_view name = cation ? p.cation : p.anion;
+        if (key.size() != name.size() || key[0] != name[0] || key != name) continue;
+        const std::string_view partner = cation ? p.anion : p.cation;
+        const int partner_charge = cation ? p.za : p.zc;
+        for (const MediumIon& k : ions_) {
+          if (k.charge == partner_charge && k.id == partner) t.c += p.eps * k.molal;
+        }
       }
       return t;
     case ActivityModel::kTruesdellJones:

@@ -269,7 +269,7 @@ void EquilibriumModel::prepare_activity_terms(const Mixture& m) {
       const int z = s.z0 - j;
       s.act[j] = medium.terms(key, z);
       s.generic_form[j] = generic(s.act[j], z);
-      s.fixed[j] = std::pow(10.0, s.act[j].c);
+      s.fixed[j] = s.act[j].c == 0.0 ? 1.0 : std::pow(10.0, s.act[j].c);
     }
   };
   for (std::size_t k = 0; k < systems_.size(); ++k) prepare(systems_[k], m.systems[k].system.id);
@@ -278,10 +278,14 @@ void EquilibriumModel::prepare_activity_terms(const Mixture& m) {
     IonC& i = ions_[t];
     i.act = medium.terms(m.ions[t].id, i.charge);
     i.generic_form = generic(i.act, i.charge);
-    i.fixed = std::pow(10.0, i.act.c);
+    i.fixed = i.act.c == 0.0 ? 1.0 : std::pow(10.0, i.act.c);
   }
   h_act_ = medium.terms("H+", 1);
   oh_act_ = medium.terms("OH-", -1);
+  h_generic_ = generic(h_act_, 1);
+  oh_generic_ = generic(oh_act_, -1);
+  h_fixed_ = h_act_.c == 0.0 ? 1.0 : std::pow(10.0, h_act_.c);
+  oh_fixed_ = oh_act_.c == 0.0 ? 1.0 : std::pow(10.0, oh_act_.c);
   for (std::size_t t = 0; t < ions_.size(); ++t) {
     const std::optional<HydroxoComplex> hc = hydroxo_complex(m.ions[t].id, ions_[t].charge);
     if (!hc || !(ions_[t].conc > 0)) continue;
@@ -338,8 +342,8 @@ void EquilibriumModel::set_ionic_strength(double I) {
         for (int j = 0; j <= drug_.n; ++j) drug_.gamma[j] = gamma(drug_.z0 - j) * drug_.fixed[j];
       }
       for (IonC& i : ions_) i.gamma = coefficient(i.act, i.generic_form, i.fixed, i.charge);
-      gamma_h_ = coefficient(h_act_, false, 1.0, 1);
-      gamma_oh_ = coefficient(oh_act_, false, 1.0, -1);
+      gamma_h_ = coefficient(h_act_, h_generic_, h_fixed_, 1);
+      gamma_oh_ = coefficient(oh_act_, oh_generic_, oh_fixed_, -1);
       for (HydroxoPair& q : pairs_) {
         const double g_pair = coefficient(q.act, false, 1.0, q.z - 1);
         q.k_eff = q.k * ions_[q.ion].gamma * gamma_oh_ / g_pair;

@@ -285,6 +285,8 @@ class EquilibriumModel {
   std::vector<HydroxoPair> pairs_;
   LogGammaTerms h_act_, oh_act_;
   double gamma_h_ = 1.0, gamma_oh_ = 1.0;
+  bool h_generic_ = false, oh_generic_ = false;  // H+ and OH- terms of the generic form
+  double h_fixed_ = 1.0, oh_fixed_ = 1.0;        // ... and their factors 10^c
   double generic_ba_ = 1.0;         // per-species models: Ba of the generic form
   double generic_b1_ = 0.0;         // ... and its b for charge 1 (b_z = b_1 z^2)
   std::vector<Sys> systems_;
