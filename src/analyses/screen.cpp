@@ -928,6 +928,9 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
 
 }  // namespace
 
+const char* screen_method_note() { return kMethodNote; }
+const char* screen_osmolality_note() { return kOsmolalityNote; }
+
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out) {
   nlohmann::ordered_json j;
   if (reports.size() == 1) {

@@ -1,12 +1,15 @@
 // `pkarta classify`: solubility classification over pH 1.2-6.8 at 37 °C (ICH M9, 2019).
 #include <iostream>
+#include <sstream>
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/analyses/classify.h"
 #include "pkarta/analyses/profile.h"
 #include "pkarta/base/format.h"
 #include "pkarta/writers/classify_writer.h"
+#include "pkarta/writers/tables.h"
 
 namespace pkarta::cli {
 
@@ -31,6 +34,7 @@ int run_classify(const Args& args) {
                 step = "0.01";
     bool no_media = false;
     ActivityOptions activity;
+    TableOptions tables;
     po::options_description desc("classify options");
     desc.add_options()
         ("compound", po::value(&compound_file), "compound XML file (required)")
@@ -43,6 +47,7 @@ int run_classify(const Args& args) {
         ("base", po::value(&base)->default_value("NaOH"), "strong base holding the high pH of the scan")
         ("no-media", po::bool_switch(&no_media), "skip the dose in the pharmacopeial media");
     add_activity_options(desc, activity);
+    add_table_options(desc, tables);
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
@@ -57,10 +62,12 @@ int run_classify(const Args& args) {
              "D0 = (dose / 250 mL) / S is reported at pH 1.2, 4.5, 6.8, at each pKa in the range and at\n"
              "the minimum; solubilities are in mg/mL of the form the dose is given in. The dose is also\n"
              "dissolved in the library media hcl-1.2, acetate-4.5 and phosphate-6.8 (closed system) to\n"
-             "show the pH after the dose; those checks inform, the scan decides.\n";
+             "show the pH after the dose; those checks inform, the scan decides.\n\n"
+          << tables_help(classify_table_info());
       return 0;
     }
     check_format(common.format);
+    check_table_options(tables, common.format, classify_table_info(), {compound_file});
     if (compound_file.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "--compound FILE is required");
     if (dose.empty()) {
       throw InputError(SourceLocation{"--dose-mg", 0, 0}, "--dose-mg N is required (highest single dose, mg)");
@@ -105,9 +112,14 @@ int run_classify(const Args& args) {
                            " mol/L, beyond the 10 mol/L the model covers");
     }
     const ClassifyResult r = classify(c, lib, o);
-    if (common.format == "json") write_classify_json(r, std::cout);
-    else if (common.format == "csv") write_classify_csv(r, std::cout);
-    else write_classify_text(r, std::cout);
+    emit_tables(tables, common.format, classify_tables(r), {compound_file});
+    if (common.format == "json") {
+      std::ostringstream raw;
+      write_classify_json(r, raw);
+      print_json(raw.str());
+    } else if (common.format == "text") {
+      write_classify_text(r, std::cout);
+    }
     if (common.format != "text") {
       for (const std::string& w : r.warnings) std::cerr << "pkarta: warning: " << w << "\n";
     }

@@ -3,8 +3,10 @@
 #include <sstream>
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/analyses/dilute.h"
+#include "pkarta/writers/tables.h"
 #include "pkarta/chem/mixture_builder.h"
 
 namespace pkarta::cli {
@@ -43,6 +45,8 @@ int run_dilute(const Args& args) {
         ("blood-model", po::value(&blood_model), "bicarbonate of plasma or blood: open (held at a set "
                                                  "pCO2, default for plasma or blood) or closed")
         ("pco2", po::value(&pco2), "arterial pCO2 of the open model, mmHg (default 40)");
+    TableOptions tables;
+    add_table_options(desc, tables);
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
@@ -51,9 +55,11 @@ int run_dilute(const Args& args) {
                  "[--medium ID] [--temp C] --into MEDIUM [--ratios 1,2,5,10,20,50,100] [--into-temp C] "
                  "[--blood-model open|closed] [--pco2 MMHG]",
                  desc);
+      std::cout << "\n" << tables_help(dilute_table_info());
       return 0;
     }
     check_format(common.format);
+    check_table_options(tables, common.format, dilute_table_info(), {f.compound_file});
     if (into.empty()) throw InputError(SourceLocation{"--into", 0, 0}, "dilute needs --into MEDIUM");
     const Library lib = load_libraries(common);
     try {
@@ -91,9 +97,14 @@ int run_dilute(const Args& args) {
       error(r.message);
       return static_cast<int>(kExitRefused);
     }
-    if (common.format == "json") write_dilute_json(r, std::cout);
-    else if (common.format == "csv") write_dilute_csv(r, std::cout);
-    else write_dilute_text(r, std::cout);
+    emit_tables(tables, common.format, dilute_tables(r), {f.compound_file});
+    if (common.format == "json") {
+      std::ostringstream raw;
+      write_dilute_json(r, raw);
+      print_json(raw.str());
+    } else if (common.format == "text") {
+      write_dilute_text(r, std::cout);
+    }
     if (common.format != "text") {
       for (const std::string& w : r.warnings) std::cerr << "pkarta: warning: " << w << "\n";
     }

@@ -3,10 +3,12 @@
 #include <sstream>
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/io/atomic_file.h"
 #include "pkarta/analyses/fit.h"
 #include "pkarta/writers/fit_writer.h"
+#include "pkarta/writers/tables.h"
 #include "pkarta/chem/mixture_builder.h"
 
 namespace pkarta::cli {
@@ -30,6 +32,8 @@ int run_fit(const Args& args) {
         ("acid", po::value(&acid)->default_value("HCl"), "strong acid that set the pH")
         ("base", po::value(&base)->default_value("NaOH"), "strong base that set the pH");
     add_activity_options(desc, activity);
+    TableOptions tables;
+    add_table_options(desc, tables);  // -o is the fitted compound file
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
@@ -37,9 +41,11 @@ int run_fit(const Args& args) {
                  "pkarta fit --compound F [--data CSV] [--params s0,pka1,pka2,ksp:SALT] [-o OUT.xml] "
                  "[--medium ID] [--acid HCl] [--base NaOH] [--activity MODEL | --ideal]",
                  desc);
+      std::cout << "\n" << tables_help(fit_table_info());
       return 0;
     }
     check_format(common.format);
+    check_table_options(tables, common.format, fit_table_info(), {compound_file, data_file});
     if (compound_file.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "fit needs --compound FILE");
     const Library lib = load_libraries(common);
     if (output == "-") {
@@ -100,9 +106,14 @@ int run_fit(const Args& args) {
     std::string fitted_xml;
     if (!output.empty() && r.usable()) fitted_xml = fitted_compound_xml(compound_file, r, lib);
 
-    if (common.format == "json") write_fit_json(r, std::cout);
-    else if (common.format == "csv") write_fit_csv(r, std::cout);
-    else write_fit_text(r, std::cout);
+    emit_tables(tables, common.format, fit_tables(r), {compound_file, data_file});
+    if (common.format == "json") {
+      std::ostringstream raw;
+      write_fit_json(r, raw);
+      print_json(raw.str());
+    } else if (common.format == "text") {
+      write_fit_text(r, std::cout);
+    }
     if (common.format != "text") {
       for (const std::string& w : r.warnings) std::cerr << "pkarta: warning: " << w << "\n";
     }

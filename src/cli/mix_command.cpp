@@ -4,9 +4,11 @@
 #include "pkarta/base/format.h"
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/analyses/mix.h"
 #include "pkarta/writers/mix_writer.h"
+#include "pkarta/writers/tables.h"
 
 namespace pkarta::cli {
 
@@ -14,7 +16,7 @@ namespace {
 
 // Several temperatures: a compact comparison (text, csv) or {"states": [...]} (json).
 int run_mix_temperatures(FormulationOptions f, const Library& lib, const std::vector<std::string>& temps,
-                         const std::string& format) {
+                         const std::string& format, const TableOptions& tables) {
   std::vector<MixResult> results;
   std::vector<std::string> inputs;
   for (const std::string& t : temps) {
@@ -27,18 +29,18 @@ int run_mix_temperatures(FormulationOptions f, const Library& lib, const std::ve
       return static_cast<int>(kExitRefused);
     }
   }
+  emit_tables(tables, format, mix_tables(results), {f.compound_file});
   if (format == "json") {
-    std::cout << "{\"states\": [\n";
-    for (std::size_t i = 0; i < results.size(); ++i) {
+    nlohmann::ordered_json states = nlohmann::ordered_json::array();
+    for (const MixResult& r : results) {
       std::ostringstream one;
-      write_mix_json(results[i], one);
-      std::string text = one.str();
-      while (!text.empty() && text.back() == '\n') text.pop_back();
-      std::cout << text << (i + 1 < results.size() ? ",\n" : "\n");
+      write_mix_json(r, one);
+      states.push_back(nlohmann::ordered_json::parse(one.str()));
     }
-    std::cout << "]}\n";
+    print_json(nlohmann::ordered_json{{"states", states}});
     return 0;
   }
+  if (format == "csv") return 0;
   const bool drug = results.front().equilibrium.drug.has_value();
   std::vector<std::string> head = {"temperature (°C)", "pH", "ionic strength (mol/L)",
                                    "capacity (mol/L per pH)", "osmolarity (mOsm/L)"};
@@ -47,7 +49,6 @@ int run_mix_temperatures(FormulationOptions f, const Library& lib, const std::ve
     head.push_back("solid");
   }
   TextTable t(head);
-  if (format == "csv") write_csv_row(std::cout, head);
   for (const MixResult& r : results) {
     const Equilibrium& e = r.equilibrium;
     std::vector<std::string> row = {fixed(e.temperature_C, 1), fixed(e.pH, 3), sig(e.ionic_strength_mol_per_L, 4),
@@ -56,10 +57,8 @@ int run_mix_temperatures(FormulationOptions f, const Library& lib, const std::ve
       row.push_back(sig(e.drug->dissolved_mg_per_mL, 4));
       row.push_back(e.drug->solid);
     }
-    if (format == "csv") write_csv_row(std::cout, row);
-    else t.add_row(row);
+    t.add_row(row);
   }
-  if (format == "csv") return 0;
   std::cout << "Closed-system equilibrium at " << temps.size() << " temperatures\n  contents: ";
   for (std::size_t i = 0; i < inputs.size(); ++i) std::cout << (i ? ", " : "") << inputs[i];
   std::cout << "\n\n";
@@ -74,8 +73,10 @@ int run_mix(const Args& args) {
   return guarded([&] {
     CommonOptions common;
     FormulationOptions f;
+    TableOptions tables;
     po::options_description desc("mix options");
     add_formulation_options(desc, f);
+    add_table_options(desc, tables);
     add_common_options(desc, common);
     add_output_option(desc, common);
     parse(args, desc);
@@ -84,9 +85,11 @@ int run_mix(const Args& args) {
                  "pkarta mix [--compound F --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
                  "[--medium ID] [--temp C]",
                  desc);
+      std::cout << "\n" << tables_help(mix_table_info());
       return 0;
     }
     check_format(common.format);
+    check_table_options(tables, common.format, mix_table_info(), {f.compound_file});
     std::vector<std::string> protect = common.library_files;
     if (!f.compound_file.empty()) protect.push_back(f.compound_file);
     OutputTarget out(common.output, protect);
@@ -99,7 +102,7 @@ int run_mix(const Args& args) {
       if (comma == std::string::npos) break;
       start = comma + 1;
     }
-    if (temps.size() > 1) return out.done(run_mix_temperatures(f, lib, temps, common.format));
+    if (temps.size() > 1) return out.done(run_mix_temperatures(f, lib, temps, common.format, tables));
     std::vector<std::string> inputs;
     const Mixture m = build_formulation(f, lib, &inputs);
     if (m.systems.empty() && m.ions.empty() && !m.drug) {
@@ -111,9 +114,17 @@ int run_mix(const Args& args) {
       error(r.equilibrium.message);
       return static_cast<int>(kExitRefused);
     }
-    if (common.format == "json") write_mix_json(r, std::cout);
-    else if (common.format == "csv") write_mix_csv(r, std::cout);
-    else write_mix_text(r, std::cout);
+    emit_tables(tables, common.format, mix_tables({r}), {f.compound_file});
+    if (common.format == "json") {
+      // One temperature: the object of that state, and the list of states every mix has.
+      std::ostringstream one;
+      write_mix_json(r, one);
+      nlohmann::ordered_json j = nlohmann::ordered_json::parse(one.str());
+      j["states"] = nlohmann::ordered_json::array({j});
+      print_json(j);
+    } else if (common.format == "text") {
+      write_mix_text(r, std::cout);
+    }
     for (const std::string& w : r.equilibrium.warnings) {
       if (common.format != "text") std::cerr << "pkarta: warning: " << w << "\n";
     }

@@ -3,10 +3,12 @@
 #include <sstream>
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/analyses/profile.h"
 #include "pkarta/analyses/uncertainty.h"
 #include "pkarta/writers/profile_writer.h"
+#include "pkarta/writers/tables.h"
 #include "progress_bar.h"
 
 namespace pkarta::cli {
@@ -41,6 +43,7 @@ int run_profile(const Args& args) {
     FormulationOptions f;
     std::string from = "1", to = "13", step = "0.05", points, acid = "HCl", base = "NaOH";
     std::string uncertainty = "0", seed = "1";
+    TableOptions tables;
     po::options_description desc("profile options");
     desc.add_options()
         ("compound", po::value(&f.compound_file), "compound XML file (required)")
@@ -61,6 +64,7 @@ int run_profile(const Args& args) {
         ("uncertainty", po::value(&uncertainty)->default_value("0"),
          "Monte Carlo samples over the pKa sd and S0 log-sd of the compound file: 5/50/95 % bands")
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
+    add_table_options(desc, tables);
     add_common_options(desc, common);
     add_output_option(desc, common);
     const po::variables_map vm = parse(args, desc);
@@ -73,10 +77,12 @@ int run_profile(const Args& args) {
                    "the acid or the base; a salt limits where its ion product would exceed Ksp, its\n"
                    "counterion coming from the titrant and the medium. pHmax is where the free-form and\n"
                    "salt curves cross in this medium. Text output prints every 0.5 pH of the default\n"
-                   "grid; giving --step or --points prints every row (csv and json always hold all).\n";
+                   "grid; giving --step or --points prints every row (csv and json always hold all).\n\n"
+                << tables_help(profile_table_info());
       return 0;
     }
     check_format(common.format);
+    check_table_options(tables, common.format, profile_table_info(), {f.compound_file});
     if (f.compound_file.empty()) {
       throw InputError(SourceLocation{"--compound", 0, 0}, "--compound FILE is required");
     }
@@ -146,11 +152,12 @@ int run_profile(const Args& args) {
       run.progress = ProgressBar("uncertainty");
       bands = profile_bands(c, lib, ph, cond, samples, static_cast<std::uint64_t>(seed_value), run);
     }
+    emit_tables(tables, common.format, profile_tables(p, bands), {compound_file});
     if (common.format == "json") {
-      write_profile_json(p, bands, std::cout);
-    } else if (common.format == "csv") {
-      write_profile_csv(p, bands, std::cout);
-    } else {
+      std::ostringstream raw;
+      write_profile_json(p, bands, raw);
+      print_json(raw.str());
+    } else if (common.format == "text") {
       write_profile_text(p, bands, std::cout, explicit_grid || vm.count("points") ? 0.0 : 0.5);
     }
     if (common.format != "text") {

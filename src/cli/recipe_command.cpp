@@ -1,7 +1,10 @@
 // `pkarta recipe`: what to weigh and titrate to make a buffer.
 #include <iostream>
+#include <sstream>
 
 #include "cli_common.h"
+#include "cli_output.h"
+#include "pkarta/writers/tables.h"
 #include "commands.h"
 #include "pkarta/base/error.h"
 #include "pkarta/analyses/recipe.h"
@@ -36,6 +39,8 @@ int run_recipe(const Args& args) {
          "dissolved, pH brought to target with the titrant (with --compound)");
     ActivityOptions activity;
     add_activity_options(desc, activity);
+    TableOptions tables;
+    add_table_options(desc, tables);
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {
@@ -44,9 +49,11 @@ int run_recipe(const Args& args) {
                  "[--reagents ACID,BASE] [--titrant] [--compound F --dose AMOUNT [--form SALT] "
                  "[--preparation premade|adjusted]]",
                  desc);
+      std::cout << "\n" << tables_help(recipe_table_info());
       return 0;
     }
     check_format(common.format);
+    check_table_options(tables, common.format, recipe_table_info(), {compound});
     if (buffer.empty()) throw InputError(SourceLocation{"--buffer", 0, 0}, "give the buffer (--buffer ID)");
     if (ph.empty()) throw InputError(SourceLocation{"--ph", 0, 0}, "give the target pH (--ph P)");
     if (conc.empty()) throw InputError(SourceLocation{"--conc", 0, 0}, "give the buffer strength (--conc, e.g. 50mM)");
@@ -130,9 +137,14 @@ int run_recipe(const Args& args) {
         const std::string option = field == "pH" ? "--ph" : field.empty() ? "--buffer" : "--" + field;
         throw InputError(SourceLocation{option, 0, 0}, e.message());
       }
-      if (common.format == "json") write_formulation_json(f, std::cout);
-      else if (common.format == "csv") write_formulation_csv(f, std::cout);
-      else write_formulation_text(f, std::cout);
+      emit_tables(tables, common.format, recipe_tables(f.recipe, &f), {compound});
+      if (common.format == "json") {
+        std::ostringstream raw;
+        write_formulation_json(f, raw);
+        print_json(raw.str());
+      } else if (common.format == "text") {
+        write_formulation_text(f, std::cout);
+      }
       return 0;
     }
     Recipe r;
@@ -144,9 +156,14 @@ int run_recipe(const Args& args) {
       const std::string option = field == "pH" ? "--ph" : field.empty() ? "--buffer" : "--" + field;
       throw InputError(SourceLocation{option, 0, 0}, e.message());
     }
-    if (common.format == "json") write_recipe_json(r, std::cout);
-    else if (common.format == "csv") write_recipe_csv(r, std::cout);
-    else write_recipe_text(r, std::cout);
+    emit_tables(tables, common.format, recipe_tables(r, nullptr), {compound});
+    if (common.format == "json") {
+      std::ostringstream raw;
+      write_recipe_json(r, raw);
+      print_json(raw.str());
+    } else if (common.format == "text") {
+      write_recipe_text(r, std::cout);
+    }
     return 0;
   });
 }

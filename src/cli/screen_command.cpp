@@ -8,12 +8,14 @@
 #include <iostream>
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/base/error.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/base/format.h"
 #include "pkarta/analyses/screen.h"
 #include "pkarta/analyses/uncertainty.h"
+#include "pkarta/writers/tables.h"
 #include "progress_bar.h"
 
 #include <cmath>
@@ -137,6 +139,8 @@ int run_screen(const Args& args) {
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
     ActivityOptions activity;
     add_activity_options(desc, activity);
+    TableOptions tables;
+    add_table_options(desc, tables);
     add_common_options(desc, common);
     add_output_option(desc, common);
     parse(args, desc);
@@ -147,9 +151,11 @@ int run_screen(const Args& args) {
                  "[--temp C] [--dose-range 10%] [--preparation premade|adjusted] [--challenge 1mM] "
                  "[--min-capacity B] [--storage 5,40] [--max-drift PH] [--round STEP]",
                  desc);
+      std::cout << "\n" << tables_help(screen_table_info());
       return 0;
     }
     check_format(common.format);
+    check_table_options(tables, common.format, screen_table_info(), compounds);
     if (compounds.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "give a compound file (--compound F)");
     std::vector<std::string> protect = common.library_files;
     protect.insert(protect.end(), compounds.begin(), compounds.end());
@@ -273,10 +279,23 @@ int run_screen(const Args& args) {
     std::vector<ScreenReport> reports = screen_batch(lib, jobs, opt, batch);
     bar.finish();
 
+    // Every screen's JSON has "screens" (one object per compound); one compound also keeps its
+    // object's keys at the top level.
+    auto screen_json = [&reports]() {
+      std::ostringstream raw;
+      write_screen_json(reports, raw);
+      nlohmann::ordered_json j = nlohmann::ordered_json::parse(raw.str());
+      if (reports.size() == 1) {
+        nlohmann::ordered_json one = j;
+        for (const char* k : {"method", "osmolality_note", "caution"}) one.erase(k);
+        j["screens"] = nlohmann::ordered_json::array({one});
+      }
+      return j;
+    };
     if (samples == 0) {
-      if (common.format == "json") write_screen_json(reports, std::cout);
-      else if (common.format == "csv") write_screen_csv(reports, std::cout);
-      else write_screen_text(reports, std::cout);
+      emit_tables(tables, common.format, screen_tables(reports, nullptr), compounds);
+      if (common.format == "json") print_json(screen_json());
+      else if (common.format == "text") write_screen_text(reports, std::cout);
       return out.done(0);
     }
     MonteCarloRun run;
@@ -284,10 +303,9 @@ int run_screen(const Args& args) {
     const ScreenBands bands =
         screen_bands(lib, jobs.front(), opt, samples, static_cast<std::uint64_t>(seed_value), run);
     auto finite_or_null = [](double v) { return std::isfinite(v) ? nlohmann::ordered_json(v) : nlohmann::ordered_json(); };
+    emit_tables(tables, common.format, screen_tables(reports, &bands), compounds);
     if (common.format == "json") {
-      std::ostringstream raw;
-      write_screen_json(reports, raw);
-      nlohmann::ordered_json j = nlohmann::ordered_json::parse(raw.str());
+      nlohmann::ordered_json j = screen_json();
       for (auto& r : j["results"]) {
         for (const ScreenBand& b : bands.buffers) {
           if (r["buffer"] != b.buffer) continue;
@@ -298,17 +316,11 @@ int run_screen(const Args& args) {
         }
       }
       j["uncertainty"] = {{"samples", samples}, {"seed", static_cast<std::uint64_t>(seed_value)}};
-      std::cout << j.dump(2) << "\n";
-    } else if (common.format == "csv") {
-      write_screen_csv(reports, std::cout);
-      std::cout << "\r\n";
-      write_csv_row(std::cout, {"buffer", "min conc p05 (mol/L)", "min conc p50 (mol/L)", "min conc p95 (mol/L)",
-                                "ok fraction"});
-      for (const ScreenBand& b : bands.buffers) {
-        write_csv_row(std::cout, {b.buffer, sig(b.p05_mol_per_L, 6), sig(b.p50_mol_per_L, 6),
-                                  sig(b.p95_mol_per_L, 6), fixed(b.ok_fraction, 4)});
-      }
-    } else {
+      j["screens"] = nlohmann::ordered_json::array({j["screens"].front()});
+      for (const char* k : {"uncertainty"}) j["screens"][0][k] = j[k];
+      j["screens"][0]["results"] = j["results"];
+      print_json(j);
+    } else if (common.format == "text") {
       write_screen_text(reports, std::cout);
       std::cout << "\n";
       write_screen_bands_text(bands, std::cout);

@@ -1,5 +1,6 @@
 // Text, CSV and JSON of a solubility classification (analyses/classify.h).
 #include "pkarta/writers/classify_writer.h"
+#include "pkarta/writers/tables.h"
 
 #include <cstdio>
 #include <nlohmann/json.hpp>
@@ -59,33 +60,7 @@ void write_classify_text(const ClassifyResult& r, std::ostream& out) {
 }
 
 void write_classify_csv(const ClassifyResult& r, std::ostream& out) {
-  write_csv_row(out, {"point", "pH", "solubility (mol/L)", "solubility (mg/mL)", "dose number", "limiting solid"});
-  for (const ClassifyPoint& p : r.points) {
-    write_csv_row(out, {p.label, fixed(p.pH, 6), sig(p.solubility_mol_per_L, 7), sig(p.solubility_mg_per_mL, 7),
-                        sig(p.dose_number, 6), p.limiting_solid});
-  }
-  out << "\r\n";
-  write_csv_row(out, {"quantity", "value", "unit"});
-  write_csv_row(out, {"verdict", r.verdict, ""});
-  write_csv_row(out, {"dose", num(r.dose_mg), "mg of " + r.form});
-  write_csv_row(out, {"volume", num(r.volume_mL), "mL"});
-  write_csv_row(out, {"temperature", fixed(r.temperature_C, 2), "C"});
-  write_csv_row(out, {"min_solubility", sig(r.min_solubility_mg_per_mL, 7), "mg/mL of " + r.form});
-  write_csv_row(out, {"min_at_pH", fixed(r.min_at_pH, 6), ""});
-  write_csv_row(out, {"dose_solubility_volume", sig(r.dose_solubility_volume_mL, 6), "mL"});
-  write_csv_row(out, {"guideline", r.guideline, ""});
-  write_csv_row(out, {"convention", r.convention, ""});
-  out << "\r\n";
-  write_csv_row(out, {"medium", "nominal pH", "pH after dose", "dissolved fraction", "solid remaining"});
-  for (const MediumCheck& c : r.media) {
-    write_csv_row(out, {c.medium, c.nominal_pH, c.usable ? fixed(c.pH_after, 4) : "n/a",
-                        c.usable ? sig(c.dissolved_fraction, 6) : "n/a", c.usable ? c.solid : "n/a"});
-  }
-  out << "\r\n";
-  write_csv_row(out, {"kind", "text"});
-  for (const std::string& s : r.notes) write_csv_row(out, {"note", s});
-  for (const std::string& s : r.warnings) write_csv_row(out, {"warning", s});
-  write_csv_row(out, {"caution", caution_text()});
+  write_table_csv(classify_tables(r).front(), out);
 }
 
 void write_classify_json(const ClassifyResult& r, std::ostream& out) {

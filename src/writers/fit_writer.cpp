@@ -1,5 +1,6 @@
 // Text, CSV and JSON of a solubility fit (analyses/fit.h).
 #include "pkarta/writers/fit_writer.h"
+#include "pkarta/writers/tables.h"
 
 #include <nlohmann/json.hpp>
 
@@ -69,17 +70,7 @@ void write_fit_text(const FitResult& r, std::ostream& out) {
 }
 
 void write_fit_csv(const FitResult& r, std::ostream& out) {
-  write_csv_row(out, {"parameter", "start", "estimate", "std_error"});
-  for (const FitParameter& p : r.parameters) {
-    write_csv_row(out, {p.name, sig(p.start, 8), sig(p.estimate, 8), std::isfinite(p.std_error) ? sig(p.std_error, 4) : ""});
-  }
-  out << "\r\n";
-  write_csv_row(out, {"pH", "temperature_C", "observed_log10_mol_per_L", "fitted_log10_mol_per_L",
-                      "residual_log10", "limiting_solid"});
-  for (const FitResidual& x : r.residuals) {
-    write_csv_row(out, {sig(x.pH, 6), sig(x.temperature_C, 6), sig(x.observed_log10, 8), sig(x.fitted_log10, 8),
-                        sig(x.observed_log10 - x.fitted_log10, 6), x.limiting_solid});
-  }
+  write_table_csv(fit_tables(r).front(), out);
 }
 
 void write_fit_json(const FitResult& r, std::ostream& out) {
@@ -102,6 +93,15 @@ void write_fit_json(const FitResult& r, std::ostream& out) {
     corr.push_back(row);
   }
   j["correlation"] = corr;
+  J by_name = J::object();  // the same matrix keyed by parameter names
+  for (Eigen::Index a = 0; a < r.correlation.rows() && a < static_cast<Eigen::Index>(r.parameters.size()); ++a) {
+    J row = J::object();
+    for (Eigen::Index b = 0; b < r.correlation.cols() && b < static_cast<Eigen::Index>(r.parameters.size()); ++b) {
+      row[r.parameters[static_cast<std::size_t>(b)].name] = num(r.correlation(a, b));
+    }
+    by_name[r.parameters[static_cast<std::size_t>(a)].name] = row;
+  }
+  j["correlation_by_parameter"] = by_name;
   j["rms_log10"] = r.rms_log10;  // the same as rms_residual_log10_molar (older name)
   j["rms_residual_log10_molar"] = r.rms_log10;
   j["residual_sd_log10"] = num(r.residual_sd);

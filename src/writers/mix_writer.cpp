@@ -1,4 +1,5 @@
 #include "pkarta/writers/mix_writer.h"
+#include "pkarta/writers/tables.h"
 
 #include <nlohmann/json.hpp>
 
@@ -48,25 +49,7 @@ void write_mix_text(const MixResult& r, std::ostream& out) {
 }
 
 void write_mix_csv(const MixResult& r, std::ostream& out) {
-  const Equilibrium& e = r.equilibrium;
-  write_csv_row(out, {"quantity", "value", "unit"});
-  write_csv_row(out, {"pH", fixed(e.pH, 4), ""});
-  write_csv_row(out, {"temperature", fixed(e.temperature_C, 2), "C"});
-  write_csv_row(out, {"ionic_strength", sig(e.ionic_strength_mol_per_L, 6), "mol/L"});
-  write_csv_row(out, {"osmolarity", fixed(e.osmolarity_mOsm_per_L, 2), "mOsm/L"});
-  write_csv_row(out, {"capacity", sig(r.capacity_mol_per_L_per_pH, 6), "mol/L per pH"});
-  if (e.drug) {
-    write_csv_row(out, {"drug_dose", sig(e.drug->dose_mol_per_L, 6), "mol/L"});
-    write_csv_row(out, {"drug_dissolved", sig(e.drug->dissolved_mol_per_L, 6), "mol/L"});
-    write_csv_row(out, {"drug_solid", e.drug->solid, ""});
-    write_csv_row(out, {"drug_saturation_ratio", sig(e.drug->saturation_ratio, 6), ""});
-  }
-  out << "\r\n";
-  write_csv_row(out, {"species", "system", "charge", "conc (mol/L)", "activity coefficient"});
-  for (const Species& s : e.species) {
-    write_csv_row(out, {s.name, s.system, std::to_string(s.charge), sig(s.conc_mol_per_L, 6),
-                        fixed(s.activity_coefficient, 6)});
-  }
+  write_table_csv(mix_tables({r}).front(), out);
 }
 
 void write_mix_json(const MixResult& r, std::ostream& out) {

@@ -1,6 +1,7 @@
 // Text, CSV and JSON of a pH-solubility profile (analyses/profile.h), alone or with its
 // Monte Carlo bands (analyses/uncertainty.h).
 #include "pkarta/writers/profile_writer.h"
+#include "pkarta/writers/tables.h"
 
 #include <cmath>
 #include <cstdio>
@@ -127,46 +128,7 @@ void write_profile_text(const Profile& p, std::ostream& out, double row_interval
   out << "\n" << caution_text() << "\n";
 }
 
-void write_profile_csv(const Profile& p, std::ostream& out) {
-  std::vector<std::string> head = {"pH", "solubility (mol/L)", "solubility (mg/mL)",
-                                   "ideal HH solubility (mol/L)", "limiting solid", "ionic strength (mol/L)",
-                                   "titrant", "titrant (mol/L)", "capped"};
-  for (const std::string& s : p.species) head.push_back("fraction " + s);
-  write_csv_row(out, head);
-  for (const ProfilePoint& pt : p.points) {
-    std::vector<std::string> row = {fixed(pt.pH, 4),
-                                    sig(pt.solubility_mol_per_L, 7),
-                                    sig(pt.solubility_mg_per_mL, 7),
-                                    sig(pt.ideal_solubility_mol_per_L, 7),
-                                    pt.limiting_solid,
-                                    sig(pt.ionic_strength_mol_per_L, 6),
-                                    pt.titrant_mol_per_L > 0 ? p.base_titrant
-                                                             : (pt.titrant_mol_per_L < 0 ? p.acid_titrant : ""),
-                                    sig(std::fabs(pt.titrant_mol_per_L), 6),
-                                    pt.capped ? "yes" : "no"};
-    for (double f : pt.fractions) row.push_back(sig(f, 6));
-    write_csv_row(out, row);
-  }
-  out << "\r\n";
-  write_csv_row(out, {"salt", "counterion", "pHmax", "solubility at pHmax (mol/L)", "on profile"});
-  for (const PhMax& m : p.ph_max) {
-    write_csv_row(out, {m.salt, m.counterion, fixed(m.pH, 6), sig(m.solubility_mol_per_L, 7),
-                        m.on_profile ? "yes" : "no"});
-  }
-  out << "\r\n";
-  write_csv_row(out, {"salt", "solubility in water", "solubility in water (mol/L)", "temperature (C)",
-                      "derived Ksp ((mol/L)^2)", "Ksp at run temperature ((mol/L)^2)"});
-  for (const DerivedKsp& d : p.derived_ksp) {
-    write_csv_row(out, {d.salt, d.solubility_in_water, sig(d.solubility_in_water_mol_per_L, 7),
-                        fixed(d.reference_temperature_C, 2), sig(d.ksp, 7), sig(d.ksp_at_run_temperature, 7)});
-  }
-  out << "\r\n";
-  write_csv_row(out, {"kind", "text"});
-  write_csv_row(out, {"temperature (C)", fixed(p.temperature_C, 2)});
-  for (const std::string& s : p.notes) write_csv_row(out, {"note", s});
-  for (const std::string& s : p.warnings) write_csv_row(out, {"warning", s});
-  write_csv_row(out, {"caution", caution_text()});
-}
+void write_profile_csv(const Profile& p, std::ostream& out) { write_table_csv(profile_tables(p, {}).front(), out); }
 
 namespace {
 
@@ -185,6 +147,8 @@ nlohmann::ordered_json profile_json(const Profile& p) {
   j["species"] = p.species;
   nlohmann::ordered_json pts = nlohmann::ordered_json::array();
   for (const ProfilePoint& pt : p.points) {
+    nlohmann::ordered_json by_species = nlohmann::ordered_json::object();
+    for (std::size_t i = 0; i < p.species.size() && i < pt.fractions.size(); ++i) by_species[p.species[i]] = pt.fractions[i];
     pts.push_back({{"pH", pt.pH},
                    {"solubility_mol_per_L", pt.solubility_mol_per_L},
                    {"solubility_mg_per_mL", pt.solubility_mg_per_mL},
@@ -199,7 +163,8 @@ nlohmann::ordered_json profile_json(const Profile& p) {
                    {"ionic_strength_mol_per_L", pt.ionic_strength_mol_per_L},
                    {"fractions", pt.fractions},
                    {"titrant_mol_per_L", pt.titrant_mol_per_L},
-                   {"capped", pt.capped}});
+                   {"capped", pt.capped},
+                   {"fractions_by_species", by_species}});
   }
   j["points"] = pts;
   nlohmann::ordered_json mx = nlohmann::ordered_json::array();
@@ -249,11 +214,7 @@ void write_profile_text(const Profile& p, const ProfileBands& bands, std::ostrea
 }
 
 void write_profile_csv(const Profile& p, const ProfileBands& bands, std::ostream& out) {
-  write_profile_csv(p, out);
-  if (bands.samples > 0) {
-    out << "\r\n";
-    write_profile_bands_csv(bands, out);
-  }
+  write_table_csv(profile_tables(p, bands).front(), out);
 }
 
 void write_profile_json(const Profile& p, const ProfileBands& bands, std::ostream& out) {

@@ -164,7 +164,7 @@ TEST(ClassifyCli, JsonHasTheDesignKeysAndTheVerdict) {
   EXPECT_NE(r.out.find("ICH M9"), std::string::npos);
   r = run("classify --compound compounds/demo-base.xml --dose-mg 10 --form hydrochloride --format csv");
   ASSERT_EQ(r.code, 0) << r.err;
-  EXPECT_EQ(r.out.rfind("point,pH,solubility (mol/L)", 0), 0u);
+  EXPECT_EQ(r.out.rfind("point,pH,solubility_mol_per_L,solubility_mg_per_mL,dose_number", 0), 0u);
 }
 
 TEST(ClassifyCli, BadInputExitsTwoWithAClearMessage) {

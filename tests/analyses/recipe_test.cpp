@@ -341,8 +341,10 @@ TEST(RecipeCli, TextCarriesProcedureUnitsAndCaution) {
   }
   const RunResult csv = run("recipe --buffer acetate --ph 4.5 --conc 50mM --format csv");
   ASSERT_EQ(csv.code, 0) << csv.err;
-  EXPECT_NE(csv.out.find("mass (g)"), std::string::npos);
-  EXPECT_NE(csv.out.find("caution,"), std::string::npos);
+  EXPECT_NE(csv.out.find("mass_g"), std::string::npos);
+  const RunResult notes = run("recipe --buffer acetate --ph 4.5 --conc 50mM --format csv --table notes");
+  ASSERT_EQ(notes.code, 0) << notes.err;
+  EXPECT_NE(notes.out.find("caution,"), std::string::npos);
 }
 
 TEST(RecipeCli, BadInputExitsTwoWithAClearMessage) {

@@ -458,7 +458,10 @@ TEST(ScreenCli, TextAndCsvCarryUnitsAndTheCaution) {
   EXPECT_NE(r.out.find("must be"), std::string::npos);  // osmolality to be measured
   r = run("screen --compound compounds/demo-acid.xml --dose 5mg/mL --form sodium --target-ph 7.4 --format csv");
   ASSERT_EQ(r.code, 0) << r.err;
-  EXPECT_NE(r.out.find("min conc (mol/L)"), std::string::npos);
+  EXPECT_NE(r.out.find("min_conc_mol_per_L"), std::string::npos);
+  r = run("screen --compound compounds/demo-acid.xml --dose 5mg/mL --form sodium --target-ph 7.4 --format csv "
+          "--table notes");
+  ASSERT_EQ(r.code, 0) << r.err;
   EXPECT_NE(r.out.find("caution,"), std::string::npos);
 }
 

@@ -75,12 +75,18 @@ TEST(Cli, MixComparesSeveralTemperatures) {
   // Ph. Eur. 5.0 Table 2.2.3.-2: 6.87 at 25 °C). The text table lists the three states.
   const RunResult r = run("mix --add KH2PO4=0.025mol/kg --add Na2HPO4=0.025mol/kg --temp 5,25,37 --format csv");
   ASSERT_EQ(r.code, 0) << r.err;
-  EXPECT_NE(r.out.find("5.0,6.96"), std::string::npos) << r.out;
-  EXPECT_NE(r.out.find("25.0,6.87"), std::string::npos) << r.out;
-  EXPECT_NE(r.out.find("37.0,6.85"), std::string::npos) << r.out;
+  // One row per temperature: temperature_C, pH, ... at full precision.
+  EXPECT_EQ(r.out.rfind("temperature_C,pH,", 0), 0u) << r.out;
+  EXPECT_NE(r.out.find("\r\n5,6.96"), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("\r\n25,6.87"), std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("\r\n37,6.85"), std::string::npos) << r.out;
   const RunResult j = run("mix --add KH2PO4=25mM --temp 5,37 --format json");
   ASSERT_EQ(j.code, 0) << j.err;
   EXPECT_NE(j.out.find("\"states\""), std::string::npos);
+  // One temperature: the same list of states (one), beside the object's own keys.
+  const RunResult one = run("mix --add KH2PO4=25mM --temp 37 --format json");
+  ASSERT_EQ(one.code, 0) << one.err;
+  EXPECT_NE(one.out.find("\"states\": ["), std::string::npos) << one.out;
 }
 
 TEST(Cli, UncertaintyBandsAreReproducibleAndOrdered) {

@@ -2,11 +2,13 @@
 // `pkarta profile --uncertainty N` (the output contract; the values are made up for the test).
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <string>
 
 #include "pkarta/writers/profile_writer.h"
+#include "pkarta/writers/tables.h"
 
 namespace {
 
@@ -73,10 +75,17 @@ TEST(ProfileWriter, JsonCarriesThePercentilesOfEachPoint) {
   EXPECT_EQ(j["uncertainty"]["seed"].get<std::uint64_t>(), 7u);
 }
 
-TEST(ProfileWriter, CsvAndTextAppendTheBandsTable) {
+TEST(ProfileWriter, BandsAreATableOfTheirOwnAndTextAppendsThem) {
   std::ostringstream csv, text;
+  const std::vector<DataTable> tables = profile_tables(two_points(), two_bands());
+  ASSERT_EQ(tables.size(), profile_table_info().size());
+  const DataTable& bands = tables[3];
+  EXPECT_EQ(bands.name, "bands");
+  ASSERT_EQ(bands.rows.size(), 2u);
+  // 10^-2.5 mol/L at full precision: reads back to the same double.
+  EXPECT_EQ(std::stod(bands.rows[0][2]), std::pow(10.0, -2.5));
   write_profile_csv(two_points(), two_bands(), csv);
-  EXPECT_NE(csv.str().find("\r\n\r\npH,solubility_mol_per_L,solubility_p05_mol_per_L,"), std::string::npos);
+  EXPECT_EQ(csv.str().find("\r\n\r\n"), std::string::npos) << "one table, no blank line";
   write_profile_text(two_points(), two_bands(), text, 0.0);
   EXPECT_NE(text.str().find("Monte Carlo bands of the solubility (200 samples, seed 7;"), std::string::npos);
 }

@@ -1,0 +1,101 @@
+"""The command line's outputs as tools read them.
+
+Run by CTest with PKARTA_BINARY and PKARTA_SOURCE_DIR set. Each command's `--format csv`
+(and every table of it, through --table) must parse with Python's csv module as one
+rectangular table; `COMMAND --version` exits 0.
+"""
+import csv
+import io
+import os
+import re
+import subprocess
+import unittest
+
+BINARY = os.environ["PKARTA_BINARY"]
+SOURCE = os.environ["PKARTA_SOURCE_DIR"]
+BASE = "compounds/demo-base.xml"
+
+# One run of each command that has tables (arguments without --format).
+CASES = {
+    "mix": ["mix", "--compound", BASE, "--dose", "2mg/mL", "--form", "hydrochloride",
+            "--add", "KH2PO4=25mM", "--add", "Na2HPO4=25mM", "--temp", "5"],
+    "mix-temperatures": ["mix", "--medium", "saline-0.9", "--add", "tris=20mM", "--add", "HCl=10mM",
+                         "--temp", "5,25,37"],
+    "profile": ["profile", "--compound", BASE, "--points", "1,2,4,6,7,9", "--uncertainty", "20"],
+    "classify": ["classify", "--compound", "compounds/demo-ampholyte.xml", "--dose-mg", "50"],
+    "screen": ["screen", "--compound", BASE, "--dose", "0.5mg/mL", "--form", "hydrochloride",
+               "--target-ph", "5", "--dose-range", "10%", "--buffers", "citrate,acetate,phosphate"],
+    "screen-batch": ["screen", "--compound", BASE, "--compound", "compounds/demo-acid.xml",
+                     "--dose", "1mg/mL", "--target-ph", "6.5", "--buffers", "phosphate,citrate"],
+    "recipe": ["recipe", "--buffer", "phosphate", "--ph", "7.0", "--conc", "50mM", "--volume", "500mL"],
+    "recipe-formulation": ["recipe", "--compound", BASE, "--dose", "0.5mg/mL", "--form", "hydrochloride",
+                           "--buffer", "citrate", "--ph", "5", "--conc", "20mM", "--isotonic"],
+    "fit": ["fit", "--compound", BASE],
+    "dilute": ["dilute", "--compound", BASE, "--dose", "2mg/mL", "--form", "hydrochloride",
+               "--into", "saline-0.9", "--ratios", "1,2,5,10"],
+}
+
+COMMANDS = ["mix", "profile", "classify", "screen", "recipe", "fit", "dilute", "report", "check",
+            "library", "demo"]
+
+
+def run(args, check=True):
+    return subprocess.run([BINARY, *args], cwd=SOURCE, check=check, capture_output=True, text=True)
+
+
+def table_names(command):
+    """The names listed under "Tables" in the command's --help."""
+    out = run([command, "--help"]).stdout
+    part = out.split("Tables (", 1)[1].split("\n", 1)[1]
+    names = []
+    for line in part.splitlines():
+        m = re.match(r"^  ([a-z_]+)\s", line)
+        if not m:
+            break
+        names.append(m.group(1))
+    return names
+
+
+def rectangular(test, text, where):
+    rows = list(csv.reader(io.StringIO(text, newline="")))
+    test.assertGreaterEqual(len(rows), 1, where)
+    width = len(rows[0])
+    test.assertGreater(width, 1, where)
+    for i, row in enumerate(rows):
+        test.assertEqual(len(row), width, f"{where}: row {i} has {len(row)} cells, header {width}")
+    test.assertEqual(len(set(rows[0])), width, f"{where}: repeated column names {rows[0]}")
+    return rows
+
+
+class CsvTest(unittest.TestCase):
+    def test_every_table_of_every_command_is_rectangular(self):
+        for name, args in CASES.items():
+            tables = table_names(args[0])
+            self.assertGreaterEqual(len(tables), 2, name)
+            self.assertEqual(tables[-1], "notes", name)
+            main = run([*args, "--format", "csv"]).stdout
+            self.assertEqual(main, run([*args, "--format", "csv", "--table", tables[0]]).stdout, name)
+            for t in tables:
+                rows = rectangular(self, run([*args, "--format", "csv", "--table", t]).stdout, f"{name} {t}")
+                for header in rows[0]:
+                    # One convention: lower_snake_case with the unit last (mol_per_L, mg_per_mL, C).
+                    self.assertNotRegex(header, r"[ ()/]", f"{name} {t}: column {header!r}")
+
+    def test_numeric_columns_hold_numbers_only(self):
+        rows = rectangular(self, run([*CASES["profile"], "--format", "csv"]).stdout, "profile")
+        head = rows[0]
+        numeric = [i for i, h in enumerate(head) if h.endswith(("_mol_per_L", "_mg_per_mL")) or h == "pH"]
+        for row in rows[1:]:
+            for i in numeric:
+                if row[i]:
+                    float(row[i])  # raises on ">10" and the like
+
+    def test_version_of_every_command(self):
+        for c in COMMANDS:
+            r = run([c, "--version"], check=False)
+            self.assertEqual(r.returncode, 0, c)
+            self.assertRegex(r.stdout, r"^pkarta \d+\.\d+\.\d+\n$", c)
+
+
+if __name__ == "__main__":
+    unittest.main()
