@@ -8,7 +8,8 @@ PACKAGES := cmake g++ make libboost-program-options-dev libpugixml-dev libeigen3
             nlohmann-json3-dev
 # Only for the tests and the benchmarks.
 TEST_PACKAGES := libgtest-dev libgmock-dev libbenchmark-dev libxml2-utils zlib1g-dev \
-                 pkg-config help2man chromium pybind11-dev python3-dev python3-pandas
+                 pkg-config help2man chromium pybind11-dev python3-dev python3-pandas \
+                 python3-jsonschema
 # Where `make demo` writes its reports (the committed example in reports/ is refreshed by
 # `make example`, and checked by the report test).
 DEMO_OUT ?= $(BUILD)/demo-reports

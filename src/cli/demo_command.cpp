@@ -4,6 +4,7 @@
 #include <system_error>
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/base/format.h"
 #include "report_cli.h"
@@ -69,9 +70,14 @@ int run_demo(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout, "pkarta demo [--compounds DIR] [--out-dir DIR]", desc);
+      std::cout << "\n" << tables_help({{"files", "one row per file written (--format csv; json lists them)"}});
       return 0;
     }
-    check_text_format_only("demo", common.format);
+    check_format(common.format);
+    // Text goes to standard output; with csv or json the progress lines go to stderr.
+    std::ostream& say = common.format == "text" ? std::cout : std::cerr;
+    nlohmann::ordered_json reports = nlohmann::ordered_json::array();
+    std::vector<std::pair<std::string, std::vector<std::string>>> runs;
     if (!vm_has_dir(dir) && !shipped_compounds_dir().empty()) dir = shipped_compounds_dir();
     const Library lib = load_libraries(common);
     std::error_code ec;
@@ -80,7 +86,7 @@ int run_demo(const Args& args) {
       error("cannot create folder " + out_dir + ": " + ec.message());
       return static_cast<int>(kExitRefused);
     }
-    std::cout << "pkarta demo: preformulation reports of three invented compounds\n\n";
+    say << "pkarta demo: preformulation reports of three invented compounds\n\n";
     for (const DemoCase& dc : kDemoCases) {
       ReportOptions r;
       r.compound_file = dir + "/" + dc.file + ".xml";
@@ -98,10 +104,14 @@ int run_demo(const Args& args) {
         error(e.what());
         return static_cast<int>(kExitRefused);
       }
-      std::cout << "  " << r.output << "  (tables in " << out_dir << "/" << dc.file << "/, " << written.size() - 1
+      reports.push_back(report_files_json(r.compound_file, written));
+      runs.emplace_back(r.compound_file, written);
+      say << "  " << r.output << "  (tables in " << out_dir << "/" << dc.file << "/, " << written.size() - 1
                 << " CSV files)\n    " << summary_line(data) << "\n";
     }
-    std::cout << "\nOpen the HTML files in any browser; they need no network. " << caution_text() << "\n";
+    say << "\nOpen the HTML files in any browser; they need no network. " << caution_text() << "\n";
+    if (common.format == "json") print_json(nlohmann::ordered_json{{"reports", reports}});
+    else if (common.format == "csv") write_table_csv(report_files_table(runs), std::cout);
     return 0;
   });
 }

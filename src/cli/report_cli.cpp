@@ -116,4 +116,21 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
   return written;
 }
 
+nlohmann::ordered_json report_files_json(const std::string& compound_file, const std::vector<std::string>& written) {
+  nlohmann::ordered_json tables = nlohmann::ordered_json::array();
+  for (std::size_t i = 0; i + 1 < written.size(); ++i) tables.push_back(written[i]);
+  return {{"compound_file", compound_file}, {"html", written.empty() ? "" : written.back()}, {"tables", tables}};
+}
+
+DataTable report_files_table(const std::vector<std::pair<std::string, std::vector<std::string>>>& runs) {
+  DataTable t{"files", {"compound_file", "html", "file", "kind"}, {}};
+  for (const auto& [compound, written] : runs) {
+    const std::string html = written.empty() ? "" : written.back();
+    for (std::size_t i = 0; i < written.size(); ++i) {
+      t.add({compound, html, written[i], i + 1 == written.size() ? "html" : "csv"});
+    }
+  }
+  return t;
+}
+
 }  // namespace pkarta::cli

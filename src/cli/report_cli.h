@@ -5,7 +5,10 @@
 #include <string>
 #include <vector>
 
+#include <nlohmann/json.hpp>
+
 #include "cli_common.h"
+#include "pkarta/base/table.h"
 #include "pkarta/report/report.h"
 
 namespace pkarta::cli {
@@ -36,6 +39,11 @@ std::string report_arguments(const ReportOptions& r);
 /// `data_out` (may be null) receives the analysed report.
 std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions& common, const Library& library,
                                      const std::string& command_line, ReportData* data_out = nullptr);
+
+/// The files a report run wrote, for --format json (one object per report) and csv (one row per
+/// file): `written` as make_report returns it (CSV tables first, the HTML last).
+nlohmann::ordered_json report_files_json(const std::string& compound_file, const std::vector<std::string>& written);
+DataTable report_files_table(const std::vector<std::pair<std::string, std::vector<std::string>>>& runs);
 
 }  // namespace pkarta::cli
 

@@ -3,6 +3,7 @@
 #include <system_error>
 
 #include "cli_common.h"
+#include "cli_output.h"
 #include "commands.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/report/report.h"
@@ -23,9 +24,10 @@ int run_report(const Args& args) {
                  "pkarta report --compound F [--dose AMOUNT [--form free|SALT]] [--target-ph P] [--route R] "
                  "[--temp C] -o reports/NAME.html",
                  desc);
+      std::cout << "\n" << tables_help({{"files", "one row per file written (--format csv; json lists them)"}});
       return 0;
     }
-    check_text_format_only("report", common.format);
+    check_format(common.format);
     if (r.compound_file.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "the report needs --compound FILE");
     if (r.output.empty()) throw InputError(SourceLocation{"--output", 0, 0}, "give the HTML file to write with -o FILE");
     const Library lib = load_libraries(common);
@@ -36,7 +38,13 @@ int run_report(const Args& args) {
       error(e.what());
       return static_cast<int>(kExitRefused);
     }
-    std::cout << "wrote " << written.back() << " and " << written.size() - 1 << " CSV tables\n";
+    if (common.format == "json") {
+      print_json(nlohmann::ordered_json{{"reports", nlohmann::ordered_json::array({report_files_json(r.compound_file, written)})}});
+    } else if (common.format == "csv") {
+      write_table_csv(report_files_table({{r.compound_file, written}}), std::cout);
+    } else {
+      std::cout << "wrote " << written.back() << " and " << written.size() - 1 << " CSV tables\n";
+    }
     return 0;
   });
 }

@@ -33,7 +33,11 @@ CASES = {
     "fit": ["fit", "--compound", BASE],
     "dilute": ["dilute", "--compound", BASE, "--dose", "2mg/mL", "--form", "hydrochloride",
                "--into", "saline-0.9", "--ratios", "1,2,5,10"],
+    "library": ["library", "list"],
+    "check": ["check", BASE, "compounds/library.xml"],
 }
+# Tables that belong to another form of the command (library show ID: properties).
+OTHER_FORM = {("library", "properties"): ["library", "show", "phosphate"]}
 
 COMMANDS = ["mix", "profile", "classify", "screen", "recipe", "fit", "dilute", "report", "check",
             "library", "demo"]
@@ -71,12 +75,14 @@ class CsvTest(unittest.TestCase):
     def test_every_table_of_every_command_is_rectangular(self):
         for name, args in CASES.items():
             tables = table_names(args[0])
-            self.assertGreaterEqual(len(tables), 2, name)
-            self.assertEqual(tables[-1], "notes", name)
+            self.assertGreaterEqual(len(tables), 1, name)
+            if args[0] not in ("library", "check"):
+                self.assertEqual(tables[-1], "notes", name)
             main = run([*args, "--format", "csv"]).stdout
             self.assertEqual(main, run([*args, "--format", "csv", "--table", tables[0]]).stdout, name)
             for t in tables:
-                rows = rectangular(self, run([*args, "--format", "csv", "--table", t]).stdout, f"{name} {t}")
+                form = OTHER_FORM.get((args[0], t), args)
+                rows = rectangular(self, run([*form, "--format", "csv", "--table", t]).stdout, f"{name} {t}")
                 for header in rows[0]:
                     # One convention: lower_snake_case with the unit last (mol_per_L, mg_per_mL, C).
                     self.assertNotRegex(header, r"[ ()/]", f"{name} {t}: column {header!r}")
