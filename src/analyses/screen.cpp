@@ -952,6 +952,10 @@ void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& o
 }
 
 void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  write_screen_text(reports, out, false);
+}
+
+void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out, bool wide) {
   bool first = true;
   for (const ScreenReport& rep : reports) {
     if (!first) out << "\n";
@@ -968,23 +972,28 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     }
     if (rep.max_drift_pH) out << "; max drift in storage " << fixed(*rep.max_drift_pH, 2) << " pH";
     out << "\n\n";
-    const bool challenge = rep.challenge_mol_per_L > 0;
-    std::vector<std::string> head = {"rank", "buffer", "status", "min conc (mM)", "recommended (mM)", "set by",
-                                     "pH after drug"};
+    const bool challenge = rep.challenge_mol_per_L > 0 && wide;
+    // The default table fits 100 columns; --wide adds the other columns of the screen.
+    std::vector<std::string> head = {"rank", "buffer", "status", "min conc (mM)",
+                                     wide ? "recommended (mM)" : "rec. (mM)", "set by",
+                                     wide ? "pH after drug" : "pH w/ drug"};
     if (challenge) {
       head.push_back("pH +acid");
       head.push_back("pH +base");
     }
-    for (const char* h : {"capacity (mM/pH)", "I (mM)", "osmolality (mOsm/kg)"}) head.push_back(h);
-    for (const std::string& h : std::vector<std::string>{
-                                     "pH " + fixed(rep.low_temperature_C, 0) + " °C",
-                                     "pH " + fixed(rep.high_temperature_C, 0) + " °C", "drug solid"}) {
-      head.push_back(h);
+    if (wide) {
+      for (const char* h : {"capacity (mM/pH)", "I (mM)", "osmolality (mOsm/kg)"}) head.push_back(h);
+      for (const std::string& h : std::vector<std::string>{
+                                       "pH " + fixed(rep.low_temperature_C, 0) + " °C",
+                                       "pH " + fixed(rep.high_temperature_C, 0) + " °C", "drug solid"}) {
+        head.push_back(h);
+      }
     }
-    const bool dose_range = rep.dose_range_fraction > 0;
+    const bool dose_range = rep.dose_range_fraction > 0 && wide;
     if (dose_range) head.push_back("worst pH, dose +/-" + fixed(100 * rep.dose_range_fraction, 0) + "%");
-    head.push_back("routes");
+    if (wide) head.push_back("routes");
     TextTable t(head);
+    if (wide) t.set_max_width(0);
     int rank = 0;
     for (const ScreenResult& r : rep.results) {
       std::vector<std::string> row = {
@@ -997,16 +1006,23 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
         row.push_back(fixed(r.pH_after_acid_challenge, 3));
         row.push_back(fixed(r.pH_after_base_challenge, 3));
       }
-      for (const std::string& v : {sig(1e3 * r.capacity_mol_per_L_per_pH, 3), sig(1e3 * r.ionic_strength_mol_per_L, 3),
-                                   fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 0),
-                                   fixed(r.pH_at_5C, 3), fixed(r.pH_at_40C, 3), r.drug_solid}) {
-        row.push_back(v);
+      if (wide) {
+        for (const std::string& v : {sig(1e3 * r.capacity_mol_per_L_per_pH, 3), sig(1e3 * r.ionic_strength_mol_per_L, 3),
+                                     fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 0),
+                                     fixed(r.pH_at_5C, 3), fixed(r.pH_at_40C, 3), r.drug_solid}) {
+          row.push_back(v);
+        }
       }
       if (dose_range) row.push_back(r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 3) : "n/a");
-      row.push_back(routes_text(r.routes));
+      if (wide) row.push_back(routes_text(r.routes));
       t.add_row(row);
     }
     t.write(out);
+    if (!wide) {
+      out << "  (--wide adds the pH after the acid and base challenges, capacity, ionic strength, osmolality,\n"
+             "  the pH at the storage temperatures, the drug solid"
+          << (rep.dose_range_fraction > 0 ? ", the worst pH over the dose range" : "") << " and the routes)\n";
+    }
     write_screen_criteria(rep, out);
     write_screen_near_misses(rep, out);
     std::vector<std::string> notes;

@@ -120,23 +120,104 @@ void TextTable::write(std::ostream& out, const std::string& indent) const {
       if (!cell.empty() && !numeric_looking(cell)) numeric[i] = false;
     }
   }
-  auto line = [&](const std::vector<std::string>& r, bool head) {
+  // Column groups that fit max_width_: the first column (the row's key) starts every group.
+  std::vector<std::vector<std::size_t>> groups(1);
+  std::size_t used = indent.size();
+  for (std::size_t i = 0; i < width.size(); ++i) {
+    const std::size_t add = width[i] + (groups.back().empty() ? 0 : 2);
+    if (max_width_ > 0 && i > 1 && groups.back().size() > 1 && used + add > max_width_) {
+      groups.push_back({0});
+      used = indent.size() + width[0];
+    }
+    groups.back().push_back(i);
+    used += groups.back().size() == 1 ? width[i] : add;
+  }
+  auto line = [&](const std::vector<std::size_t>& cols, const std::vector<std::string>& r, bool head) {
     out << indent;
-    for (std::size_t i = 0; i < width.size(); ++i) {
+    for (std::size_t k = 0; k < cols.size(); ++k) {
+      const std::size_t i = cols[k];
       const std::string cell = i < r.size() ? r[i] : "";
       const std::size_t pad = width[i] - display_width(cell);
       const bool right = !head && numeric[i] && i > 0;
-      if (i) out << "  ";
+      if (k) out << "  ";
       if (right) out << std::string(pad, ' ') << cell;
-      else out << cell << (i + 1 < width.size() ? std::string(pad, ' ') : "");
+      else out << cell << (k + 1 < cols.size() ? std::string(pad, ' ') : "");
     }
     out << '\n';
   };
-  line(header_, true);
-  out << indent;
-  for (std::size_t i = 0; i < width.size(); ++i) out << (i ? "  " : "") << std::string(width[i], '-');
-  out << '\n';
-  for (const auto& r : rows_) line(r, false);
+  for (std::size_t g = 0; g < groups.size(); ++g) {
+    if (g) out << '\n';
+    const std::vector<std::size_t>& cols = groups[g];
+    line(cols, header_, true);
+    out << indent;
+    for (std::size_t k = 0; k < cols.size(); ++k) out << (k ? "  " : "") << std::string(width[cols[k]], '-');
+    out << '\n';
+    for (const auto& r : rows_) line(cols, r, false);
+  }
+}
+
+namespace {
+std::size_t leading_spaces(const std::string& line) {
+  const std::size_t n = line.find_first_not_of(' ');
+  return n == std::string::npos ? line.size() : n;
+}
+// Width of a list marker at `at` ("- ", "1. ", "12. "), or 0.
+std::size_t marker_width(const std::string& line, std::size_t at) {
+  if (line.compare(at, 2, "- ") == 0) return 2;
+  std::size_t i = at;
+  while (i < line.size() && std::isdigit(static_cast<unsigned char>(line[i]))) ++i;
+  if (i > at && line.compare(i, 2, ". ") == 0) return i - at + 2;
+  return 0;
+}
+}  // namespace
+
+std::string fit_text_width(const std::string& text, std::size_t max_width) {
+  std::string out;
+  std::size_t start = 0;
+  while (start < text.size()) {
+    std::size_t end = text.find('\n', start);
+    const bool newline = end != std::string::npos;
+    if (!newline) end = text.size();
+    const std::string line = text.substr(start, end - start);
+    start = end + 1;
+    const std::size_t lead = leading_spaces(line);
+    // A row of a table (cells apart by two spaces) is laid out by TextTable, not wrapped.
+    const bool table_row = line.find("  ", lead) != std::string::npos;
+    if (display_width(line) <= max_width || table_row) {
+      out += line;
+      if (newline) out += '\n';
+      continue;
+    }
+    const std::size_t marker = marker_width(line, lead);
+    const std::string hang(lead + (marker ? marker : (lead ? 2 : 0)), ' ');
+    std::string current = line.substr(0, lead);
+    std::size_t current_width = lead;
+    bool first_word = true;
+    std::size_t i = lead;
+    while (i < line.size()) {
+      std::size_t j = line.find(' ', i);
+      if (j == std::string::npos) j = line.size();
+      const std::string word = line.substr(i, j - i);
+      const std::size_t w = display_width(word);
+      if (!first_word && current_width + 1 + w > max_width) {
+        out += current + '\n';
+        current = hang + word;
+        current_width = hang.size() + w;
+      } else {
+        if (!first_word) {
+          current += ' ';
+          ++current_width;
+        }
+        current += word;
+        current_width += w;
+      }
+      first_word = false;
+      i = j + 1;
+    }
+    out += current;
+    if (newline) out += '\n';
+  }
+  return out;
 }
 
 const char* caution_text() {

@@ -3,11 +3,13 @@
 #include <cerrno>
 #include <cstring>
 #include <iostream>
+#include <sstream>
 #include <string>
 #include <vector>
 
 #include "cli_common.h"
 #include "commands.h"
+#include "pkarta/base/format.h"
 #include "pkarta/base/suggest.h"
 #include "pkarta/base/version.h"
 
@@ -56,6 +58,35 @@ int finish(int code) {
   return code;
 }
 
+// Text output is kept within 100 columns (paragraphs wrapped; tables lay themselves out):
+// the command writes into a buffer that is wrapped once it is done. CSV and JSON pass as they are.
+bool text_output(const pkarta::cli::Args& args) {
+  for (std::size_t i = 0; i < args.size(); ++i) {
+    std::string value;
+    if (args[i] == "--format" && i + 1 < args.size()) value = args[i + 1];
+    else if (args[i].rfind("--format=", 0) == 0) value = args[i].substr(9);
+    else continue;
+    if (value == "csv" || value == "json") return false;
+  }
+  return true;
+}
+
+int run_command(const Command& c, const pkarta::cli::Args& args) {
+  if (!text_output(args)) return c.run(args);
+  std::ostringstream buffer;
+  std::streambuf* const real = std::cout.rdbuf(buffer.rdbuf());
+  int code = 0;
+  try {
+    code = c.run(args);
+  } catch (...) {
+    std::cout.rdbuf(real);
+    throw;
+  }
+  std::cout.rdbuf(real);
+  std::cout << pkarta::fit_text_width(buffer.str());
+  return code;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -75,7 +106,7 @@ int main(int argc, char** argv) {
     return finish(0);
   }
   for (const Command& c : kCommands) {
-    if (cmd == c.name) return finish(c.run(args));
+    if (cmd == c.name) return finish(run_command(c, args));
   }
   std::vector<std::string> names;
   for (const Command& c : kCommands) names.emplace_back(c.name);

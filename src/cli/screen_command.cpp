@@ -139,6 +139,8 @@ int run_screen(const Args& args) {
         ("seed", po::value(&seed)->default_value("1"), "seed of the Monte Carlo samples (reproducible)");
     ActivityOptions activity;
     add_activity_options(desc, activity);
+    bool wide = false;
+    desc.add_options()("wide", po::bool_switch(&wide), "text: every column of the screen (wider than 100 columns)");
     TableOptions tables;
     add_table_options(desc, tables);
     add_common_options(desc, common);
@@ -295,7 +297,7 @@ int run_screen(const Args& args) {
     if (samples == 0) {
       emit_tables(tables, common.format, screen_tables(reports, nullptr), compounds);
       if (common.format == "json") print_json(screen_json());
-      else if (common.format == "text") write_screen_text(reports, std::cout);
+      else if (common.format == "text") write_screen_text(reports, std::cout, wide);
       return out.done(0);
     }
     MonteCarloRun run;
@@ -321,7 +323,7 @@ int run_screen(const Args& args) {
       j["screens"][0]["results"] = j["results"];
       print_json(j);
     } else if (common.format == "text") {
-      write_screen_text(reports, std::cout);
+      write_screen_text(reports, std::cout, wide);
       std::cout << "\n";
       write_screen_bands_text(bands, std::cout);
     }

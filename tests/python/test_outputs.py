@@ -2,12 +2,14 @@
 
 Run by CTest with PKARTA_BINARY and PKARTA_SOURCE_DIR set. Each command's `--format csv`
 (and every table of it, through --table) must parse with Python's csv module as one
-rectangular table; `COMMAND --version` exits 0.
+rectangular table; `COMMAND --version` exits 0; no line of the default text output of the
+README's example commands is wider than 100 columns.
 """
 import csv
 import io
 import os
 import re
+import shlex
 import subprocess
 import unittest
 
@@ -101,6 +103,39 @@ class CsvTest(unittest.TestCase):
             r = run([c, "--version"], check=False)
             self.assertEqual(r.returncode, 0, c)
             self.assertRegex(r.stdout, r"^pkarta \d+\.\d+\.\d+\n$", c)
+
+
+def readme_examples():
+    """The `build/pkarta ...` command lines of README.md (continuations joined)."""
+    with open(os.path.join(SOURCE, "README.md"), encoding="utf-8") as f:
+        text = f.read()
+    commands = []
+    for block in re.findall(r"```sh\n(.*?)```", text, re.S):
+        joined = block.replace("\\\n", " ")
+        for line in joined.splitlines():
+            line = line.split("  #", 1)[0].strip()
+            if line.startswith("build/pkarta "):
+                commands.append(line[len("build/pkarta "):])
+    return commands
+
+
+class TextWidthTest(unittest.TestCase):
+    def test_readme_examples_fit_in_100_columns(self):
+        checked = 0
+        for cmd in readme_examples():
+            args = shlex.split(cmd)
+            # Those writing files or reading files the reader is to supply are left out.
+            if args[0] in ("report", "demo") or "-o" in args or "--table" in args or any(a.startswith("my-") for a in args):
+                continue
+            if "--format" in args:
+                i = args.index("--format")
+                del args[i:i + 2]
+            r = run(args, check=False)
+            self.assertEqual(r.returncode, 0, f"{cmd}: {r.stderr}")
+            wide = [line for line in r.stdout.splitlines() if len(line) > 100]
+            self.assertEqual(wide, [], cmd)
+            checked += 1
+        self.assertGreaterEqual(checked, 15)
 
 
 if __name__ == "__main__":

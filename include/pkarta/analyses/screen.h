@@ -255,6 +255,9 @@ double parse_dose_range(std::string_view text);
 /// Writers: text tables, CSV (one row per compound and buffer), JSON (docs/commands.md
 /// keys; one compound gives the stable object, several give {"screens": [...]}).
 void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out);
+/// With `wide` every column of the screen (capacity, ionic strength, osmolality, storage pH,
+/// drug solid, routes...); without, the columns that fit 100 text columns (as the overload above).
+void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out, bool wide);
 /// When no buffer is ok: the closest candidates (pH deviation at max-conc, criteria failing);
 /// nothing otherwise.
 void write_screen_near_misses(const ScreenReport& rep, std::ostream& out);

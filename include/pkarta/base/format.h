@@ -2,6 +2,7 @@
 #ifndef PKARTA_FORMAT_H_
 #define PKARTA_FORMAT_H_
 
+#include <cstddef>
 #include <ostream>
 #include <string>
 #include <vector>
@@ -24,17 +25,29 @@ std::string csv_field(const std::string& text_in);
 /// Writes one CSV record (RFC 4180, CRLF line ending).
 void write_csv_row(std::ostream& out, const std::vector<std::string>& fields);
 
-/// A plain-text table: header row, rule, rows; numeric-looking cells right-aligned.
+/// Text lines are kept within this many columns (tables reflowed, paragraphs wrapped).
+inline constexpr std::size_t kTextWidth = 100;
+
+/// A plain-text table: header row, rule, rows; numeric-looking cells right-aligned. A table
+/// wider than max_width (default kTextWidth; 0: no limit) is written as several blocks of
+/// columns one below the other, each starting with the first column.
 class TextTable {
  public:
   explicit TextTable(std::vector<std::string> header) : header_(std::move(header)) {}
   void add_row(std::vector<std::string> row) { rows_.push_back(std::move(row)); }
+  void set_max_width(std::size_t max_width) { max_width_ = max_width; }
   void write(std::ostream& out, const std::string& indent = "  ") const;
 
  private:
   std::vector<std::string> header_;
   std::vector<std::vector<std::string>> rows_;
+  std::size_t max_width_ = kTextWidth;
 };
+
+/// Wraps lines wider than max_width at spaces; a continuation is indented under the text of a
+/// list item ("- ", "1. ") or two columns deeper than an indented line. Table rows (cells two
+/// spaces apart) and single words are left as they are.
+std::string fit_text_width(const std::string& text, std::size_t max_width = kTextWidth);
 
 /// The caution every result that could guide a product carries (docs/model.md, "Limits and cautions").
 const char* caution_text();
