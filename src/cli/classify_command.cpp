@@ -52,7 +52,7 @@ int run_classify(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta classify --compound F --dose-mg N [--form free|SALT] [--volume-mL 250] [--temp 37]",
+                 "pkarta classify --compound FILE --dose-mg MG [--form free|SALT] [--volume-mL 250] [--temp 37]",
                  desc);
       std::cout
           << "ICH M9 (2019): highly soluble when the highest single therapeutic dose dissolves in\n"
@@ -64,6 +64,8 @@ int run_classify(const Args& args) {
              "dissolved in the library media hcl-1.2, acetate-4.5 and phosphate-6.8 (closed system) to\n"
              "show the pH after the dose; those checks inform, the scan decides.\n\n"
           << tables_help(classify_table_info());
+      print_examples(std::cout, {"pkarta classify --compound compounds/demo-ampholyte.xml --dose-mg 50",
+                                 "pkarta classify --compound compounds/demo-base.xml --dose-mg 25 --form hydrochloride --format json"});
       return 0;
     }
     check_format(common.format);

@@ -338,8 +338,88 @@ int guarded(const std::function<int()>& body) {
   }
 }
 
+namespace {
+
+// The value placeholder shown after an option in --help (`--dose AMOUNT`), by option name.
+std::string placeholder(const std::string& name, const std::string& description) {
+  if (name == "temp" && description.find("list") != std::string::npos) return "CELSIUS[,...]";
+  static const std::vector<std::pair<const char*, const char*>> kNames = {
+      {"compound", "FILE"}, {"compounds", "DIR"}, {"library", "FILE"}, {"data", "FILE"}, {"output", "FILE"},
+      {"out-dir", "DIR"}, {"table", "NAME"}, {"format", "text|csv|json"}, {"dose", "AMOUNT"},
+      {"dose-mg", "MG"}, {"form", "free|SALT"}, {"add", "REAGENT=AMOUNT"}, {"medium", "MEDIUM"},
+      {"into", "MEDIUM"}, {"temp", "CELSIUS"}, {"into-temp", "CELSIUS"}, {"storage", "CELSIUS,CELSIUS"},
+      {"from", "PH"}, {"to", "PH"}, {"step", "PH"}, {"points", "PH[,...]"}, {"target-ph", "PH"}, {"ph", "PH"},
+      {"tolerance", "PH"}, {"max-drift", "PH"}, {"acid", "REAGENT"}, {"base", "REAGENT"},
+      {"uncertainty", "SAMPLES"}, {"seed", "N"}, {"threads", "N"}, {"volume-mL", "ML"}, {"volume", "VOLUME"},
+      {"buffers", "all|ID[,...]"}, {"buffer", "ID"}, {"route", "ROUTE"}, {"dose-range", "FRACTION"},
+      {"preparation", "premade|adjusted"}, {"challenge", "AMOUNT"}, {"min-capacity", "CAPACITY"},
+      {"round", "AMOUNT"}, {"conc", "AMOUNT"}, {"reagents", "ACID[,BASE]"}, {"params", "NAME[,...]"},
+      {"ratios", "RATIO[,...]"}, {"blood-model", "open|closed"}, {"pco2", "MMHG"}};
+  for (const auto& [n, p] : kNames) {
+    if (name == n) return p;
+  }
+  std::string up;
+  for (char c : name) up += c == '-' ? '_' : static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+  return up;
+}
+
+// Words of `text` in lines of at most `width` columns, the first after `first`, the others
+// indented by `indent` spaces.
+void wrap_into(std::ostream& out, const std::string& first, const std::string& text, std::size_t indent,
+               std::size_t width, const std::string& at_break = "") {
+  std::string line = first;
+  std::istringstream words(text);
+  std::string w;
+  bool empty = true;
+  while (words >> w) {
+    if (!empty && line.size() + 1 + w.size() + at_break.size() > width) {
+      out << line << at_break << "\n";
+      line = std::string(indent, ' ') + w;
+    } else {
+      line += (empty ? "" : " ") + w;
+    }
+    empty = false;
+  }
+  out << line << "\n";
+}
+
+}  // namespace
+
 void print_help(std::ostream& out, const std::string& usage, const po::options_description& desc) {
-  out << "usage: " << usage << "\n\n" << desc << "\n";
+  constexpr std::size_t kWidth = 100, kColumn = 30;
+  wrap_into(out, "usage: ", usage, 4, kWidth);
+  // "pkarta profile ..." -> "profile options:"
+  std::istringstream usage_words(usage);
+  std::string program, command;
+  usage_words >> program >> command;
+  out << "\n" << command << " options:\n";
+  for (const auto& o : desc.options()) {
+    const std::string names = o->long_name();
+    std::string shown = "  ";
+    const std::string short_name = o->canonical_display_name(po::command_line_style::allow_dash_for_short);
+    if (short_name.size() == 2 && short_name[0] == '-') shown += short_name + ", ";
+    shown += "--" + names;
+    const bool takes_value = o->semantic()->max_tokens() > 0;
+    if (takes_value) shown += " " + placeholder(names, o->description()) + (o->semantic()->max_tokens() > 1 ? "..." : "");
+    std::string text = o->description();
+    // Boost writes a default as "arg (=25)".
+    const std::string format = o->format_parameter();
+    const std::size_t eq = format.find("(=");
+    if (takes_value && eq != std::string::npos && format.back() == ')') {
+      text += " (default " + format.substr(eq + 2, format.size() - eq - 3) + ")";
+    }
+    if (shown.size() + 2 > kColumn) {
+      out << shown << "\n";
+      wrap_into(out, std::string(kColumn - 1, ' '), text, kColumn - 1, kWidth);
+    } else {
+      wrap_into(out, shown + std::string(kColumn - 1 - shown.size(), ' '), text, kColumn - 1, kWidth);
+    }
+  }
+}
+
+void print_examples(std::ostream& out, const std::vector<std::string>& examples) {
+  out << "\nExamples:\n";
+  for (const std::string& e : examples) wrap_into(out, "  ", e, 6, 100, " \\");
 }
 
 std::string shipped_compounds_dir() {

@@ -141,7 +141,12 @@ void error(const std::string& message);
 /// Empty when neither exists. No build path is compiled into the binary.
 std::string shipped_compounds_dir();
 
+/// Usage line (wrapped) and one line per option: `  -o, --out-dir DIR   text (default X)`, the
+/// placeholder named after what the option takes (FILE, AMOUNT, CELSIUS...).
 void print_help(std::ostream& out, const std::string& usage, const po::options_description& desc);
+
+/// "Examples:" and the command lines given (two per command), printed last in --help.
+void print_examples(std::ostream& out, const std::vector<std::string>& examples);
 
 }  // namespace pkarta::cli
 

@@ -71,6 +71,8 @@ int run_demo(const Args& args) {
     if (common.help) {
       print_help(std::cout, "pkarta demo [--compounds DIR] [--out-dir DIR]", desc);
       std::cout << "\n" << tables_help({{"files", "one row per file written (--format csv; json lists them)"}});
+      print_examples(std::cout, {"pkarta demo",
+                                 "pkarta demo -o my-reports --format json"});
       return 0;
     }
     check_format(common.format);

@@ -51,11 +51,13 @@ int run_dilute(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta dilute [--compound F --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
-                 "[--medium ID] [--temp C] --into MEDIUM [--ratios 1,2,5,10,20,50,100] [--into-temp C] "
+                 "pkarta dilute [--compound FILE --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
+                 "[--medium MEDIUM] [--temp CELSIUS] --into MEDIUM [--ratios 1,2,5,10,20,50,100] [--into-temp CELSIUS] "
                  "[--blood-model open|closed] [--pco2 MMHG]",
                  desc);
       std::cout << "\n" << tables_help(dilute_table_info());
+      print_examples(std::cout, {"pkarta dilute --compound compounds/demo-base.xml --dose 2mg/mL --form mesylate --into plasma-7.4",
+                                 "pkarta dilute --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --into saline-0.9 --ratios 1,2,5,10 --format csv"});
       return 0;
     }
     check_format(common.format);

@@ -40,8 +40,11 @@ int run_fit(const Args& args) {
       print_help(std::cout,
                  "pkarta fit --compound F [--data CSV] [--params s0,pka1,pka2,ksp:SALT] [-o OUT.xml] "
                  "[--medium ID] [--acid HCl] [--base NaOH] [--activity MODEL | --ideal]",
+                 "pkarta fit --compound FILE [--data CSV] [--params s0,pka1,pka2,ksp:SALT] [-o OUT.xml] "
                  desc);
       std::cout << "\n" << tables_help(fit_table_info());
+      print_examples(std::cout, {"pkarta fit --compound compounds/demo-base.xml",
+                                 "pkarta fit --compound compounds/demo-acid.xml --data points.csv --params s0,pka1 -o fitted.xml"});
       return 0;
     }
     check_format(common.format);

@@ -115,6 +115,7 @@ int run_library(const Args& args) {
     if (common.help) {
       print_help(std::cout, "pkarta library [list | show ID]", desc);
       std::cout << "\n" << tables_help(library_table_info());
+      print_examples(std::cout, {"pkarta library list", "pkarta library show phosphate --format json"});
       return 0;
     }
     check_format(common.format);
@@ -249,7 +250,9 @@ int run_check(const Args& args) {
     parse(args, all, &pos);
     if (common.help || files.empty()) {
       print_help(common.help ? std::cout : std::cerr, "pkarta check FILE...", desc);
-      if (common.help) std::cout << "\n" << tables_help({{"files", "one row per file checked"}});
+      std::ostream& to = common.help ? std::cout : std::cerr;
+      to << "\n" << tables_help({{"files", "one row per file checked"}});
+      print_examples(to, {"pkarta check compounds/demo-base.xml", "pkarta check my-library.xml --format json"});
       return common.help ? 0 : static_cast<int>(kExitBadInput);
     }
     check_format(common.format);

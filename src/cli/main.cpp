@@ -41,7 +41,10 @@ void usage(std::ostream& out) {
   for (const Command& c : kCommands) {
     out << "  " << c.name << std::string(10 - std::strlen(c.name), ' ') << c.summary << "\n";
   }
-  out << "\nexit codes: 0 ok, 1 computed but not usable, 2 bad input\n";
+  out << "\nexit codes: 0 ok, 1 computed but not usable, 2 bad input\n"
+         "\nExamples:\n"
+         "  pkarta profile --compound compounds/demo-base.xml --medium saline-0.9 --temp 37\n"
+         "  pkarta screen --compound compounds/demo-base.xml --dose 0.5mg/mL --form hydrochloride --target-ph 5\n";
 }
 
 // Output is checked once it is flushed: a full disk or a closed pipe must not pass for

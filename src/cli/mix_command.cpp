@@ -82,10 +82,12 @@ int run_mix(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta mix [--compound F --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
-                 "[--medium ID] [--temp C]",
+                 "pkarta mix [--compound FILE --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
+                 "[--medium MEDIUM] [--temp CELSIUS[,...]]",
                  desc);
       std::cout << "\n" << tables_help(mix_table_info());
+      print_examples(std::cout, {"pkarta mix --add KH2PO4=25mM --add Na2HPO4=25mM --temp 5,25,37",
+                                 "pkarta mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --medium saline-0.9 --format json"});
       return 0;
     }
     check_format(common.format);

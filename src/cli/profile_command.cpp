@@ -72,6 +72,7 @@ int run_profile(const Args& args) {
       print_help(std::cout,
                  "pkarta profile --compound F [--from 1 --to 13 --step 0.05 | --points LIST] "
                  "[--add REAGENT=AMOUNT]... [--medium ID] [--acid HCl] [--base NaOH] [--temp C] [--activity MODEL | --ideal]",
+                 "pkarta profile --compound FILE [--from 1 --to 13 --step 0.05 | --points LIST] "
                  desc);
       std::cout << "At each pH the drug's excess free form is equilibrated in the medium, the pH held by\n"
                    "the acid or the base; a salt limits where its ion product would exceed Ksp, its\n"
@@ -79,6 +80,8 @@ int run_profile(const Args& args) {
                    "salt curves cross in this medium. Text output prints every 0.5 pH of the default\n"
                    "grid; giving --step or --points prints every row (csv and json always hold all).\n\n"
                 << tables_help(profile_table_info());
+      print_examples(std::cout, {"pkarta profile --compound compounds/demo-base.xml --medium saline-0.9 --temp 37",
+                                 "pkarta profile --compound compounds/demo-acid.xml --from 3 --to 9 --step 0.1 --format csv --table ph_max"});
       return 0;
     }
     check_format(common.format);

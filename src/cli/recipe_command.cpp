@@ -45,11 +45,13 @@ int run_recipe(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta recipe --buffer ID --ph P --conc AMOUNT [--volume 1L] [--temp C] [--isotonic] "
-                 "[--reagents ACID,BASE] [--titrant] [--compound F --dose AMOUNT [--form SALT] "
+                 "pkarta recipe --buffer ID --ph PH --conc AMOUNT [--volume 1L] [--temp CELSIUS] [--isotonic] "
+                 "[--reagents ACID,BASE] [--titrant] [--compound FILE --dose AMOUNT [--form SALT] "
                  "[--preparation premade|adjusted]]",
                  desc);
       std::cout << "\n" << tables_help(recipe_table_info());
+      print_examples(std::cout, {"pkarta recipe --buffer phosphate --ph 7.0 --conc 50mM --volume 500mL",
+                                 "pkarta recipe --buffer tris --ph 7.4 --conc 20mM --reagents tris --titrant --temp 37"});
       return 0;
     }
     check_format(common.format);

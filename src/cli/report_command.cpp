@@ -21,10 +21,12 @@ int run_report(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta report --compound F [--dose AMOUNT [--form free|SALT]] [--target-ph P] [--route R] "
-                 "[--temp C] -o reports/NAME.html",
+                 "pkarta report --compound FILE [--dose AMOUNT [--form free|SALT]] [--target-ph PH] [--route ROUTE] "
+                 "[--temp CELSIUS] -o reports/NAME.html",
                  desc);
       std::cout << "\n" << tables_help({{"files", "one row per file written (--format csv; json lists them)"}});
+      print_examples(std::cout, {"pkarta report --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --target-ph 5 -o reports/base-5.html",
+                                 "pkarta report --compound compounds/demo-acid.xml --dose-mg 200 -o reports/acid.html --format json"});
       return 0;
     }
     check_format(common.format);

@@ -148,12 +148,14 @@ int run_screen(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta screen --compound F --dose AMOUNT [--form free|SALT] --target-ph P "
+                 "pkarta screen --compound FILE --dose AMOUNT [--form free|SALT] --target-ph PH "
                  "[--tolerance 0.1] [--buffers all|ID,ID] [--route oral|parenteral|ophthalmic|any] "
-                 "[--temp C] [--dose-range 10%] [--preparation premade|adjusted] [--challenge 1mM] "
-                 "[--min-capacity B] [--storage 5,40] [--max-drift PH] [--round STEP]",
+                 "[--temp CELSIUS] [--dose-range 10%] [--preparation premade|adjusted] [--challenge 1mM] "
+                 "[--min-capacity CAPACITY] [--storage 5,40] [--max-drift PH] [--round AMOUNT]",
                  desc);
       std::cout << "\n" << tables_help(screen_table_info());
+      print_examples(std::cout, {"pkarta screen --compound compounds/demo-base.xml --dose 0.5mg/mL --form hydrochloride --target-ph 5 --route parenteral",
+                                 "pkarta screen --compound my-compounds/ --dose 1mg/mL --target-ph 6.5 --format csv -o screen-tables"});
       return 0;
     }
     check_format(common.format);

@@ -105,6 +105,22 @@ class CsvTest(unittest.TestCase):
             self.assertRegex(r.stdout, r"^pkarta \d+\.\d+\.\d+\n$", c)
 
 
+class HelpTest(unittest.TestCase):
+    def test_named_placeholders_and_two_examples_last(self):
+        for c in COMMANDS:
+            out = run([c, "--help"]).stdout
+            self.assertNotRegex(out, r"--[a-z-]+ arg\b", c)  # Boost's anonymous "arg"
+            self.assertIn("--compound FILE" if c in ("mix", "profile", "screen", "fit") else "--format text|csv|json", out, c)
+            tail = out.rstrip("\n").split("\nExamples:\n")
+            self.assertEqual(len(tail), 2, f"{c}: no Examples section")
+            examples = [line for line in tail[1].splitlines() if line.startswith("  pkarta ")]
+            self.assertEqual(len(examples), 2, c)
+            for e in examples:
+                self.assertTrue(e.startswith(f"  pkarta {c}"), e)
+            for line in out.splitlines():
+                self.assertLessEqual(len(line), 100, f"{c} --help: {line}")
+
+
 def readme_examples():
     """The `build/pkarta ...` command lines of README.md (continuations joined)."""
     with open(os.path.join(SOURCE, "README.md"), encoding="utf-8") as f:
