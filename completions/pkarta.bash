@@ -1,6 +1,7 @@
 # bash completion for pkarta. The options of each command are read from `pkarta COMMAND --help`,
-# so they are always those of the installed binary; ids after --buffer, --medium, --into and
-# --buffers come from `pkarta library list`.
+# so they are always those of the installed binary (aliases such as --ph and --target-ph
+# included); table names after --table come from the command's help, ids after --buffer,
+# --medium, --into and --buffers from `pkarta library list`.
 _pkarta() {
   local cur prev cmd words
   cur=${COMP_WORDS[COMP_CWORD]}
@@ -20,6 +21,11 @@ _pkarta() {
       return ;;
     --activity)
       COMPREPLY=($(compgen -W "davies sit truesdell-jones ideal" -- "$cur"))
+      return ;;
+    --table)
+      words=$("${COMP_WORDS[0]}" "$cmd" --help 2>/dev/null |
+              sed -n '/^Tables (/,/^$/s/^  \([a-z_]*\)  .*/\1/p')
+      COMPREPLY=($(compgen -W "$words" -- "$cur"))
       return ;;
     --buffer|--buffers|--medium|--into)
       words=$("${COMP_WORDS[0]}" library list 2>/dev/null |

@@ -1,4 +1,5 @@
 // `pkarta classify`: solubility classification over pH 1.2-6.8 at 37 °C (ICH M9, 2019).
+#include <cctype>
 #include <iostream>
 #include <sstream>
 
@@ -8,6 +9,8 @@
 #include "pkarta/analyses/classify.h"
 #include "pkarta/analyses/profile.h"
 #include "pkarta/base/format.h"
+#include "pkarta/analyses/recipe.h"
+#include "pkarta/base/table.h"
 #include "pkarta/writers/classify_writer.h"
 #include "pkarta/writers/tables.h"
 
@@ -25,6 +28,23 @@ double positive_option(const std::string& option, const std::string& text, const
   if (!(v > 0)) throw InputError(SourceLocation{option, 0, 0}, what + " " + text + " must be > 0");
   return v;
 }
+// A mass as --dose gives it ("50mg", "0.05g", "500ug"; a plain number is mg), in mg.
+std::string dose_mass_mg(const std::string& text) {
+  std::size_t end = 0;
+  while (end < text.size() && (std::isdigit(static_cast<unsigned char>(text[end])) || text[end] == '.' ||
+                               text[end] == 'e' || text[end] == 'E' || text[end] == '-' || text[end] == '+')) {
+    ++end;
+  }
+  const std::string unit = text.substr(end);
+  const double mg = unit.empty() || unit == "mg" ? 1.0 : unit == "g" ? 1e3 : unit == "ug" || unit == "µg" ? 1e-3 : 0.0;
+  if (mg == 0.0 || end == 0) {
+    throw InputError(SourceLocation{"--dose", 0, 0},
+                     "expected the highest single dose as a mass such as 50mg or 0.05g, got \"" + text + "\"");
+  }
+  const double v = positive_option("--dose", text.substr(0, end), "dose (mg)");
+  return full(v * mg);
+}
+
 }  // namespace
 
 int run_classify(const Args& args) {
@@ -34,13 +54,16 @@ int run_classify(const Args& args) {
                 step = "0.01";
     bool no_media = false;
     ActivityOptions activity;
+    std::string dose_alias, volume_alias;
     TableOptions tables;
     po::options_description desc("classify options");
     desc.add_options()
         ("compound", po::value(&compound_file), "compound XML file (required)")
         ("dose-mg", po::value(&dose), "highest single therapeutic dose, mg of the form given (required)")
+        ("dose", po::value(&dose_alias), "the same as --dose-mg, as a mass: 50mg, 0.05g")
         ("form", po::value(&form)->default_value("free"), "form the dose is expressed in: free or a salt id")
         ("volume-mL", po::value(&volume)->default_value("250"), "volume of medium, mL (ICH M9: 250)")
+        ("volume", po::value(&volume_alias), "the same as --volume-mL, with a unit: 250mL, 0.25L")
         ("temp", po::value(&temp)->default_value("37"), "temperature, °C (ICH M9: 37 ± 1)")
         ("step", po::value(&step)->default_value("0.01"), "scan step over pH 1.2-6.8 (at most 0.1)")
         ("acid", po::value(&acid)->default_value("HCl"), "strong acid holding the low pH of the scan")
@@ -49,7 +72,17 @@ int run_classify(const Args& args) {
     add_activity_options(desc, activity);
     add_table_options(desc, tables);
     add_common_options(desc, common);
-    parse(args, desc);
+    const po::variables_map vm = parse(args, desc);
+    if (vm.count("dose")) take_alias(vm, "dose-mg", "dose", dose_mass_mg(dose_alias), dose);
+    if (vm.count("volume")) {
+      double litres = 0.0;
+      try {
+        litres = parse_volume_L(volume_alias);
+      } catch (const InputError& e) {
+        throw InputError(SourceLocation{"--volume", 0, 0}, e.message());
+      }
+      take_alias(vm, "volume-mL", "volume", full(litres * 1e3), volume);
+    }
     if (common.help) {
       print_help(std::cout,
                  "pkarta classify --compound FILE --dose-mg MG [--form free|SALT] [--volume-mL 250] [--temp 37]",

@@ -170,6 +170,17 @@ std::pair<std::string, std::string> split_assignment(const std::string& option, 
   return {text.substr(0, eq), text.substr(eq + 1)};
 }
 
+void take_alias(const po::variables_map& vm, const std::string& name, const std::string& alias,
+                const std::string& alias_value, std::string& value) {
+  const auto given = [&vm](const std::string& n) { return vm.count(n) > 0 && !vm[n].defaulted(); };
+  if (!given(alias)) return;
+  if (given(name)) {
+    throw InputError(SourceLocation{"--" + alias, 0, 0},
+                     "--" + alias + " is another name of --" + name + ": give one of them");
+  }
+  value = alias_value;
+}
+
 Compound load_compound(const std::string& path, const Library& library) {
   Warnings w;
   Compound c = load_compound_file(path, library, &w);

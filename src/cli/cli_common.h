@@ -101,6 +101,11 @@ double option_temperature(const std::string& option, const std::string& text);
 /// Splits "A=B" of --add; errors name the option.
 std::pair<std::string, std::string> split_assignment(const std::string& option, const std::string& text);
 
+/// An option given under its other name (an alias, e.g. --ph for --target-ph): `value` takes the
+/// alias's value when only the alias was given; both at once are refused (InputError naming them).
+void take_alias(const po::variables_map& vm, const std::string& name, const std::string& alias,
+                const std::string& alias_value, std::string& value);
+
 /// Loads a compound file against a library, printing located warnings to stderr.
 Compound load_compound(const std::string& path, const Library& library);
 

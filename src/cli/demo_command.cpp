@@ -65,7 +65,7 @@ int run_demo(const Args& args) {
     po::options_description desc("demo options");
     desc.add_options()
         ("compounds", po::value(&dir)->default_value("compounds"), "folder of the demo compounds")
-        ("out-dir", po::value(&out_dir)->default_value("reports"), "folder the reports are written to");
+        ("out-dir,o", po::value(&out_dir)->default_value("reports"), "folder the reports are written to");
     add_common_options(desc, common);
     parse(args, desc);
     if (common.help) {

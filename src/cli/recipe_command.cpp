@@ -18,12 +18,15 @@ int run_recipe(const Args& args) {
     CommonOptions common;
     std::string buffer, ph, conc, volume = "1L", temp = "25", reagents, compound, dose, form = "free", dose_as = "weighed", preparation = "premade";
     bool isotonic = false, titrant = false;
+    std::string ph_alias, volume_mL;
     po::options_description desc("recipe options");
     desc.add_options()
         ("buffer", po::value(&buffer), "library buffer id (see pkarta library list)")
         ("ph", po::value(&ph), "target pH, 0-14")
+        ("target-ph", po::value(&ph_alias), "the same as --ph")
         ("conc", po::value(&conc), "total buffer strength, e.g. 50mM, 0.05M or 0.05mol/kg")
         ("volume", po::value(&volume)->default_value("1L"), "final volume, e.g. 1L or 500mL")
+        ("volume-mL", po::value(&volume_mL), "final volume in mL (the same as --volume with mL)")
         ("temp", po::value(&temp)->default_value("25"), "temperature the buffer is made up at, °C")
         ("isotonic", po::bool_switch(&isotonic), "add NaCl to about 290 mOsm/kg (estimate; measure it)")
         ("reagents", po::value(&reagents),
@@ -42,7 +45,9 @@ int run_recipe(const Args& args) {
     TableOptions tables;
     add_table_options(desc, tables);
     add_common_options(desc, common);
-    parse(args, desc);
+    const po::variables_map vm = parse(args, desc);
+    take_alias(vm, "ph", "target-ph", ph_alias, ph);
+    take_alias(vm, "volume", "volume-mL", volume_mL + "mL", volume);
     if (common.help) {
       print_help(std::cout,
                  "pkarta recipe --buffer ID --ph PH --conc AMOUNT [--volume 1L] [--temp CELSIUS] [--isotonic] "

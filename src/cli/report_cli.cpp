@@ -38,6 +38,7 @@ void add_report_options(po::options_description& desc, ReportOptions& r) {
       ("dose-as", po::value(&r.dose_as)->default_value("weighed"),
        "weighed: --dose is of the form weighed; free: of its free-form equivalent")
       ("target-ph", po::value(&r.target_ph), "pH the formulation must hold (buffer screen and recipe)")
+      ("ph", po::value(&r.target_ph_alias), "the same as --target-ph")
       ("tolerance", po::value(&r.tolerance)->default_value("0.1"), "allowed pH drift after the dose")
       ("dose-mg", po::value(&r.dose_mg), "highest single dose in mg of the form, for the ICH M9 solubility class at 37 °C")
       ("into", po::value(&r.into), "medium the formulation is diluted into (default by route; none: no dilution)")

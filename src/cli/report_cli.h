@@ -19,6 +19,7 @@ struct ReportOptions {
   std::string form = "free";
   std::string dose_as = "weighed";    ///< weighed | free (the dose as free-form equivalent)
   std::string target_ph;
+  std::string target_ph_alias;        ///< --ph, another name of --target-ph
   std::string tolerance = "0.1";
   std::string route = "any";
   std::string temperature = "25";

@@ -18,7 +18,8 @@ int run_report(const Args& args) {
     po::options_description desc("report options");
     add_report_options(desc, r);
     add_common_options(desc, common);
-    parse(args, desc);
+    const po::variables_map vm = parse(args, desc);
+    take_alias(vm, "target-ph", "ph", r.target_ph_alias, r.target_ph);
     if (common.help) {
       print_help(std::cout,
                  "pkarta report --compound FILE [--dose AMOUNT [--form free|SALT]] [--target-ph PH] [--route ROUTE] "

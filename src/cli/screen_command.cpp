@@ -105,6 +105,7 @@ int run_screen(const Args& args) {
   return guarded([&] {
     CommonOptions common;
     std::vector<std::string> compounds;
+    std::string target_alias;
     std::string dose, form = "free", dose_as = "weighed", target, tolerance = "0.1", buffers = "all", route = "any",
                 temp = "25", dose_range, threads = "0", uncertainty = "0", seed = "1",
                 preparation = "premade", challenge = "1mM", min_capacity, storage = "5,40", max_drift, round;
@@ -117,6 +118,7 @@ int run_screen(const Args& args) {
       ("dose-as", po::value(&dose_as)->default_value("weighed"),
        "weighed: --dose is of the form weighed; free: of its free-form equivalent")
         ("target-ph", po::value(&target), "pH to hold, 0-14")
+        ("ph", po::value(&target_alias), "the same as --target-ph")
         ("tolerance", po::value(&tolerance)->default_value("0.1"), "allowed pH drift after the dose, > 0")
         ("buffers", po::value(&buffers)->default_value("all"), "all, or buffer ids separated by commas")
         ("route", po::value(&route)->default_value("any"), "oral, parenteral, ophthalmic, topical or any")
@@ -145,7 +147,8 @@ int run_screen(const Args& args) {
     add_table_options(desc, tables);
     add_common_options(desc, common);
     add_output_option(desc, common);
-    parse(args, desc);
+    const po::variables_map vm = parse(args, desc);
+    take_alias(vm, "target-ph", "ph", target_alias, target);
     if (common.help) {
       print_help(std::cout,
                  "pkarta screen --compound FILE --dose AMOUNT [--form free|SALT] --target-ph PH "

@@ -52,6 +52,14 @@ class ModuleTest(unittest.TestCase):
         rec = pkarta.recipe(buffer="phosphate", ph=7.0, conc="50mM", volume="500mL")
         self.assertIsInstance(rec, dict)
 
+    def test_option_aliases_as_keywords(self):
+        # The same names as the command line, aliases included (--ph / --target-ph, --volume-mL).
+        a = pkarta.recipe(buffer="phosphate", ph=7.0, conc="50mM", volume="500mL")
+        b = pkarta.recipe(buffer="phosphate", target_ph=7.0, conc="50mM", volume_mL=500)
+        self.assertEqual(a["reagents"], b["reagents"])
+        version = subprocess.run([BINARY, "--version"], check=True, capture_output=True, text=True).stdout.split()[1]
+        self.assertEqual(a["pkarta_version"], version)
+
     def test_profile_points_load_into_pandas(self):
         profile = pkarta.profile(compound=BASE, temp=[25])
         try:
