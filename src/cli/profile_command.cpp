@@ -151,9 +151,11 @@ int run_profile(const Args& args) {
     if (samples > 0) {
       std::vector<double> ph;
       for (const auto& pt : p.points) ph.push_back(pt.pH);
+      const ProgressBar bar("uncertainty");
       MonteCarloRun run;
-      run.progress = ProgressBar("uncertainty");
+      run.progress = bar;
       bands = profile_bands(c, lib, ph, cond, samples, static_cast<std::uint64_t>(seed_value), run);
+      bar.finish();
     }
     emit_tables(tables, common.format, profile_tables(p, bands), {compound_file});
     if (common.format == "json") {

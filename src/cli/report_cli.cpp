@@ -1,5 +1,7 @@
 #include "report_cli.h"
 
+#include "progress_bar.h"
+
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/io/sha256.h"
@@ -109,9 +111,12 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
   }
   std::string why;
   if (!req.is_valid(&why)) throw InputError(why);  // before the run record, as the analysis would
+  const ProgressBar bar("report " + r.compound_file);
+  req.progress = bar;
   const ReportData data = analyse_report(compound, library, req, gather_run_record(r.compound_file, common.library_files, command_line));
   std::vector<std::string> protect = {r.compound_file};
   protect.insert(protect.end(), common.library_files.begin(), common.library_files.end());
+  bar.finish();
   std::vector<std::string> written = write_report_files(data, r.output, protect);
   if (data_out) *data_out = data;
   return written;

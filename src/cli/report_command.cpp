@@ -46,7 +46,8 @@ int run_report(const Args& args) {
     } else if (common.format == "csv") {
       write_table_csv(report_files_table({{r.compound_file, written}}), std::cout);
     } else {
-      std::cout << "wrote " << written.back() << " and " << written.size() - 1 << " CSV tables\n";
+      // A status message: standard error, as every "wrote" of pkarta.
+      std::cerr << "pkarta: wrote " << written.back() << " and " << written.size() - 1 << " CSV tables\n";
     }
     return 0;
   });

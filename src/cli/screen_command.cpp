@@ -1,8 +1,5 @@
 // `pkarta screen`: the weakest buffer holding a target pH once the dose is dissolved.
-#include <unistd.h>
-
 #include <algorithm>
-#include <chrono>
 #include <cstdio>
 #include <filesystem>
 #include <iostream>
@@ -64,40 +61,6 @@ std::vector<std::string> compound_paths(const std::vector<std::string>& given) {
   }
   return out;
 }
-
-// A progress bar on stderr, drawn only when stderr is a terminal and the work is expected to
-// take more than about a second.
-class BatchProgressBar {
- public:
-  BatchProgressBar() : enabled_(isatty(STDERR_FILENO) == 1), start_(std::chrono::steady_clock::now()) {}
-  ~BatchProgressBar() { finish(); }
-  /// Clears the bar (before the results are written).
-  void finish() {
-    if (drawn_) std::cerr << "\r" << std::string(60, ' ') << "\r" << std::flush;
-    drawn_ = false;
-    enabled_ = false;
-  }
-  void update(std::size_t done, std::size_t total) {
-    if (!enabled_ || total == 0) return;
-    const auto now = std::chrono::steady_clock::now();
-    const double elapsed = std::chrono::duration<double>(now - start_).count();
-    const double expected = done > 0 ? elapsed * static_cast<double>(total) / done : 0.0;
-    if (!drawn_ && (elapsed < 0.2 || expected < 1.0)) return;
-    if (drawn_ && done < total && std::chrono::duration<double>(now - last_).count() < 0.1) return;
-    last_ = now;
-    drawn_ = true;
-    const int width = 30;
-    const int filled = static_cast<int>(width * done / total);
-    std::cerr << "\rscreening [" << std::string(filled, '#') << std::string(width - filled, '.') << "] "
-              << done << "/" << total << std::flush;
-  }
-
- private:
-  bool enabled_;
-  bool drawn_ = false;
-  std::chrono::steady_clock::time_point start_;
-  std::chrono::steady_clock::time_point last_;
-};
 
 }  // namespace
 
@@ -281,8 +244,8 @@ int run_screen(const Args& args) {
       throw InputError(SourceLocation{"--uncertainty", 0, 0}, "bands are computed for one compound at a time");
     }
 
-    BatchProgressBar bar;
-    batch.progress = [&bar](std::size_t done, std::size_t total) { bar.update(done, total); };
+    const ProgressBar bar("screening");
+    batch.progress = bar;
     std::vector<ScreenReport> reports = screen_batch(lib, jobs, opt, batch);
     bar.finish();
 
@@ -305,10 +268,12 @@ int run_screen(const Args& args) {
       else if (common.format == "text") write_screen_text(reports, std::cout, wide);
       return out.done(0);
     }
+    const ProgressBar band_bar("uncertainty");
     MonteCarloRun run;
-    run.progress = pkarta::cli::ProgressBar("uncertainty");
+    run.progress = band_bar;
     const ScreenBands bands =
         screen_bands(lib, jobs.front(), opt, samples, static_cast<std::uint64_t>(seed_value), run);
+    band_bar.finish();
     auto finite_or_null = [](double v) { return std::isfinite(v) ? nlohmann::ordered_json(v) : nlohmann::ordered_json(); };
     emit_tables(tables, common.format, screen_tables(reports, &bands), compounds);
     if (common.format == "json") {

@@ -368,6 +368,11 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     for (int i = 0; i <= n; ++i) grid.push_back(request.profile_from_pH + i * request.uncertainty_step_pH);
     MonteCarloRun run;
     run.threads = 0;
+    if (request.progress) {
+      run.progress = [&request](int done, int total) {
+        request.progress(static_cast<std::size_t>(done), static_cast<std::size_t>(total));
+      };
+    }
     d.uncertainty = profile_bands(compound, library, grid, cond, request.uncertainty_samples, request.uncertainty_seed, run);
   }
 

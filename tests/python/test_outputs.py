@@ -121,6 +121,46 @@ class HelpTest(unittest.TestCase):
                 self.assertLessEqual(len(line), 100, f"{c} --help: {line}")
 
 
+class ProgressTest(unittest.TestCase):
+    ARGS = ["profile", "--compound", BASE, "--uncertainty", "3000", "--format", "csv", "--table", "bands"]
+
+    def test_bar_on_a_terminal_is_cleared_and_data_stays_clean(self):
+        import pty
+        import time
+        master, slave = pty.openpty()
+        started = time.monotonic()
+        proc = subprocess.Popen([BINARY, *self.ARGS], cwd=SOURCE, stdout=subprocess.PIPE, stderr=slave)
+        os.close(slave)
+        err = b""
+        while True:
+            try:
+                chunk = os.read(master, 4096)
+            except OSError:
+                break
+            if not chunk:
+                break
+            err += chunk
+        out = proc.communicate()[0]
+        took = time.monotonic() - started
+        os.close(master)
+        self.assertEqual(proc.returncode, 0)
+        if took > 1.5:  # work of more than a second shows a bar (not on a machine that finishes sooner)
+            self.assertIn(b"uncertainty [", err)
+        if err:
+            last = err.rsplit(b"\r", 2)
+            self.assertEqual(last[-1], b"")        # the line is left empty: cleared
+            self.assertEqual(last[-2].strip(b" "), b"")
+        self.assertNotIn(b"uncertainty [", out)
+        self.assertNotIn(b"#", out)
+        self.assertNotIn(b"\r\r", out)
+        rectangular(self, out.decode(), "bands under a bar")
+
+    def test_no_bar_when_stderr_is_not_a_terminal(self):
+        r = run(self.ARGS)
+        self.assertNotIn("[", r.stderr)
+        self.assertNotIn("\r", r.stderr)
+
+
 def readme_examples():
     """The `build/pkarta ...` command lines of README.md (continuations joined)."""
     with open(os.path.join(SOURCE, "README.md"), encoding="utf-8") as f:

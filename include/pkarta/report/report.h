@@ -14,6 +14,8 @@
 #define PKARTA_REPORT_H_
 
 #include <cstdint>
+#include <cstddef>
+#include <functional>
 #include <optional>
 #include <ostream>
 #include <string>
@@ -60,6 +62,9 @@ struct ReportRequest {
   double profile_from_pH = 1.0;
   double profile_to_pH = 13.0;
   double profile_step_pH = 0.05;
+  /// Called as the report's long steps advance (done, total: the Monte Carlo samples); may be
+  /// empty. The library never prints: the command line draws its progress bar here.
+  std::function<void(std::size_t done, std::size_t total)> progress;
   /// False with a message naming the field ("ReportRequest::profile_step_pH = 0, must be > 0").
   bool is_valid(std::string* error) const;
 };
