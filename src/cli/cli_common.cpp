@@ -31,8 +31,8 @@ void add_output_option(po::options_description& desc, CommonOptions& common) {
       ("output,o", po::value(&common.output), "write the result to this file instead of standard output (- : standard output)");
 }
 
-OutputTarget::OutputTarget(const std::string& path, std::vector<std::string> inputs)
-    : path_(path == "-" ? std::string() : path), inputs_(std::move(inputs)) {
+OutputTarget::OutputTarget(const std::string& path, std::vector<std::string> inputs, bool text)
+    : path_(path == "-" ? std::string() : path), inputs_(std::move(inputs)), text_(text) {
   if (path_.empty()) return;
   refuse_to_overwrite_inputs(path_, inputs_);
   saved_ = std::cout.rdbuf(buffer_.rdbuf());
@@ -46,7 +46,7 @@ int OutputTarget::done(int code) {
   if (!saved_) return code;
   std::cout.rdbuf(saved_);
   saved_ = nullptr;
-  if (code == 0) write_file_atomically(path_, buffer_.str(), inputs_);
+  if (code == 0) write_file_atomically(path_, text_ ? fit_text_width(buffer_.str()) : buffer_.str(), inputs_);
   return code;
 }
 
@@ -115,13 +115,6 @@ void check_format(const std::string& format, bool allow_csv) {
   throw InputError(SourceLocation{"--format", 0, 0},
                    "unknown format \"" + format + "\", expected text, " +
                        std::string(allow_csv ? "csv or json" : "or json"));
-}
-
-void check_text_format_only(const std::string& command, const std::string& format) {
-  if (format == "text") return;
-  throw InputError(SourceLocation{"--format", 0, 0},
-                   "unknown format \"" + format + "\": " + command +
-                       " accepts only text (it writes HTML files with their CSV tables beside them)");
 }
 
 Amount option_amount(const std::string& option, const std::string& text) {

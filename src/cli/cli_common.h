@@ -45,7 +45,8 @@ void add_output_option(po::options_description& desc, CommonOptions& common);
 /// nothing, so no half result is left.
 class OutputTarget {
  public:
-  OutputTarget(const std::string& path, std::vector<std::string> inputs);
+  /// With `text` the file gets the text as standard output would (kept within 100 columns).
+  OutputTarget(const std::string& path, std::vector<std::string> inputs, bool text = false);
   ~OutputTarget();
   OutputTarget(const OutputTarget&) = delete;
   OutputTarget& operator=(const OutputTarget&) = delete;
@@ -57,6 +58,7 @@ class OutputTarget {
   std::vector<std::string> inputs_;
   std::ostringstream buffer_;
   std::streambuf* saved_ = nullptr;
+  bool text_ = false;
 };
 
 /// Parses args (without the command word); throws po::error on bad usage.
@@ -68,10 +70,6 @@ Library load_libraries(const CommonOptions& common);
 
 /// Checks --format; throws InputError naming the option.
 void check_format(const std::string& format, bool allow_csv = true);
-
-/// For commands whose results go to HTML and CSV files (report, demo): --format accepts only
-/// text, the summary on standard output; anything else is refused naming the option.
-void check_text_format_only(const std::string& command, const std::string& format);
 
 /// Amount from an option value; errors name the option.
 Amount option_amount(const std::string& option, const std::string& text);

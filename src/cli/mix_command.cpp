@@ -94,7 +94,7 @@ int run_mix(const Args& args) {
     check_table_options(tables, common.format, mix_table_info(), {f.compound_file});
     std::vector<std::string> protect = common.library_files;
     if (!f.compound_file.empty()) protect.push_back(f.compound_file);
-    OutputTarget out(common.output, protect);
+    OutputTarget out(common.output, protect, common.format == "text");
     const Library lib = load_libraries(common);
     // --temp may list several temperatures (e.g. 5,25,37): one state each, same contents.
     std::vector<std::string> temps;

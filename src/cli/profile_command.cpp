@@ -91,7 +91,7 @@ int run_profile(const Args& args) {
     }
     std::vector<std::string> protect = common.library_files;
     protect.push_back(f.compound_file);
-    OutputTarget out(common.output, protect);
+    OutputTarget out(common.output, protect, common.format == "text");
     const bool explicit_grid = !vm["from"].defaulted() || !vm["to"].defaulted() || !vm["step"].defaulted();
     ProfileGrid grid;
     if (vm.count("points")) {

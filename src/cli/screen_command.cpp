@@ -129,7 +129,7 @@ int run_screen(const Args& args) {
     if (compounds.empty()) throw InputError(SourceLocation{"--compound", 0, 0}, "give a compound file (--compound F)");
     std::vector<std::string> protect = common.library_files;
     protect.insert(protect.end(), compounds.begin(), compounds.end());
-    OutputTarget out(common.output, protect);
+    OutputTarget out(common.output, protect, common.format == "text");
     if (dose.empty()) throw InputError(SourceLocation{"--dose", 0, 0}, "give the dose (--dose AMOUNT, e.g. 5mg/mL)");
     if (target.empty()) throw InputError(SourceLocation{"--target-ph", 0, 0}, "give the pH to hold (--target-ph P)");
 

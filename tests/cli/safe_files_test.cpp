@@ -222,7 +222,7 @@ TEST(SafeFiles, NamesAndIdsStartingLikeFormulasAreNeutralisedInEveryCsv) {
     std::string args, expect;
   };
   const Run runs[] = {
-      {"mix --compound " + compound + " --dose 1mg/mL --add KH2PO4=25mM --format csv", "'=cmd HA+,'=cmd,1,"},
+      {"mix --compound " + compound + " --dose 1mg/mL --add KH2PO4=25mM --format csv --table species", "'=cmd HA+,'=cmd,1,"},
       {"profile --compound " + compound + " --format csv", ",'@hcl,"},
       {"screen --compound " + compound + " --dose 1mg/mL --target-ph 6 --format csv", "'=cmd"},
       {"fit --compound " + compound + " --params s0 --format csv", "log10_S0_mol_per_L"},
@@ -234,7 +234,7 @@ TEST(SafeFiles, NamesAndIdsStartingLikeFormulasAreNeutralisedInEveryCsv) {
     EXPECT_EQ(formula_cells(out.out), "") << r.args;
   }
   // Negative numbers stay numbers: the charge of a phosphate species.
-  const pkarta_test::RunResult mix = pkarta_test::run("mix --add KH2PO4=25mM --add Na2HPO4=25mM --format csv");
+  const pkarta_test::RunResult mix = pkarta_test::run("mix --add KH2PO4=25mM --add Na2HPO4=25mM --format csv --table species");
   ASSERT_EQ(mix.code, 0) << mix.err;
   EXPECT_NE(mix.out.find("phosphate HA2-,phosphate,-2,"), std::string::npos) << mix.out;
   // The report's CSV tables.
