@@ -45,6 +45,7 @@ void check_table_options(const TableOptions& t, const std::string& format, const
                          const std::vector<std::string>& inputs) {
   if (!t.table.empty()) {
     std::vector<std::string> names;
+    names.reserve(info.size());
     for (const TableInfo& i : info) names.push_back(i.name);
     bool known = false;
     for (const std::string& n : names) known = known || n == t.table;
