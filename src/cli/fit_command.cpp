@@ -38,9 +38,8 @@ int run_fit(const Args& args) {
     parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta fit --compound F [--data CSV] [--params s0,pka1,pka2,ksp:SALT] [-o OUT.xml] "
-                 "[--medium ID] [--acid HCl] [--base NaOH] [--activity MODEL | --ideal]",
                  "pkarta fit --compound FILE [--data CSV] [--params s0,pka1,pka2,ksp:SALT] [-o OUT.xml] "
+                 "[--medium MEDIUM] [--acid HCl] [--base NaOH] [--activity MODEL | --ideal]",
                  desc);
       std::cout << "\n" << tables_help(fit_table_info());
       print_examples(std::cout, {"pkarta fit --compound compounds/demo-base.xml",

@@ -70,9 +70,9 @@ int run_profile(const Args& args) {
     const po::variables_map vm = parse(args, desc);
     if (common.help) {
       print_help(std::cout,
-                 "pkarta profile --compound F [--from 1 --to 13 --step 0.05 | --points LIST] "
-                 "[--add REAGENT=AMOUNT]... [--medium ID] [--acid HCl] [--base NaOH] [--temp C] [--activity MODEL | --ideal]",
                  "pkarta profile --compound FILE [--from 1 --to 13 --step 0.05 | --points LIST] "
+                 "[--add REAGENT=AMOUNT]... [--medium MEDIUM] [--acid HCl] [--base NaOH] [--temp CELSIUS] "
+                 "[--activity MODEL | --ideal]",
                  desc);
       std::cout << "At each pH the drug's excess free form is equilibrated in the medium, the pH held by\n"
                    "the acid or the base; a salt limits where its ion product would exceed Ksp, its\n"
