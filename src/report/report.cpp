@@ -442,13 +442,19 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
   tables.push_back(props);
 
   if (!c.salts.empty()) {
-    ReportTable salts{"salts.csv", "Salt forms (1:1)", {"salt", "counterion", "molar mass (g/mol)", "solubility in water (given)",
-                                                        "Ksp (mol²/L²)", "Ksp source", "at (°C)", "dH of dissolution (kJ/mol)",
-                                                        "Ksp at " + fixed(T, 1) + " °C (mol²/L²)"}, {}};
+    ReportTable salts{"salts.csv", "Salt forms", {"salt", "counterion", "drug:counterion", "molar mass (g/mol)",
+                                                  "solubility in water (given)", "Ksp ((mol/L)^(m+n))", "Ksp source",
+                                                  "at (°C)", "dH of dissolution (kJ/mol)",
+                                                  "Ksp at " + fixed(T, 1) + " °C ((mol/L)^(m+n))"}, {}};
     for (std::size_t i = 0; i < c.salts.size(); ++i) {
       const Salt& s = c.salts[i];
       const bool derived = s.solubility_in_water_mol_per_L.has_value() && !s.solubility_in_water_text.empty();
-      salts.rows.push_back({s.id, s.counterion, s.molar_mass_g_per_mol > 0 ? fixed(s.molar_mass_g_per_mol, 2) : "",
+      // A weak counterion is named as its species ("maleate HA-").
+      const std::string counterion = s.counterion_is_system ? s.counterion + " (charge " +
+                                                                  std::to_string(s.counterion_charge) + ")"
+                                                            : s.counterion;
+      salts.rows.push_back({s.id, counterion, s.stoichiometry(),
+                            s.molar_mass_g_per_mol > 0 ? fixed(s.molar_mass_g_per_mol, 2) : "",
                             s.solubility_in_water_text, sig(s.ksp.value_or(NAN), 4),
                             derived ? "derived from the solubility in water" : "given",
                             fixed(s.ref_temperature_C, 1), fixed(s.dH_kJ_per_mol, 1),

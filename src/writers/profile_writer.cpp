@@ -61,11 +61,11 @@ void write_profile_text(const Profile& p, std::ostream& out, double row_interval
   out << "\n";
   if (!p.ph_max.empty()) {
     out << "pHmax (free form and salt coexist; below it the salt limits for a base, above it for an acid)\n";
-    TextTable t({"salt", "counterion", "pHmax", "solubility there (mol/L)", "(mg/mL)", "on the profile"});
+    TextTable t({"salt", "counterion", "pHmax", "S there (mol/L)", "(mg/mL free form)", "on the profile"});
     for (const PhMax& m : p.ph_max) {
       t.add_row({m.salt, m.counterion, fixed(m.pH, 3), sig(m.solubility_mol_per_L, 4),
                  sig(m.solubility_mol_per_L * p.molar_mass_g_per_mol, 4),
-                 m.on_profile ? "yes" : "no (another salt is less soluble)"});
+                 m.on_profile ? "yes" : "no (another salt limits)"});
     }
     t.write(out);
     out << "\n";
@@ -99,7 +99,7 @@ void write_profile_text(const Profile& p, std::ostream& out, double row_interval
         << " points; --format csv or json gives all, --step or --points prints every row)";
   }
   out << "\n";
-  std::vector<std::string> head = {"pH", "S (mol/L)", "S (mg/mL)", "ideal HH S (mol/L)", "limiting solid",
+  std::vector<std::string> head = {"pH", "S (mol/L)", "S (mg/mL free form)", "ideal HH S (mol/L)", "limiting solid",
                                    "I (mol/L)", "acid/base added (mol/L)"};
   for (const std::string& s : p.species) head.push_back("frac " + s);
   TextTable t(head);
