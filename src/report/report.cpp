@@ -464,7 +464,7 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
   }
 
   ReportTable prof{"profile.csv", "pH-solubility profile in water at " + fixed(T, 1) + " °C (pH held by HCl or NaOH)",
-                   {"pH", "solubility (mol/L)", "solubility (mg/mL)", "Henderson-Hasselbalch, ideal (mol/L)",
+                   {"pH", "solubility (mol/L)", "solubility (mg/mL free form)", "Henderson-Hasselbalch, ideal (mol/L)",
                     "limiting solid", "ionic strength (mol/L)"}, {}};
   const int nsp = static_cast<int>(c.system.pkas.size()) + 1;
   for (int j = 0; j < nsp; ++j) prof.header.push_back("fraction " + c.system.species_label(j));
@@ -479,7 +479,7 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
   tables.push_back(prof);
 
   ReportTable pm{"phmax.csv", "pHmax in water at " + fixed(T, 1) + " °C",
-                 {"salt", "counterion", "pHmax", "solubility at pHmax (mol/L)", "solubility at pHmax (mg/mL)",
+                 {"salt", "counterion", "pHmax", "solubility at pHmax (mol/L)", "solubility at pHmax (mg/mL free form)",
                   "limiting solid changes there"}, {}};
   for (const PhMax& x : d.profile.ph_max) {
     pm.rows.push_back({x.salt, x.counterion, fixed(x.pH, 2), sig(x.solubility_mol_per_L, 4),
@@ -589,8 +589,8 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
   if (d.dilution) {
     const DilutionResult& dl = *d.dilution;
     ReportTable t{"dilution.csv", "The formulation diluted into " + dl.medium_name + " at " + fixed(dl.temperature_C, 1) + " °C",
-                  {"dilution (total/formulation)", "pH", "drug (mg/mL)", "solubility (mg/mL)", "limiting solid",
-                   "supersaturation ratio", "precipitation risk", "pH at equilibrium", "dissolved at equilibrium (mg/mL)"}, {}};
+                  {"dilution (total/formulation)", "pH", "drug (mg/mL free form)", "solubility (mg/mL free form)", "limiting solid",
+                   "supersaturation ratio", "precipitation risk", "pH at equilibrium", "dissolved at equilibrium (mg/mL free form)"}, {}};
     for (const DilutionPoint& p : dl.points) {
       t.rows.push_back({sig(p.ratio, 3), fixed(p.pH, 2), sig(p.drug_mg_per_mL, 4),
                         std::isfinite(p.solubility_mol_per_L) ? sig(p.solubility_mol_per_L * mm, 4) : "no solid forms",
