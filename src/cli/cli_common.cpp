@@ -181,7 +181,7 @@ Compound load_compound(const std::string& path, const Library& library) {
   return c;
 }
 
-void add_formulation_options(po::options_description& desc, FormulationOptions& f) {
+void add_formulation_options(po::options_description& desc, FormulationOptions& f, bool temperature_list) {
   desc.add_options()
       ("compound", po::value(&f.compound_file), "compound XML file")
       ("dose", po::value(&f.dose), "dose as an amount of the form weighed, e.g. 5mg/mL or 10mM")
@@ -190,7 +190,8 @@ void add_formulation_options(po::options_description& desc, FormulationOptions& 
        "weighed: --dose is of the form weighed; free: of its free-form equivalent")
       ("add", po::value(&f.adds)->composing(), "reagent and amount, e.g. KH2PO4=25mM; may repeat")
       ("medium", po::value(&f.medium), "library medium to start from (e.g. saline-0.9)")
-      ("temp", po::value(&f.temperature)->default_value("25"), "temperature, °C (mix: a list such as 5,25,37 compares them)");
+      ("temp", po::value(&f.temperature)->default_value("25"),
+       temperature_list ? "temperature, °C; a list such as 5,25,37 compares them" : "temperature, °C");
   add_activity_options(desc, f.activity);
 }
 

@@ -122,7 +122,9 @@ struct FormulationOptions {
   std::string temperature = "25";
   ActivityOptions activity;
 };
-void add_formulation_options(po::options_description& desc, FormulationOptions& f);
+/// `temperature_list`: --temp takes a list of temperatures to compare (mix), else one value.
+void add_formulation_options(po::options_description& desc, FormulationOptions& f,
+                             bool temperature_list = false);
 /// Reads --dose-as: "weighed" (the amount is of the form weighed) or "free" (its free-form
 /// equivalent); anything else is an InputError naming the option.
 DoseBasis option_dose_basis(const std::string& text);

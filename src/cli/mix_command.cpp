@@ -75,7 +75,7 @@ int run_mix(const Args& args) {
     FormulationOptions f;
     TableOptions tables;
     po::options_description desc("mix options");
-    add_formulation_options(desc, f);
+    add_formulation_options(desc, f, true);
     add_table_options(desc, tables);
     add_common_options(desc, common);
     add_output_option(desc, common);
