@@ -530,6 +530,20 @@ Profile compute_profile(const Compound& compound, const Library& library,
   if (!grid.is_valid(&err)) throw InputError(err);
   SolubilityScanner scanner(compound, library, conditions);
   const double T = conditions.temperature_C;
+  {
+    // Without a free form and without a salt that can form here nothing limits the solubility:
+    // every point would be the 10 mol/L cap, and its ionic strength meaningless.
+    const bool free_form = compound.has_intrinsic_solubility && compound.system.neutral_index() >= 0;
+    bool salt = false;
+    for (std::size_t k = 0; k < compound.salts.size(); ++k) salt = salt || scanner.salt_can_limit(k);
+    if (!free_form && !salt) {
+      throw InputError(SourceLocation{compound.file.empty() ? compound.id : compound.file, 0, 0},
+                       "nothing limits the solubility of '" + compound.id +
+                           "' in this medium: it has no net-neutral form and no salt whose "
+                           "counterion is present, so every point would be the " +
+                           fixed(kSolubilityCap_mol_per_L, 0) + " mol/L cap of the model");
+    }
+  }
 
   Profile p;
   p.compound_id = compound.id;

@@ -335,6 +335,10 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"compound file", F(79), "screen --compound {F} --dose 1M --target-ph 5", 2, "--dose: the dose of q at 1M carries up to 16.0 mol/L"},
       {"compound file", F(79), "report --compound {F} --dose 1M -o never-written.html", 2, "--dose: the dose of q at 1M carries up to 16.0"},
       {"compound file", F(79), "recipe --buffer phosphate --ph 7 --conc 50mM --compound {F} --dose 1M", 2, "--dose: the dose of q at 1M carries"},
+      // Nothing can limit its solubility (no neutral form, no salt): a profile would be the cap
+      // everywhere, with an ionic strength of about 1360 mol/L.
+      {"compound file", F(79), "profile --compound {F}", 2, "nothing limits the solubility of 'q' in this medium"},
+      {"compound file", F(79), "classify --compound {F} --dose-mg 10", 2, "nothing limits the solubility of 'q'"},
       {"option", nullptr, "classify --compound compounds/demo-base.xml --dose-mg 100 --volume-mL 1e-300", 2,
        "--volume-mL: 100 mg in 1e-300 mL is 3.21e+299 mol/L, beyond the 10 mol/L the model covers"},
       {"option", nullptr, "classify --compound compounds/demo-base.xml --dose-mg 4000 --volume-mL 1", 2,
