@@ -8,22 +8,22 @@
 // Sørensen's scale are put on today's scale first (see Table::scale_offset).
 //
 // 1. McIlvaine 1921, "A buffer solution for colorimetric comparison", J. Biol. Chem. 49, 183,
-//    the table of the paper (read in its transcription: x mL 0.2 M Na2HPO4 + (20 - x) mL 0.1 M
+//    the table of the paper (as reproduced in later tables: x mL 0.2 M Na2HPO4 + (20 - x) mL 0.1 M
 //    citric acid; 25 °C as its reproductions state), pH 2.2-8.0, I 0.015-0.58 mol/L.
 //    Hydrogen-electrode pH of 1921 on Sørensen's scale, given to 0.1 pH with volumes read from
 //    a smoothed curve (±0.05), the scale correction (±0.02) and the temperature of the
 //    measurements (room temperature, ±0.01): tolerance 0.08.
 // 2. Sørensen 1909, 1/15 M KH2PO4 + 1/15 M Na2HPO4 (10 mL in all), tabulated with three
-//    decimals (read in a clinical-laboratory reproduction, which gives 20 °C; Sørensen worked
+//    decimals (as reproduced in clinical-laboratory tables, which give 20 °C; Sørensen worked
 //    at 18 °C, recalled from Clark, The Determination of Hydrogen Ions, 1928, to be verified):
 //    solved at 18 °C, I 0.07-0.19 mol/L. Scale correction (±0.02), temperature (±0.006) and
 //    the preparation (±0.01): tolerance 0.04.
 // 3. Gomori 1955, Methods Enzymol. 1, 143, sodium phosphate: x mL 0.2 M Na2HPO4 + (50 - x) mL
-//    0.2 M NaH2PO4 diluted to 100 mL, 25 °C (read in its reproduction from Dawson, Elliott,
+//    0.2 M NaH2PO4 diluted to 100 mL, 25 °C (as reproduced in Dawson, Elliott,
 //    Elliott and Jones, Data for Biochemical Research, 3rd ed. 1986, p. 432), pH 5.8-8.0,
 //    I 0.12-0.29 mol/L; taken as on today's scale. Given to 0.1 pH: tolerance 0.05.
 // 4. Walpole 1914, J. Chem. Soc. 105, 2501, acetate: x mL 0.1 N acetic acid + (200 - x) mL
-//    0.1 N sodium acetate (read in its reproduction after Pearse 1980), 18 °C (recalled from
+//    0.1 N sodium acetate (as reproduced after Pearse 1980), 18 °C (recalled from
 //    Walpole 1914, to be verified), pH 3.6-5.6, I 0.008-0.09 mol/L; Sørensen's scale. Given to
 //    0.1 pH at low ionic strength: tolerance 0.03.
 // 5. Saturated calcium hydroxide at 25 °C, 0.0203 mol/kg, pH(S) 12.454: the NIST/IUPAC
