@@ -123,20 +123,6 @@ AmountUnit parse_unit(std::string_view text, std::string_view what) {
   }
 }
 
-const char* unit_spelling(AmountUnit unit) {
-  switch (unit) {
-    case AmountUnit::kMolar: return "M";
-    case AmountUnit::kMillimolar: return "mM";
-    case AmountUnit::kMicromolar: return "uM";
-    case AmountUnit::kMolal: return "mol/kg";
-    case AmountUnit::kMgPerMl: return "mg/mL";
-    case AmountUnit::kGPerL: return "g/L";
-    case AmountUnit::kUgPerMl: return "ug/mL";
-    case AmountUnit::kPercentWv: return "%w/v";
-  }
-  return "";
-}
-
 bool Amount::is_mass_based() const {
   return unit == AmountUnit::kMgPerMl || unit == AmountUnit::kGPerL ||
          unit == AmountUnit::kUgPerMl || unit == AmountUnit::kPercentWv;

@@ -179,7 +179,7 @@ class Reader {
     }
     // Files are read as strictly as their schema: a number, at most one space, and the unit
     // spelled as the schema spells it (the command line is more lenient).
-    const std::string canon = unit_spelling(a.unit);
+    const std::string canon = unit_symbol(a.unit);
     std::string number = v.size() >= canon.size() && v.compare(v.size() - canon.size(), canon.size(), canon) == 0
                              ? v.substr(0, v.size() - canon.size())
                              : std::string("?");
@@ -288,9 +288,9 @@ Amount unit_attribute(Reader& r, const pugi::xml_node& n) {
   } catch (const InputError& e) {
     r.fail(n, e.message());
   }
-  if (unit != unit_spelling(a.unit)) {
+  if (unit != unit_symbol(a.unit)) {
     r.fail(n, "attribute 'unit' is \"" + unit + "\": write it as the schema spells it, " +
-                  unit_spelling(a.unit) + " (units: M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v)");
+                  unit_symbol(a.unit) + " (units: M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v)");
   }
   return a;
 }

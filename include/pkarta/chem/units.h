@@ -11,9 +11,6 @@ namespace pkarta {
 /// ug/mL (µg/mL also accepted), %w/v (g per 100 mL).
 enum class AmountUnit { kMolar, kMillimolar, kMicromolar, kMolal, kMgPerMl, kGPerL, kUgPerMl, kPercentWv };
 
-/// The unit as the file schemas spell it: M, mM, uM, mol/kg, mg/mL, g/L, ug/mL, %w/v.
-const char* unit_spelling(AmountUnit unit);
-
 /// A value with its unit, as written by the user.
 struct Amount {
   double value = 0.0;
@@ -43,7 +40,7 @@ AmountUnit parse_unit(std::string_view text, std::string_view what);
 /// Parses a finite number (whole string, locale-independent). Throws InputError.
 double parse_number(std::string_view text, std::string_view what);
 
-/// The unit as written in output ("mM", "mg/mL", ...).
+/// The unit as written in output and as the file schemas spell it ("mM", "mg/mL", "ug/mL", ...).
 std::string unit_symbol(AmountUnit unit);
 
 }  // namespace pkarta
