@@ -810,16 +810,12 @@ const char* kMethodNote =
     "from 1 mM unless --round is given), at most max-conc; values are at the recommended strength, "
     "or at max-conc when none is found. pH at 5 and 40 °C: the same totals re-equilibrated. "
     "outside-range: no pKa(T) within target +/- 1. dose-not-soluble: the dose exceeds the drug's "
-    "solubility in water at the target pH. Davies activities; thermodynamic pKa (I = 0) corrected "
-    "for temperature by van 't Hoff.";
+    "solubility in water at the target pH. ";
+const char* kMethodTail = "; thermodynamic pKa (I = 0) corrected for temperature by van 't Hoff.";
 
 /// The method note with the activity model the screen used.
 std::string method_note(ActivityModel activity) {
-  std::string s = kMethodNote;
-  const std::string davies = "Davies activities";
-  const std::size_t at = s.find(davies);
-  if (at != std::string::npos) s.replace(at, davies.size(), activity_words(activity));
-  return s;
+  return kMethodNote + activity_words(activity) + kMethodTail;
 }
 
 const char* kOsmolalityNote =
@@ -928,7 +924,7 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
 
 }  // namespace
 
-const char* screen_method_note() { return kMethodNote; }
+std::string screen_method_note(ActivityModel activity) { return method_note(activity); }
 const char* screen_osmolality_note() { return kOsmolalityNote; }
 
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out) {

@@ -68,7 +68,9 @@ std::vector<DataTable> screen_tables(const std::vector<ScreenReport>& reports, c
               {"buffer", "nominal_status", "nominal_min_conc_mol_per_L", "min_conc_p05_mol_per_L",
                "min_conc_p50_mol_per_L", "min_conc_p95_mol_per_L", "min_conc_p95_flag", "ok_fraction"},
               {}};
-  std::vector<std::string> notes = {screen_method_note(), screen_osmolality_note()};
+  std::vector<std::string> notes = {
+      screen_method_note(reports.empty() ? kDefaultActivityModel : reports.front().activity),
+      screen_osmolality_note()};
   if (bands) {
     for (const ScreenBand& x : bands->buffers) {
       b.add({x.buffer, x.nominal_status, full(x.nominal_min_conc_mol_per_L), full(x.p05_mol_per_L),

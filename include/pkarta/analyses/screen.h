@@ -263,7 +263,7 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
 void write_screen_near_misses(const ScreenReport& rep, std::ostream& out);
 void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out);
 /// The method note and the osmolality note the writers end with.
-const char* screen_method_note();
+std::string screen_method_note(ActivityModel activity);
 const char* screen_osmolality_note();
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
 
