@@ -1124,6 +1124,7 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
     ds.dose_mol_per_L = d.dose_mol_per_L;
     ds.dissolved_mol_per_L = p.dissolved;
     ds.dissolved_mg_per_mL = p.dissolved * d.compound.molar_mass_g_per_mol;
+    ds.dose_mg_per_mL = d.dose_mol_per_L * d.compound.molar_mass_g_per_mol;
     ds.free_solid_mol_per_L = p.free_solid;
     ds.salt_solid_mol_per_L = p.salt_drug;
     ds.salt_solids_mol_per_L.assign(d.compound.salts.size(), 0.0);

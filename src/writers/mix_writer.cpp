@@ -28,6 +28,8 @@ void write_mix_text(const MixResult& r, std::ostream& out) {
     out << "\nDrug" << (r.drug_name.empty() ? "" : " (" + r.drug_name + ")") << "\n";
     TextTable dt({"quantity", "value"});
     dt.add_row({"dose (mol/L)", sig(d.dose_mol_per_L, 4)});
+    // The same basis as the dissolved amount below, so that a salt's dose does not read as a loss.
+    dt.add_row({"dose, as free form (mg/mL)", sig(d.dose_mg_per_mL, 4)});
     dt.add_row({"dissolved (mol/L)", sig(d.dissolved_mol_per_L, 4)});
     dt.add_row({"dissolved, as free form (mg/mL)", sig(d.dissolved_mg_per_mL, 4)});
     dt.add_row({"solid remaining", d.solid});
@@ -76,6 +78,7 @@ void write_mix_json(const MixResult& r, std::ostream& out) {
                  {"dissolved_mol_per_L", e.drug->dissolved_mol_per_L},
                  {"dissolved_mg_per_mL", e.drug->dissolved_mg_per_mL},
                  {"dissolved_mg_per_mL_as_free_form", e.drug->dissolved_mg_per_mL},
+                 {"dose_mg_per_mL_as_free_form", e.drug->dose_mg_per_mL},
                  {"solid", e.drug->solid},
                  {"saturation_ratio", e.drug->saturation_ratio}};
   } else {

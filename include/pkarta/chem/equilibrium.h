@@ -101,6 +101,7 @@ struct DrugState {
   double dose_mol_per_L = 0.0;
   double dissolved_mol_per_L = 0.0;
   double dissolved_mg_per_mL = 0.0;       ///< as the free form
+  double dose_mg_per_mL = 0.0;            ///< the whole dose, as the free form
   SolidSet solids;                        ///< the solids present
   std::string solid = "none";             ///< to_string(solids, compound)
   double free_solid_mol_per_L = 0.0;      ///< undissolved free form
