@@ -10,6 +10,7 @@
 
 #include "pkarta/base/error.h"
 #include "pkarta/base/format.h"
+#include "pkarta/base/limits.h"
 #include "pkarta/base/suggest.h"
 #include "pkarta/base/version.h"
 #include "pkarta/chem/equilibrium.h"

@@ -5,6 +5,7 @@
 #include <cstdio>
 #include <limits>
 
+#include "pkarta/base/limits.h"
 #include "pkarta/base/format.h"
 #include "pkarta/chem/water.h"
 
@@ -719,7 +720,7 @@ Profile compute_profile(const Compound& compound, const Library& library,
   int count = 0;
   std::string span;
   if (conditions.activity == ActivityModel::kDavies) {
-    span = where_points(p.points, [](const ProfilePoint& x) { return x.ionic_strength_mol_per_L > 0.5; }, &count);
+    span = where_points(p.points, [](const ProfilePoint& x) { return x.ionic_strength_mol_per_L > kDaviesMaxIonicStrength; }, &count);
     if (count > 0) {
       p.warnings.push_back("ionic strength above 0.5 mol/L at " + std::to_string(count) + " of " +
                            std::to_string(p.points.size()) + " points (" + span +
@@ -732,7 +733,7 @@ Profile compute_profile(const Compound& compound, const Library& library,
                          std::to_string(count) + " of " + std::to_string(p.points.size()) + " points (" +
                          span + "): nothing limits there; reported at the cap");
   }
-  if (T < 0.0 || T > 60.0) {
+  if (T < kDataMinTemperatureC || T > kDataMaxTemperatureC) {
     p.warnings.push_back("temperature " + temp_text(T) +
                          " is outside 0-60 °C, the validity range of the water and pKa(T) data");
   }

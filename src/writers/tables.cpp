@@ -3,13 +3,12 @@
 
 #include <cmath>
 
+#include "pkarta/base/limits.h"
 #include "pkarta/chem/water.h"
 
 namespace pkarta {
-
 namespace {
 
-constexpr double kDaviesLimit_mol_per_L = 0.5;  // docs/model.md, "Activity"
 
 std::string join_words(const std::vector<std::string>& words, const char* sep = " ") {
   std::string s;
@@ -39,7 +38,7 @@ std::vector<DataTable> mix_tables(const std::vector<MixResult>& results) {
     const Equilibrium& e = r.equilibrium;
     const bool d = e.drug.has_value();
     state.add({full(e.temperature_C), full(e.pH), full(e.ionic_strength_mol_per_L),
-               e.ionic_strength_mol_per_L > kDaviesLimit_mol_per_L ? kOutsideActivityRangeFlag : "",
+               e.ionic_strength_mol_per_L > kDaviesMaxIonicStrength ? kOutsideActivityRangeFlag : "",
                full(e.osmolarity_mOsm_per_L), full(r.osmolality_estimate_mOsm_per_kg),
                full(r.capacity_mol_per_L_per_pH), d ? full(e.drug->dose_mol_per_L) : "",
                d ? full(e.drug->dissolved_mol_per_L) : "", d ? full(e.drug->dissolved_mg_per_mL) : "",
@@ -81,7 +80,7 @@ std::vector<DataTable> profile_tables(const Profile& p, const ProfileBands& band
         pt.ideal_solubility_mol_per_L >= kSolubilityCap_mol_per_L ? kCappedFlag : "",
         pt.limiting_solid,
         full(pt.ionic_strength_mol_per_L),
-        davies && pt.ionic_strength_mol_per_L > kDaviesLimit_mol_per_L ? kOutsideActivityRangeFlag : "",
+        davies && pt.ionic_strength_mol_per_L > kDaviesMaxIonicStrength ? kOutsideActivityRangeFlag : "",
         pt.titrant_mol_per_L > 0 ? p.base_titrant : (pt.titrant_mol_per_L < 0 ? p.acid_titrant : ""),
         full(std::fabs(pt.titrant_mol_per_L)),
         boolean(pt.capped)};
