@@ -221,10 +221,7 @@ struct SolubilityScanner::Impl {
 
   // Dissolved drug with salt s limiting and its counterion at x (mol/L): (alpha_js D)^m x^n = Ksp'.
   static double salt_limited(const SaltData& s, double ksp, double alpha_js, double x) {
-    if (s.m == 1 && s.n == 1) return ksp / (alpha_js * x);
-    double xn = 1.0;
-    for (int i = 0; i < s.n; ++i) xn *= x;
-    return std::pow(ksp / xn, 1.0 / s.m) / alpha_js;
+    return salt_limited_solubility(ksp, s.m, s.n, alpha_js, x);
   }
 
   SolubilityAtPh at(double pH);

@@ -95,9 +95,7 @@ double EquilibriumModel::solubility_limit(double pH, int* limiting) const {
       const SaltPhase& p = salts_[k];
       const double x = component_total(p.comp);
       if (!(x > 0) || !(alpha[p.species] > 0) || !std::isfinite(kq[k])) continue;
-      const double limit = (p.m == 1 && p.n == 1)
-                               ? kq[k] / (alpha[p.species] * x)
-                               : std::pow(kq[k] / ipow(x, p.n), 1.0 / p.m) / alpha[p.species];
+      const double limit = salt_limited_solubility(kq[k], p.m, p.n, alpha[p.species], x);
       if (limit < best) {
         best = limit;
         which = p.index;

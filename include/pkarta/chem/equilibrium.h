@@ -8,6 +8,7 @@
 #define PKARTA_EQUILIBRIUM_H_
 
 #include <array>
+#include <cmath>
 #include <cstdint>
 #include <optional>
 #include <string>
@@ -324,6 +325,17 @@ void resolve_salt_ksp(Compound& compound, const Library& library);
 
 /// The salt's Ksp at temperature T (van 't Hoff with its dH of dissolution, else constant).
 double salt_ksp_at(const Salt& salt, double temperature_C);
+
+/// Dissolved drug (mol/L) with an m:n salt at saturation: D from (alpha_j D)^m x^n = Ksp', with
+/// Ksp' the concentration product, alpha_j the fraction of the drug species in the salt and x
+/// the counterion species' concentration (mol/L). The one formula of every salt-limited
+/// solubility (the solver's solubility_limit, the profile and the dilution).
+inline double salt_limited_solubility(double ksp_conc, int m, int n, double alpha_j, double x) {
+  if (m == 1 && n == 1) return ksp_conc / (alpha_j * x);
+  double xn = 1.0;
+  for (int i = 0; i < n; ++i) xn *= x;
+  return std::pow(ksp_conc / xn, 1.0 / m) / alpha_j;
+}
 
 /// The molar mass of a drug form: the free form, or a salt (given, or free + counterion).
 double form_molar_mass(const Compound& compound, const std::string& form, const Library& library);
