@@ -25,6 +25,12 @@ inline double ipow(double x, int k) {
   return r;
 }
 
+/// Sets the leading n x (n + 1) block of an augmented matrix to zero (only that block is used:
+/// zeroing the whole array cost more than the solve itself).
+inline void zero_augmented(int n, double (*a)[2 * kMaxComp + 1]) {
+  for (int r = 0; r < n; ++r) std::fill(a[r], a[r] + n + 1, 0.0);
+}
+
 /// Solves the dense system a x = b (n <= 2 kMaxComp) by Gaussian elimination with partial
 /// pivoting; false when it is singular.
 inline bool solve_dense(int n, double (*a)[2 * kMaxComp + 1], double* x) {

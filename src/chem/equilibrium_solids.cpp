@@ -17,6 +17,7 @@ using equilibrium_detail::kEps;
 using equilibrium_detail::kMaxComp;
 using equilibrium_detail::ipow;
 using equilibrium_detail::solve_dense;
+using equilibrium_detail::zero_augmented;
 
 double EquilibriumModel::ion_removed(const Partition& p, int ion) const {
   double removed = 0.0;
@@ -139,7 +140,8 @@ bool EquilibriumModel::partition_slope(const Partition& p, double h, double zb, 
   }
   double sys_zb[kMaxSalts] = {}, sys_var[kMaxSalts] = {};
   const int dim = ncl + ns;
-  double a[2 * kMaxComp][2 * kMaxComp + 1] = {};
+  double a[2 * kMaxComp][2 * kMaxComp + 1];
+  zero_augmented(dim, a);
   for (int l = 0; l < ncl; ++l) {
     if (!(conc[l] > 0)) return false;
     a[l][l] = conc[l];
@@ -276,7 +278,8 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
       }
     }
     // Constraints: nu . mu = logk for each solid present.
-    double nu[kMaxComp][kMaxComp] = {};
+    double nu[kMaxComp][kMaxComp];
+    for (int r = 0; r <= static_cast<int>(salts_.size()); ++r) std::fill(nu[r], nu[r] + ncl, 0.0);
     double logk[kMaxComp];
     int solid_of[kMaxComp];  // -1 free, else model salt
     int ns = 0;
@@ -299,14 +302,38 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
       if (!(tot[l] > 0)) return false;
       mu[l] = std::log(tot[l]);
     }
-    // Warm start from the last solution of the same active set (the previous evaluation).
-    if (subset == warm_subset_) {
-      for (int l = 0; l < ncl; ++l) mu[l] = std::min(warm_mu_[l], mu[l] + 1.0);
-    }
+    // As many solids as components (the phase rule's limit): the solubility products alone fix
+    // the potentials, nu mu = logk, and the mass balances the solid amounts, nu^T lam = T - c.
     const int dim = ncl + ns;
     bool converged = false;
+    if (ns == ncl) {
+      double a[2 * kMaxComp][2 * kMaxComp + 1];
+      zero_augmented(ncl, a);
+      double sol[2 * kMaxComp];
+      for (int r = 0; r < ns; ++r) {
+        for (int l = 0; l < ncl; ++l) a[r][l] = nu[r][l];
+        a[r][ncl] = logk[r];
+      }
+      if (!solve_dense(ncl, a, sol)) return false;
+      double c[kMaxComp];
+      for (int l = 0; l < ncl; ++l) {
+        mu[l] = sol[l];
+        c[l] = std::exp(mu[l]);
+      }
+      for (int l = 0; l < ncl; ++l) {
+        for (int r = 0; r < ns; ++r) a[l][r] = nu[r][l];
+        a[l][ns] = tot[l] - c[l];
+      }
+      if (!solve_dense(ns, a, lam)) return false;
+      converged = true;
+    }
+    // Warm start from the last solution of the same active set (the previous evaluation).
+    if (!converged && subset == warm_subset_) {
+      for (int l = 0; l < ncl; ++l) mu[l] = std::min(warm_mu_[l], mu[l] + 1.0);
+    }
     for (int it = 0; it < 60 && !converged; ++it) {
-      double a[2 * kMaxComp][2 * kMaxComp + 1] = {};
+      double a[2 * kMaxComp][2 * kMaxComp + 1];
+      zero_augmented(dim, a);
       double c[kMaxComp];
       for (int l = 0; l < ncl; ++l) {
         c[l] = std::exp(mu[l]);
