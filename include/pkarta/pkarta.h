@@ -39,6 +39,8 @@
 #include "pkarta/writers/fit_writer.h"
 #include "pkarta/writers/mix_writer.h"
 #include "pkarta/writers/profile_writer.h"
+#include "pkarta/writers/recipe_writer.h"
+#include "pkarta/writers/screen_writer.h"
 #include "pkarta/writers/uncertainty_writer.h"
 #include "pkarta/report/report.h"
 #include "pkarta/report/svg_chart.h"

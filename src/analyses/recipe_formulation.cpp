@@ -2,9 +2,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <sstream>
-
-#include <nlohmann/json.hpp>
 
 #include "pkarta/analyses/mix.h"
 #include "pkarta/analyses/profile.h"
@@ -243,81 +240,6 @@ Formulation make_formulation(const Library& library, const RecipeOptions& option
   }
   f.steps.push_back("Make up to " + volume + " with water, mix, and check the pH again.");
   return f;
-}
-
-void write_formulation_text(const Formulation& f, std::ostream& out) {
-  std::ostringstream rec;
-  write_recipe_text(f.recipe, rec);
-  std::string text = rec.str();
-  // The buffer recipe first (without its closing caution), then the formulation.
-  const std::size_t caution = text.rfind("\nCaution:");
-  const std::string tail = caution == std::string::npos ? std::string() : text.substr(caution);
-  if (caution != std::string::npos) text.erase(caution);
-  out << text << "\n";
-  out << "Formulation: " << f.drug.id << " " << (f.drug.form == "free" ? "free form" : f.drug.form) << ", "
-      << sig(f.drug.dose_mol_per_L * f.drug.molar_mass_g_per_mol, 4) << " mg/mL (" << sig(f.drug.dose_mol_per_L, 4)
-      << " mol/L); preparation " << screen_preparation_name(f.preparation) << "\n";
-  out << "  drug to weigh: " << sig(f.drug.mass_g, 4) << " g (" << sig(f.drug.amount_mol * 1e3, 4) << " mmol, "
-      << sig(f.drug.molar_mass_g_per_mol, 6) << " g/mol as weighed)\n";
-  if (f.recipe.titrant) {
-    out << "  titrant: " << sig(f.recipe.titrant->volume_mL, 4) << " mL of " << sig(f.recipe.titrant->conc_mol_per_L, 3)
-        << " M " << f.recipe.titrant->id << "\n";
-  }
-  out << "  order of addition:\n";
-  for (std::size_t i = 0; i < f.steps.size(); ++i) out << "    " << i + 1 << ". " << f.steps[i] << "\n";
-  out << "  predicted pH: " << fixed(f.pH_low, 2) << " at " << fixed(f.low_temperature_C, 0) << " °C, " << fixed(f.pH, 2)
-      << " at " << fixed(f.recipe.temperature_C, 0) << " °C, " << fixed(f.pH_high, 2) << " at "
-      << fixed(f.high_temperature_C, 0) << " °C\n";
-  out << "  osmolality estimate: " << fixed(f.osmolality_estimate_mOsm_per_kg, 0) << " mOsm/kg (to be measured)\n";
-  out << "  buffer capacity: " << sig(f.capacity_mol_per_L_per_pH * 1e3, 3) << " mM per pH\n";
-  out << "  solubility margin: dose / solubility in water at pH " << fixed(f.pH, 2) << " = "
-      << sig(f.solubility_margin, 3) << " (solubility " << sig(f.solubility_at_pH_mol_per_L, 3) << " mol/L)\n";
-  out << "  solid expected: " << f.solid << "\n";
-  if (!f.tonicity_note.empty()) out << "  tonicity: " << f.tonicity_note << "\n";
-  for (const std::string& w : f.warnings) out << "  warning: " << w << "\n";
-  out << tail;
-}
-
-void write_formulation_json(const Formulation& f, std::ostream& out) {
-  std::ostringstream rec;
-  write_recipe_json(f.recipe, rec);
-  nlohmann::ordered_json j = nlohmann::ordered_json::parse(rec.str());
-  nlohmann::ordered_json d;
-  d["id"] = f.drug.id;
-  d["form"] = f.drug.form;
-  d["mass_g"] = f.drug.mass_g;
-  d["amount_mol"] = f.drug.amount_mol;
-  d["dose_mol_per_L"] = f.drug.dose_mol_per_L;
-  d["molar_mass_g_per_mol"] = f.drug.molar_mass_g_per_mol;
-  j["drug"] = d;
-  j["preparation"] = screen_preparation_name(f.preparation);
-  auto num = [](double v) { return std::isfinite(v) ? nlohmann::ordered_json(v) : nlohmann::ordered_json(); };
-  j["formulation"] = {{"pH", num(f.pH)},
-                      {"pH_low", num(f.pH_low)},
-                      {"pH_high", num(f.pH_high)},
-                      {"low_temperature_C", f.low_temperature_C},
-                      {"high_temperature_C", f.high_temperature_C},
-                      {"ionic_strength_mol_per_L", num(f.ionic_strength_mol_per_L)},
-                      {"osmolality_estimate_mOsm_per_kg", num(f.osmolality_estimate_mOsm_per_kg)},
-                      {"capacity_mol_per_L_per_pH", num(f.capacity_mol_per_L_per_pH)},
-                      {"solubility_at_pH_mol_per_L", num(f.solubility_at_pH_mol_per_L)},
-                      {"solubility_margin", num(f.solubility_margin)},
-                      {"saturation_ratio", num(f.saturation_ratio)},
-                      {"solid", f.solid},
-                      {"tonicity_note", f.tonicity_note},
-                      {"steps", f.steps},
-                      {"warnings", f.warnings}};
-  out << j.dump(2) << "\n";
-}
-
-void write_formulation_csv(const Formulation& f, std::ostream& out) {
-  write_recipe_csv(f.recipe, out);
-  out << "\r\n";
-  write_csv_row(out, {"drug", "form", "mass (g)", "amount (mol)", "preparation", "pH", "pH low T", "pH high T",
-                      "osmolality estimate (mOsm/kg)", "solubility margin", "solid"});
-  write_csv_row(out, {f.drug.id, f.drug.form, sig(f.drug.mass_g, 6), sig(f.drug.amount_mol, 6),
-                      screen_preparation_name(f.preparation), fixed(f.pH, 4), fixed(f.pH_low, 4), fixed(f.pH_high, 4),
-                      fixed(f.osmolality_estimate_mOsm_per_kg, 2), sig(f.solubility_margin, 4), f.solid});
 }
 
 }  // namespace pkarta

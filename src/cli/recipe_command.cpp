@@ -10,6 +10,7 @@
 #include "pkarta/analyses/recipe.h"
 #include "pkarta/analyses/recipe_formulation.h"
 #include "pkarta/chem/mixture_builder.h"
+#include "pkarta/writers/recipe_writer.h"
 
 namespace pkarta::cli {
 

@@ -12,6 +12,7 @@
 #include "pkarta/base/format.h"
 #include "pkarta/analyses/screen.h"
 #include "pkarta/analyses/uncertainty.h"
+#include "pkarta/writers/screen_writer.h"
 #include "pkarta/writers/tables.h"
 #include "progress_bar.h"
 

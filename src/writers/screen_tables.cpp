@@ -2,6 +2,7 @@
 #include <cmath>
 
 #include "pkarta/chem/water.h"
+#include "pkarta/writers/screen_writer.h"
 #include "pkarta/writers/tables.h"
 
 namespace pkarta {

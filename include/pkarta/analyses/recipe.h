@@ -111,10 +111,7 @@ Mixture recipe_mixture(const Library& library, const Recipe& recipe,
 /// Throws InputError (without location) for no unit, an unknown unit, or a volume <= 0.
 double parse_volume_L(std::string_view text);
 
-/// Writers: text (with a bench procedure), CSV, JSON (keys in docs/commands.md).
-void write_recipe_text(const Recipe& recipe, std::ostream& out);
-void write_recipe_csv(const Recipe& recipe, std::ostream& out);
-void write_recipe_json(const Recipe& recipe, std::ostream& out);
+// The text, CSV and JSON writers of a recipe: pkarta/writers/recipe_writer.h.
 
 }  // namespace pkarta
 

@@ -70,11 +70,7 @@ Formulation make_formulation(const Library& library, const RecipeOptions& option
 Mixture formulation_mixture(const Library& library, const Formulation& f, const Compound& compound,
                             ActivityModel activity = ActivityModel::kDavies);
 
-/// Writers: the recipe's own text/JSON/CSV plus the drug, the order of addition and the
-/// formulation's computed values (JSON adds "drug" and keeps "titrant").
-void write_formulation_text(const Formulation& f, std::ostream& out);
-void write_formulation_csv(const Formulation& f, std::ostream& out);
-void write_formulation_json(const Formulation& f, std::ostream& out);
+// The text, CSV and JSON writers of a formulation: pkarta/writers/recipe_writer.h.
 
 }  // namespace pkarta
 

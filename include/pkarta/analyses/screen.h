@@ -252,20 +252,10 @@ std::string screen_criterion_value_text(const ScreenCriterion& criterion);
 /// location) unless the result lies in [0, 1).
 double parse_dose_range(std::string_view text);
 
-/// Writers: text tables, CSV (one row per compound and buffer), JSON (docs/commands.md
-/// keys; one compound gives the stable object, several give {"screens": [...]}).
-void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out);
-/// With `wide` every column of the screen (capacity, ionic strength, osmolality, storage pH,
-/// drug solid, routes...); without, the columns that fit 100 text columns (as the overload above).
-void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out, bool wide);
 /// When no buffer is ok: the closest candidates (pH deviation at max-conc, criteria failing);
 /// nothing otherwise.
 void write_screen_near_misses(const ScreenReport& rep, std::ostream& out);
-void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out);
-/// The method note and the osmolality note the writers end with.
-std::string screen_method_note(ActivityModel activity);
-const char* screen_osmolality_note();
-void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
+// The text, CSV and JSON writers of the screen: pkarta/writers/screen_writer.h.
 
 }  // namespace pkarta
 

@@ -1,0 +1,334 @@
+// Text, CSV and JSON of the buffer screen (`pkarta screen`).
+#include "pkarta/writers/screen_writer.h"
+
+#include <algorithm>
+#include <cmath>
+
+#include <nlohmann/json.hpp>
+
+#include "pkarta/analyses/mix.h"
+#include "pkarta/base/format.h"
+#include "pkarta/chem/water.h"
+
+namespace pkarta {
+
+namespace {
+
+std::string routes_text(const std::vector<std::string>& routes) {
+  std::string s;
+  for (const std::string& r : routes) s += (s.empty() ? "" : " ") + r;
+  return s;
+}
+
+double osmolality_estimate(double osmolarity_mOsm_per_L, double temperature_C) {
+  return kOsmoticCoefficient * osmolarity_mOsm_per_L / water_density_kg_per_L(temperature_C);
+}
+
+// Word-wraps a paragraph at `width` columns.
+void write_wrapped(std::ostream& out, const std::string& text, std::size_t width = 100) {
+  std::size_t col = 0;
+  std::size_t i = 0;
+  while (i < text.size()) {
+    const std::size_t j = std::min(text.find(' ', i), text.size());
+    const std::string word = text.substr(i, j - i);
+    if (col > 0 && col + 1 + word.size() > width) {
+      out << "\n";
+      col = 0;
+    } else if (col > 0) {
+      out << ' ';
+      ++col;
+    }
+    out << word;
+    col += word.size();
+    i = j + 1;
+  }
+  out << "\n";
+}
+
+bool is_solid_warning(const std::string& w) { return w.rfind("the dose does not dissolve completely", 0) == 0; }
+
+std::string form_text(const ScreenReport& rep) { return rep.form == "free" ? "free form" : rep.form; }
+
+const char* kMethodNote =
+    "Each buffer: its system at total concentration C in the net-neutral form, plus the one "
+    "titrant that brings it alone to the target pH at the run temperature (preparation premade), "
+    "or that brings buffer and dose together to the target (adjusted); then the dose (with its "
+    "salt's counterion) is added and the closed system equilibrated, solids allowed. Criteria, "
+    "each met by the smallest C from 1e-6 M to the buffer's max-conc above which it holds: the "
+    "dose (pH within the tolerance), the dose range (worst pH within it), an acid and a base "
+    "challenge (strong acid, then strong base, added to the finished formulation: pH within the "
+    "tolerance; about challenge / capacity for small loads), optionally a minimum capacity and "
+    "the pH at the storage temperatures. min conc: the largest of these minima (set by: its "
+    "criterion); recommended: min conc rounded up to a practical strength (1-2-5 series in mM "
+    "from 1 mM unless --round is given), at most max-conc; values are at the recommended strength, "
+    "or at max-conc when none is found. pH at 5 and 40 °C: the same totals re-equilibrated. "
+    "outside-range: no pKa(T) within target +/- 1. dose-not-soluble: the dose exceeds the drug's "
+    "solubility in water at the target pH. ";
+const char* kMethodTail = "; thermodynamic pKa (I = 0) corrected for temperature by van 't Hoff.";
+
+/// The method note with the activity model the screen used.
+std::string method_note(ActivityModel activity) {
+  return kMethodNote + activity_words(activity) + kMethodTail;
+}
+
+const char* kOsmolalityNote =
+    "Osmolarity is ideal (sum of dissolved species); osmolality estimate = 0.93 x osmolarity / "
+    "density of water, an estimate that must be measured.";
+
+// Per buffer that was searched: each criterion's value and verdict at the strength used.
+void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
+  bool any = false;
+  for (const ScreenResult& r : rep.results) {
+    if (r.criteria.empty() || r.status == ScreenStatus::kOutsideRange) continue;
+    if (!any) out << "\n  criteria (value at the strength shown, pass/fail, minimum strength meeting it):\n";
+    any = true;
+    std::string line = "  " + r.buffer + " at " + sig(1e3 * r.conc_used_mol_per_L, 3) + " mM" +
+                       (r.recommended_conc_mol_per_L ? "" : " (max-conc)") + ":";
+    for (const ScreenCriterion& c : r.criteria) {
+      line += " " + c.id + " " + screen_criterion_value_text(c) + " " + (c.pass ? "pass" : "FAIL") + " (" +
+              (c.min_conc_mol_per_L ? (c.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *c.min_conc_mol_per_L, 3) + " mM"
+                                    : "not met") + ");";
+    }
+    line.pop_back();
+    out << line << "\n";
+  }
+}
+
+nlohmann::ordered_json opt_number(const std::optional<double>& v) {
+  if (!v || !std::isfinite(*v)) return nullptr;
+  return *v;
+}
+
+nlohmann::ordered_json number(double v) {
+  if (!std::isfinite(v)) return nullptr;
+  return v;
+}
+
+nlohmann::ordered_json report_json(const ScreenReport& rep) {
+  nlohmann::ordered_json j;
+  j["compound"] = rep.compound_id;
+  j["compound_name"] = rep.compound_name;
+  j["compound_file"] = rep.compound_file;
+  j["form"] = rep.form;
+  j["target_pH"] = rep.target_pH;
+  j["tolerance_pH"] = rep.tolerance_pH;
+  j["temperature_C"] = rep.temperature_C;
+  j["dose_mol_per_L"] = rep.dose_mol_per_L;
+  if (rep.dose_range_fraction > 0) j["dose_range_fraction"] = rep.dose_range_fraction;
+  j["route"] = rep.route;
+  j["preparation"] = screen_preparation_name(rep.preparation);
+  j["challenge_mol_per_L"] = rep.challenge_mol_per_L;
+  if (rep.min_capacity_mol_per_L_per_pH > 0) j["min_capacity_mol_per_L_per_pH"] = rep.min_capacity_mol_per_L_per_pH;
+  if (rep.max_drift_pH) j["max_drift_pH"] = *rep.max_drift_pH;
+  j["solubility_at_target_pH_mol_per_L"] = number(rep.solubility_at_target_mol_per_L);
+  nlohmann::ordered_json results = nlohmann::ordered_json::array();
+  int rank = 0;
+  for (const ScreenResult& r : rep.results) {
+    nlohmann::ordered_json x;
+    x["rank"] = ++rank;
+    x["buffer"] = r.buffer;
+    x["name"] = r.name;
+    x["status"] = screen_status_name(r.status);
+    x["min_conc_mol_per_L"] = opt_number(r.min_conc_mol_per_L);
+    x["min_conc_at_lower_bound"] = r.min_conc_at_lower_bound;
+    x["conc_used_mol_per_L"] = r.conc_used_mol_per_L;
+    x["max_conc_mol_per_L"] = r.max_conc_mol_per_L;
+    x["titrant"] = r.titrant.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.titrant);
+    x["titrant_mol_per_L"] = r.titrant_mol_per_L;
+    x["nearest_pKa"] = number(r.nearest_pka);
+    x["pH_after_drug"] = number(r.pH_after_drug);
+    x["pH_drift"] = number(r.pH_drift);
+    x["capacity_mol_per_L_per_pH"] = number(r.capacity_mol_per_L_per_pH);
+    x["ionic_strength_mol_per_L"] = number(r.ionic_strength_mol_per_L);
+    x["osmolarity_mOsm_per_L"] = number(r.osmolarity_mOsm_per_L);
+    x["osmolality_estimate_mOsm_per_kg"] = number(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C));
+    x["pH_at_5C"] = number(r.pH_at_5C);
+    x["pH_at_40C"] = number(r.pH_at_40C);
+    x["drug_solid"] = r.drug_solid;
+    if (rep.dose_range_fraction > 0) {
+      x["worst_pH_in_dose_range"] = opt_number(r.worst_pH_in_dose_range);
+      x["dose_range_within_tolerance"] = r.dose_range_within_tolerance;
+    }
+    x["binding"] = r.binding.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.binding);
+    x["recommended_conc_mol_per_L"] = opt_number(r.recommended_conc_mol_per_L);
+    x["pH_after_acid_challenge"] = number(r.pH_after_acid_challenge);
+    x["pH_after_base_challenge"] = number(r.pH_after_base_challenge);
+    nlohmann::ordered_json crit = nlohmann::ordered_json::object();
+    for (const ScreenCriterion& c : r.criteria) {
+      nlohmann::ordered_json y;
+      y["quantity"] = c.quantity;
+      y["value"] = number(c.value);
+      y["limit_low"] = number(c.limit_low);
+      y["limit_high"] = number(c.limit_high);
+      y["pass"] = c.pass;
+      y["min_conc_mol_per_L"] = opt_number(c.min_conc_mol_per_L);
+      crit[c.id] = y;
+    }
+    x["criteria"] = crit;
+    x["route_flags"] = r.route_flags;
+    x["routes"] = r.routes;
+    x["warnings"] = r.warnings;
+    results.push_back(x);
+  }
+  j["results"] = results;
+  j["warnings"] = rep.warnings;
+  return j;
+}
+
+}  // namespace
+
+std::string screen_method_note(ActivityModel activity) { return method_note(activity); }
+const char* screen_osmolality_note() { return kOsmolalityNote; }
+
+void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  nlohmann::ordered_json j;
+  if (reports.size() == 1) {
+    j = report_json(reports.front());
+  } else {
+    if (!reports.empty()) {
+      j["target_pH"] = reports.front().target_pH;
+      j["tolerance_pH"] = reports.front().tolerance_pH;
+      j["temperature_C"] = reports.front().temperature_C;
+    }
+    nlohmann::ordered_json all = nlohmann::ordered_json::array();
+    for (const ScreenReport& rep : reports) all.push_back(report_json(rep));
+    j["screens"] = all;
+  }
+  j["method"] = method_note(reports.empty() ? kDefaultActivityModel : reports.front().activity);
+  j["osmolality_note"] = kOsmolalityNote;
+  j["caution"] = caution_text();
+  out << j.dump(2) << "\n";
+}
+
+void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  write_screen_text(reports, out, false);
+}
+
+void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out, bool wide) {
+  bool first = true;
+  for (const ScreenReport& rep : reports) {
+    if (!first) out << "\n";
+    first = false;
+    out << "Buffer screen: " << rep.compound_name << " (" << rep.compound_id << "), " << form_text(rep)
+        << ", dose " << sig(rep.dose_mol_per_L, 4) << " mol/L\n";
+    out << "  target pH " << fixed(rep.target_pH, 2) << " +/- " << fixed(rep.tolerance_pH, 2) << " at "
+        << fixed(rep.temperature_C, 1) << " °C; route: " << rep.route << "; solubility in water at pH "
+        << fixed(rep.target_pH, 2) << ": " << sig(rep.solubility_at_target_mol_per_L, 3) << " mol/L\n\n";
+    out << "  preparation: " << screen_preparation_name(rep.preparation) << "; challenge: "
+        << (rep.challenge_mol_per_L > 0 ? sig(1e3 * rep.challenge_mol_per_L, 3) + " mM strong acid and base" : "off");
+    if (rep.min_capacity_mol_per_L_per_pH > 0) {
+      out << "; min capacity " << sig(1e3 * rep.min_capacity_mol_per_L_per_pH, 3) << " mM/pH";
+    }
+    if (rep.max_drift_pH) out << "; max drift in storage " << fixed(*rep.max_drift_pH, 2) << " pH";
+    out << "\n\n";
+    const bool challenge = rep.challenge_mol_per_L > 0 && wide;
+    // The default table fits 100 columns; --wide adds the other columns of the screen.
+    std::vector<std::string> head = {"rank", "buffer", "status", "min conc (mM)",
+                                     wide ? "recommended (mM)" : "rec. (mM)", "set by",
+                                     wide ? "pH after drug" : "pH w/ drug"};
+    if (challenge) {
+      head.push_back("pH +acid");
+      head.push_back("pH +base");
+    }
+    if (wide) {
+      for (const char* h : {"capacity (mM/pH)", "I (mM)", "osmolality (mOsm/kg)"}) head.push_back(h);
+      for (const std::string& h : std::vector<std::string>{
+                                       "pH " + fixed(rep.low_temperature_C, 0) + " °C",
+                                       "pH " + fixed(rep.high_temperature_C, 0) + " °C", "drug solid"}) {
+        head.push_back(h);
+      }
+    }
+    const bool dose_range = rep.dose_range_fraction > 0 && wide;
+    if (dose_range) head.push_back("worst pH, dose +/-" + fixed(100 * rep.dose_range_fraction, 0) + "%");
+    if (wide) head.push_back("routes");
+    TextTable t(head);
+    if (wide) t.set_max_width(0);
+    int rank = 0;
+    for (const ScreenResult& r : rep.results) {
+      std::vector<std::string> row = {
+          std::to_string(++rank), r.buffer, screen_status_name(r.status),
+          r.min_conc_mol_per_L ? (r.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *r.min_conc_mol_per_L, 3) : "n/a",
+          r.recommended_conc_mol_per_L ? sig(1e3 * *r.recommended_conc_mol_per_L, 3) : "n/a",
+          r.recommended_conc_mol_per_L ? r.binding : (r.binding.empty() ? "" : "fails " + r.binding),
+          fixed(r.pH_after_drug, 3)};
+      if (challenge) {
+        row.push_back(fixed(r.pH_after_acid_challenge, 3));
+        row.push_back(fixed(r.pH_after_base_challenge, 3));
+      }
+      if (wide) {
+        for (const std::string& v : {sig(1e3 * r.capacity_mol_per_L_per_pH, 3), sig(1e3 * r.ionic_strength_mol_per_L, 3),
+                                     fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 0),
+                                     fixed(r.pH_at_5C, 3), fixed(r.pH_at_40C, 3), r.drug_solid}) {
+          row.push_back(v);
+        }
+      }
+      if (dose_range) row.push_back(r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 3) : "n/a");
+      if (wide) row.push_back(routes_text(r.routes));
+      t.add_row(row);
+    }
+    t.write(out);
+    if (!wide) {
+      out << "  (--wide adds the pH after the acid and base challenges, capacity, ionic strength, osmolality,\n"
+             "  the pH at the storage temperatures, the drug solid"
+          << (rep.dose_range_fraction > 0 ? ", the worst pH over the dose range" : "") << " and the routes)\n";
+    }
+    write_screen_criteria(rep, out);
+    write_screen_near_misses(rep, out);
+    std::vector<std::string> notes;
+    for (const ScreenResult& r : rep.results) {
+      for (const std::string& w : r.route_flags) notes.push_back(r.buffer + ": " + w);
+    }
+    for (const ScreenResult& r : rep.results) {
+      for (const std::string& w : r.warnings) {
+        if (!is_solid_warning(w)) notes.push_back(r.buffer + ": " + w);  // shown in the solid column
+      }
+    }
+    for (const std::string& w : rep.warnings) notes.push_back(w);
+    if (!notes.empty()) {
+      out << "\n";
+      for (const std::string& n : notes) out << "  warning: " << n << "\n";
+    }
+  }
+  out << "\n";
+  write_wrapped(out, method_note(reports.empty() ? kDefaultActivityModel : reports.front().activity) +
+                         " \"<\" marks the lower end of the search (the dose alone holds the target). " +
+                         kOsmolalityNote);
+  out << "\n";
+  write_wrapped(out, caution_text());
+}
+
+void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  write_csv_row(out, {"compound", "form", "dose (mol/L)", "target pH", "tolerance (pH)", "temperature (C)",
+                      "rank", "buffer", "status", "min conc (mol/L)", "conc used (mol/L)", "max conc (mol/L)",
+                      "titrant", "titrant (mol/L)", "pH after drug", "pH drift", "capacity (mol/L per pH)",
+                      "ionic strength (mol/L)", "osmolarity (mOsm/L)", "osmolality estimate (mOsm/kg)",
+                      "pH at 5 C", "pH at 40 C", "drug solid", "worst pH in dose range", "routes",
+                      "recommended conc (mol/L)", "binding", "pH after acid challenge",
+                      "pH after base challenge", "preparation", "challenge (mol/L)"});
+  for (const ScreenReport& rep : reports) {
+    int rank = 0;
+    for (const ScreenResult& r : rep.results) {
+      write_csv_row(out, {rep.compound_id, rep.form, sig(rep.dose_mol_per_L, 6), fixed(rep.target_pH, 3),
+                          fixed(rep.tolerance_pH, 3), fixed(rep.temperature_C, 2), std::to_string(++rank),
+                          r.buffer, screen_status_name(r.status),
+                          r.min_conc_mol_per_L ? sig(*r.min_conc_mol_per_L, 6) : "",
+                          sig(r.conc_used_mol_per_L, 6), sig(r.max_conc_mol_per_L, 6), r.titrant,
+                          sig(r.titrant_mol_per_L, 6), fixed(r.pH_after_drug, 4), fixed(r.pH_drift, 4),
+                          sig(r.capacity_mol_per_L_per_pH, 6), sig(r.ionic_strength_mol_per_L, 6),
+                          fixed(r.osmolarity_mOsm_per_L, 2),
+                          fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 2),
+                          fixed(r.pH_at_5C, 4), fixed(r.pH_at_40C, 4), r.drug_solid,
+                          r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 4) : "",
+                          routes_text(r.routes),
+                          r.recommended_conc_mol_per_L ? sig(*r.recommended_conc_mol_per_L, 6) : "", r.binding,
+                          std::isfinite(r.pH_after_acid_challenge) ? fixed(r.pH_after_acid_challenge, 4) : "",
+                          std::isfinite(r.pH_after_base_challenge) ? fixed(r.pH_after_base_challenge, 4) : "",
+                          screen_preparation_name(rep.preparation), sig(rep.challenge_mol_per_L, 6)});
+    }
+  }
+  out << "\r\n";
+  write_csv_row(out, {"caution", caution_text()});
+  write_csv_row(out, {"osmolality", kOsmolalityNote});
+}
+
+}  // namespace pkarta
