@@ -1,0 +1,224 @@
+// Screens of one or many compounds: option and job checks, the buffers screened in parallel,
+// ranking, and the dose range of a screen.
+
+#include "pkarta/analyses/screen.h"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <exception>
+#include <limits>
+#include <mutex>
+#include <thread>
+
+#include "pkarta/base/format.h"
+#include "pkarta/analyses/mix.h"
+#include "pkarta/chem/mixture_builder.h"
+#include "pkarta/analyses/profile.h"
+#include "pkarta/chem/units.h"
+#include "pkarta/chem/water.h"
+
+namespace pkarta {
+
+namespace {
+
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+int status_group(ScreenStatus s) {
+  switch (s) {
+    case ScreenStatus::kOk: return 0;
+    case ScreenStatus::kNotAchievable: return 1;
+    case ScreenStatus::kDoseNotSoluble: return 2;
+    case ScreenStatus::kOutsideRange: return 3;
+  }
+  return 4;
+}
+
+
+void check_job(const ScreenJob& job) {
+  if (!(job.dose_mol_per_L > 0) || !std::isfinite(job.dose_mol_per_L)) {
+    throw InputError(SourceLocation{job.compound.file, 0, 0}, "the dose must be > 0");
+  }
+  if (job.form != "free" && !job.compound.salt(job.form)) {
+    std::string known = "free";
+    for (const Salt& s : job.compound.salts) known += ", " + s.id;
+    throw InputError(SourceLocation{job.compound.file, 0, 0},
+                     "compound '" + job.compound.id + "' has no salt '" + job.form + "' (forms: " + known + ")");
+  }
+}
+
+// Runs body(i) for i in [0, n) on `threads` threads.
+void parallel_for(std::size_t n, int threads, const std::function<void(std::size_t)>& body,
+                  const std::function<void()>& after_each) {
+  if (threads <= 1 || n <= 1) {
+    for (std::size_t i = 0; i < n; ++i) {
+      body(i);
+      if (after_each) after_each();
+    }
+    return;
+  }
+  std::atomic<std::size_t> next{0};
+  std::mutex mutex;
+  std::exception_ptr failure;
+  auto worker = [&] {
+    for (;;) {
+      const std::size_t i = next.fetch_add(1);
+      if (i >= n) return;
+      try {
+        body(i);
+      } catch (...) {
+        std::lock_guard<std::mutex> lock(mutex);
+        if (!failure) failure = std::current_exception();
+        next.store(n);
+        return;
+      }
+      if (after_each) {
+        std::lock_guard<std::mutex> lock(mutex);
+        after_each();
+      }
+    }
+  };
+  std::vector<std::thread> pool;
+  const int count = static_cast<int>(std::min<std::size_t>(n, static_cast<std::size_t>(threads)));
+  pool.reserve(count);
+  for (int t = 0; t < count; ++t) pool.emplace_back(worker);
+  for (std::thread& t : pool) t.join();
+  if (failure) std::rethrow_exception(failure);
+}
+
+
+}  // namespace
+
+void rank_screen_results(std::vector<ScreenResult>& results) {
+  auto key_conc = [](const ScreenResult& r) { return r.min_conc_mol_per_L ? *r.min_conc_mol_per_L : kInf; };
+  auto abs_or_inf = [](double x) { return std::isfinite(x) ? std::fabs(x) : kInf; };
+  std::stable_sort(results.begin(), results.end(), [&](const ScreenResult& a, const ScreenResult& b) {
+    const int ga = status_group(a.status), gb = status_group(b.status);
+    if (ga != gb) return ga < gb;
+    const double ca = key_conc(a), cb = key_conc(b);
+    if (ca != cb) return ca < cb;
+    if (!a.min_conc_mol_per_L) {  // nothing holds the target: closest to it first
+      const double da = abs_or_inf(a.pH_drift), db = abs_or_inf(b.pH_drift);
+      if (da != db) return da < db;
+    }
+    const double ta = abs_or_inf(a.temperature_drift_pH()), tb = abs_or_inf(b.temperature_drift_pH());
+    if (ta != tb) return ta < tb;
+    return a.buffer < b.buffer;
+  });
+}
+
+
+namespace {
+ScreenReport report_header(const ScreenJob& job, const ScreenOptions& options) {
+  ScreenReport rep;
+  rep.compound_id = job.compound.id;
+  rep.compound_name = job.compound.name;
+  rep.compound_file = job.compound.file;
+  rep.form = job.form;
+  rep.target_pH = options.target_pH;
+  rep.tolerance_pH = options.tolerance_pH;
+  rep.temperature_C = options.temperature_C;
+  rep.activity = options.activity;
+  rep.low_temperature_C = options.low_temperature_C;
+  rep.high_temperature_C = options.high_temperature_C;
+  rep.dose_mol_per_L = job.dose_mol_per_L;
+  rep.dose_range_fraction = options.dose_range_fraction;
+  rep.route = options.route;
+  rep.preparation = options.preparation;
+  rep.challenge_mol_per_L = options.challenge_mol_per_L;
+  rep.min_capacity_mol_per_L_per_pH = options.min_capacity_mol_per_L_per_pH;
+  rep.max_drift_pH = options.max_drift_pH;
+  rep.round_step_mol_per_L = options.round_step_mol_per_L;
+  return rep;
+}
+
+void check_options(const ScreenOptions& options) {
+  std::string err;
+  if (!options.is_valid(&err)) throw InputError(err);
+}
+}  // namespace
+
+ScreenReport screen(const Library& library, const ScreenJob& job, const ScreenOptions& options) {
+  BatchOptions serial;
+  serial.threads = 1;
+  return screen_batch(library, {job}, options, serial).front();
+}
+
+std::vector<ScreenReport> screen_batch(const Library& library, const std::vector<ScreenJob>& jobs,
+                                       const ScreenOptions& options, const BatchOptions& batch) {
+  check_options(options);
+  for (const ScreenJob& job : jobs) check_job(job);
+  const std::vector<const Buffer*> buffers = screen_candidates(library, options);
+  int threads = batch.threads;
+  if (threads <= 0) threads = std::max(1u, std::thread::hardware_concurrency());
+
+  std::vector<ScreenReport> reports;
+  reports.reserve(jobs.size());
+  for (const ScreenJob& job : jobs) {
+    reports.push_back(report_header(job, options));
+    reports.back().results.resize(buffers.size());
+  }
+  // The solubility at the target first (one per compound), then every (compound, buffer) pair.
+  parallel_for(jobs.size(), threads, [&](std::size_t i) {
+    reports[i].solubility_at_target_mol_per_L = screen_solubility_at_target(library, jobs[i].compound, options);
+  }, nullptr);
+  const std::size_t nb = buffers.size();
+  const std::size_t total = jobs.size() * nb;
+  std::size_t done = 0;
+  parallel_for(total, threads, [&](std::size_t k) {
+    const std::size_t i = k / nb, b = k % nb;
+    reports[i].results[b] = screen_buffer(library, *buffers[b], jobs[i], reports[i].solubility_at_target_mol_per_L, options);
+  }, [&] {
+    ++done;
+    if (batch.progress) batch.progress(done, total);
+  });
+  for (ScreenReport& rep : reports) {
+    rank_screen_results(rep.results);
+    if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
+      rep.warnings.push_back("the dose exceeds the drug's solubility in water at the target pH");
+    }
+    if (rep.route == "parenteral" || rep.route == "ophthalmic") {
+      for (const ScreenResult& r : rep.results) {
+        if (r.status != ScreenStatus::kOk) continue;
+        const double osm = kOsmoticCoefficient * r.osmolarity_mOsm_per_L / water_density_kg_per_L(rep.temperature_C);
+        if (osm < 250.0) {
+          rep.warnings.push_back("the leading buffer's osmolality estimate, " + fixed(osm, 0) +
+                                 " mOsm/kg, is below the 250 mOsm/kg usual for " + rep.route +
+                                 " products (common practice, not a rule): add a tonicity reagent "
+                                 "(pkarta recipe --isotonic)");
+        }
+        break;
+      }
+    }
+  }
+  return reports;
+}
+
+double parse_dose_range(std::string_view text) {
+  std::string_view t = text;
+  while (!t.empty() && t.front() == ' ') t.remove_prefix(1);
+  while (!t.empty() && t.back() == ' ') t.remove_suffix(1);
+  for (std::string_view prefix : {"+/-", "+-", "\xC2\xB1"}) {
+    if (t.substr(0, prefix.size()) == prefix) {
+      t.remove_prefix(prefix.size());
+      break;
+    }
+  }
+  bool percent = false;
+  if (!t.empty() && t.back() == '%') {
+    percent = true;
+    t.remove_suffix(1);
+  }
+  double v;
+  try {
+    v = parse_number(t, "dose range");
+  } catch (const InputError&) {
+    throw InputError("dose range \"" + std::string(text) + "\" is not a number; expected e.g. 10% or 0.1");
+  }
+  if (percent) v /= 100.0;
+  if (!(v >= 0.0 && v < 1.0)) {
+    throw InputError("dose range \"" + std::string(text) + "\" is out of range; expected 0 to 100% (e.g. 10% or 0.1)");
+  }
+  return v;
+}
+}  // namespace pkarta
