@@ -49,6 +49,13 @@ class TextTable {
 /// spaces apart) and single words are left as they are.
 std::string fit_text_width(const std::string& text, std::size_t max_width = kTextWidth);
 
+/// ASCII lower case of s (option and id matching).
+std::string ascii_lower(std::string s);
+/// s without leading and trailing spaces, tabs and carriage returns.
+std::string trim_space(const std::string& s);
+/// The strings of v joined by sep.
+std::string join_strings(const std::vector<std::string>& v, const std::string& sep);
+
 /// The caution every result that could guide a product carries (docs/model.md, "Limits and cautions").
 const char* caution_text();
 
