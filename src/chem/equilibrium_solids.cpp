@@ -396,7 +396,7 @@ EquilibriumModel::Partition EquilibriumModel::partition(const double* alpha, dou
   Partition p;
   p.dissolved = dose;
   if (!drug_solids_ || !(dose > 0)) return p;
-  double x[kMaxComp], kq[kMaxSalts];
+  double x[kMaxComp], kq[kMaxSalts] = {};
   x[0] = dose;
   for (int c = 1; c < static_cast<int>(comp_ion_.size()); ++c) x[c] = component_total(c);
   salt_products(h, kq);
