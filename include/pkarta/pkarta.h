@@ -37,6 +37,7 @@
 #include "pkarta/analyses/uncertainty.h"
 #include "pkarta/writers/classify_writer.h"
 #include "pkarta/writers/fit_writer.h"
+#include "pkarta/writers/dilute_writer.h"
 #include "pkarta/writers/mix_writer.h"
 #include "pkarta/writers/profile_writer.h"
 #include "pkarta/writers/recipe_writer.h"

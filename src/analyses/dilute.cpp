@@ -1,13 +1,12 @@
 #include "pkarta/analyses/dilute.h"
 
-#include <nlohmann/json.hpp>
-
 #include <algorithm>
 #include <cmath>
 #include <limits>
 
 #include "pkarta/base/format.h"
 #include "pkarta/chem/mixture_builder.h"
+#include "pkarta/chem/water.h"
 
 namespace pkarta {
 
@@ -47,6 +46,19 @@ double dissolved_co2(const Equilibrium& e) {
 }
 
 bool contains(const std::string& text, const char* word) { return text.find(word) != std::string::npos; }
+
+constexpr const char* kBloodBufferId = "blood-buffer";
+constexpr double kBloodBufferPk = 7.4;  // the reference pH of the Van Slyke equation
+
+// Ideal osmolarity (mOsm/L) of the lumped buffer's species: they stand for groups on proteins
+// and haemoglobin, not free particles, so they are taken out of the reported osmolarity.
+double blood_buffer_osmolarity(const Equilibrium& e) {
+  double c = 0.0;
+  for (const Species& sp : e.species) {
+    if (sp.system == kBloodBufferId) c += sp.conc_mol_per_L;
+  }
+  return c * 1000.0;
+}
 
 }  // namespace
 
@@ -100,6 +112,35 @@ Mixture open_carbonate_mixture(const Mixture& mixture, double co2_mol_per_L, con
   return m;
 }
 
+double DilutionOptions::non_bicarbonate_buffer_mM_per_pH() const {
+  return plasma_buffer_mM_per_pH + (blood == BloodKind::kWhole ? haemoglobin_buffer_per_mmol * haemoglobin_mmol_per_L : 0.0);
+}
+
+// Species +1 (j 0), 0 (j 1), -1 (j 2): a base group then an acid group. With Davies activities and
+// pH = -log aH, the conditional constants are pK1' = pK1 - log g1 and pK2' = pK2 + log g1, so
+// pK1 = 7.4 + log g1 and pK2 = 7.4 - log g1 make both 7.4 at the given ionic strength. With both
+// conditional constants equal the three species are a third each at pH 7.4: net charge zero and
+// buffer value ln(10) C x (variance of the proton number, 2/3).
+AcidBaseSystem blood_buffer_system(double ionic_strength_mol_per_L, double temperature_C) {
+  const double log_g1 = std::log10(davies_gamma(1, ionic_strength_mol_per_L, temperature_C));
+  AcidBaseSystem s;
+  s.id = kBloodBufferId;
+  s.name = "non-bicarbonate buffer of blood (lumped)";
+  s.source = "Van Slyke equation, Siggaard-Andersen 1977, Scand. J. Clin. Lab. Invest. 37 Suppl 146, 15-20";
+  Pka base;
+  base.type = GroupType::kBase;
+  base.value = base.stated_value = kBloodBufferPk + log_g1;
+  base.ref_temperature_C = temperature_C;
+  Pka acid;
+  acid.type = GroupType::kAcid;
+  acid.value = acid.stated_value = kBloodBufferPk - log_g1;
+  acid.ref_temperature_C = temperature_C;
+  s.pkas = {base, acid};
+  return s;
+}
+
+double blood_buffer_total(double beta_mol_per_L_per_pH) { return beta_mol_per_L_per_pH * 1.5 / std::log(10.0); }
+
 bool DilutionOptions::is_valid(std::string* error) const {
   if (medium_id.empty()) {
     if (error) *error = "DilutionOptions::medium_id is empty";
@@ -111,6 +152,12 @@ bool DilutionOptions::is_valid(std::string* error) const {
   }
   if (!(pco2_mmHg > 0 && pco2_mmHg <= 200) || !(co2_solubility_mM_per_mmHg > 0 && co2_solubility_mM_per_mmHg < 1)) {
     if (error) *error = "DilutionOptions: pCO2 must be in (0, 200] mmHg and the CO2 solubility in (0, 1) mM/mmHg";
+    return false;
+  }
+  if (!(plasma_buffer_mM_per_pH >= 0 && plasma_buffer_mM_per_pH < 100) ||
+      !(haemoglobin_mmol_per_L >= 0 && haemoglobin_mmol_per_L < 30) ||
+      !(haemoglobin_buffer_per_mmol >= 0 && haemoglobin_buffer_per_mmol < 10)) {
+    if (error) *error = "DilutionOptions: the non-bicarbonate buffer values are out of range";
     return false;
   }
   for (double r : ratios) {
@@ -165,10 +212,41 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
   if (form.drug) r.drug_name = form.drug->compound.name;
   const SolverOptions solver;
 
+  // The non-bicarbonate buffer of plasma or whole blood, a property of the medium: diluted with
+  // it, its pK' set at the medium's own ionic strength.
+  if (options.blood == BloodKind::kWhole && !physiological) {
+    throw InputError("whole blood buffering needs a plasma or blood medium; " + medium.id + " is neither");
+  }
+  std::optional<AcidBaseSystem> blood_buffer;
+  double blood_buffer_mol = 0.0;
+  if (physiological) {
+    Mixture med;
+    add_medium(med, library, medium.id);
+    med.temperature_C = form.temperature_C;
+    const Equilibrium me = solve(med, solver);
+    if (!me.usable()) {
+      r.message = "the equilibrium of the medium " + medium.id + " did not converge: " + me.message;
+      return r;
+    }
+    r.non_bicarbonate_buffer_mM_per_pH = options.non_bicarbonate_buffer_mM_per_pH();
+    r.blood = options.blood == BloodKind::kWhole ? "whole" : "plasma";
+    blood_buffer = blood_buffer_system(me.ionic_strength_mol_per_L, form.temperature_C);
+    blood_buffer_mol = blood_buffer_total(r.non_bicarbonate_buffer_mM_per_pH * 1e-3);
+    const std::string kind = options.blood == BloodKind::kWhole
+                                 ? "whole-blood non-bicarbonate buffer (plasma 7.7 + haemoglobin " +
+                                       sig(options.haemoglobin_buffer_per_mmol, 3) + " x " +
+                                       sig(options.haemoglobin_mmol_per_L, 3) + " mmol/L) "
+                                 : "plasma non-bicarbonate buffer ";
+    r.blood_description = (open ? "open CO2 at pCO2 " + sig(options.pco2_mmHg, 3) + " mmHg"
+                                : std::string("closed CO2 (carbonate total kept)")) +
+                          " with " + kind + sig(r.non_bicarbonate_buffer_mM_per_pH, 3) + " mmol/L/pH";
+  }
+
   for (double ratio : options.ratios) {
     DilutionPoint p;
     p.ratio = ratio;
     Mixture mix = diluted_mixture(form, library, options.medium_id, ratio);
+    if (blood_buffer && ratio > 1.0) mix.systems.push_back({*blood_buffer, blood_buffer_mol * (1.0 - 1.0 / ratio)});
     const bool open_here = open && has_system(mix, "carbonate");
     Mixture all = mix;
     if (all.drug) all.drug->allow_solids = false;
@@ -181,7 +259,7 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
     }
     p.pH = e.pH;
     p.ionic_strength_mol_per_L = e.ionic_strength_mol_per_L;
-    p.osmolarity_mOsm_per_L = e.osmolarity_mOsm_per_L;
+    p.osmolarity_mOsm_per_L = e.osmolarity_mOsm_per_L - blood_buffer_osmolarity(e);
     p.mass_residual_rel = e.mass_residual_rel;
     p.charge_residual_rel = e.charge_residual_rel;
     p.equilibrium_pH = e.pH;
@@ -239,15 +317,22 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
                       sig(co2 * 1e3, 4) + " mmol/L, as the lungs hold arterial pCO2 (Siggaard-Andersen, The "
                       "Acid-Base Status of the Blood, 1974; Guyton and Hall, Textbook of Medical Physiology); "
                       "the total carbonate follows (CO2 leaves or enters), strong ions are unchanged");
-    r.notes.push_back(medium.id + " has no proteins, lipids or haemoglobin: its non-bicarbonate buffering is "
-                      "its phosphate only (plasma proteins add about 5-8 mmol/L per pH, whole blood about "
-                      "25-30), and drug binding is not modelled; the thermodynamic carbonate pK with Davies "
-                      "activities replaces the clinical pK' 6.1");
+    r.notes.push_back("the thermodynamic carbonate pK with Davies activities replaces the clinical pK' 6.1 "
+                      "(Siggaard-Andersen 1977); drug binding to proteins is not modelled");
   } else if (has_system(med, "carbonate")) {
     r.notes.push_back(std::string(physiological ? "blood model: closed; " : "") + medium.id +
                       " holds bicarbonate as a closed system: no CO2 exchange with air "
-                      "or lungs, so its pH is not held at a set pCO2; it has no proteins or lipids, "
-                      "so binding of the drug and protein buffering are not modelled");
+                      "or lungs, so its pH is not held at a set pCO2; binding of the drug to proteins "
+                      "is not modelled");
+  }
+  if (blood_buffer) {
+    r.notes.push_back(
+        "non-bicarbonate buffer (" + r.blood + "): beta = " + sig(r.non_bicarbonate_buffer_mM_per_pH, 3) +
+        " mmol/L per pH of undiluted " + medium.id + " (Van Slyke equation, Siggaard-Andersen 1977, Scand. J. Clin. Lab. "
+        "Invest. 37 Suppl 146: plasma proteins and phosphate 7.7, whole blood 1.43 cHb + 7.7 with cHb in mmol/L; "
+        "recalled, to be verified), diluted with the medium; modelled as a lumped ampholyte with both pK' 7.4 "
+        "(net charge zero at pH 7.4), " + sig(blood_buffer_mol * 1e3, 4) + " mmol/L, left out of the osmolarity; the "
+        "medium's own phosphate is counted again in it (about 0.4 mmol/L per pH at 1 mmol/L)");
   }
   for (const IonAmount& i : med.ions) {
     if (i.charge == 0 && i.conc_mol_per_L > 0) {
@@ -267,109 +352,6 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
   r.converged = true;
   r.message = "converged";
   return r;
-}
-
-void write_dilute_text(const DilutionResult& r, std::ostream& out) {
-  out << "Dilution into " << r.medium_name << " (" << r.medium_id << ") at " << fixed(r.temperature_C, 1)
-      << " °C\n";
-  if (!r.inputs.empty()) {
-    out << "  formulation: ";
-    for (std::size_t i = 0; i < r.inputs.size(); ++i) out << (i ? ", " : "") << r.inputs[i];
-    out << "\n";
-  }
-  out << "  ratio = total volume / formulation volume (ratio 10: 1 volume of formulation + 9 of medium)\n\n";
-  const bool drug = !r.points.empty() && r.points.front().has_drug;
-  if (drug) {
-    TextTable t({"ratio", "pH", "drug (mg/mL)", "drug (mol/L)", "solubility (mol/L)", "limited by",
-                 "supersaturation", "risk"});
-    for (const DilutionPoint& p : r.points) {
-      t.add_row({sig(p.ratio, 4), fixed(p.pH, 3), sig(p.drug_mg_per_mL, 3), sig(p.drug_mol_per_L, 3),
-                 std::isfinite(p.solubility_mol_per_L) ? sig(p.solubility_mol_per_L, 3) : "unlimited",
-                 p.limiting_solid, sig(p.supersaturation_ratio, 3), p.risk ? "precipitation risk" : "none"});
-    }
-    t.write(out);
-    bool any = false;
-    for (const DilutionPoint& p : r.points) any = any || p.equilibrium_solid != "none";
-    if (any) {
-      out << "\nAt equilibrium, once the excess has precipitated\n";
-      TextTable e({"ratio", "pH", "dissolved (mol/L)", "solid"});
-      for (const DilutionPoint& p : r.points) {
-        if (p.equilibrium_solid == "none") continue;
-        e.add_row({sig(p.ratio, 4), fixed(p.equilibrium_pH, 3), sig(p.equilibrium_dissolved_mol_per_L, 3),
-                   p.equilibrium_solid});
-      }
-      e.write(out);
-    }
-  } else {
-    TextTable t({"ratio", "pH", "ionic strength (mol/L)", "osmolarity (mOsm/L)"});
-    for (const DilutionPoint& p : r.points) {
-      t.add_row({sig(p.ratio, 4), fixed(p.pH, 3), sig(p.ionic_strength_mol_per_L, 3),
-                 fixed(p.osmolarity_mOsm_per_L, 1)});
-    }
-    t.write(out);
-  }
-  out << "\nNotes\n";
-  for (const std::string& n : r.notes) out << "  - " << n << "\n";
-  if (!r.warnings.empty()) {
-    out << "\nWarnings\n";
-    for (const std::string& w : r.warnings) out << "  - " << w << "\n";
-  }
-  out << "\n" << caution_text() << "\n";
-}
-
-void write_dilute_csv(const DilutionResult& r, std::ostream& out) {
-  write_csv_row(out, {"ratio", "pH", "ionic_strength_mol_per_L", "osmolarity_mOsm_per_L", "drug_mol_per_L",
-                      "drug_mg_per_mL", "solubility_mol_per_L", "limiting_solid", "supersaturation_ratio",
-                      "risk", "equilibrium_pH", "equilibrium_dissolved_mol_per_L", "equilibrium_solid"});
-  for (const DilutionPoint& p : r.points) {
-    const bool d = p.has_drug;
-    write_csv_row(out, {sig(p.ratio, 6), sig(p.pH, 6), sig(p.ionic_strength_mol_per_L, 6),
-                        sig(p.osmolarity_mOsm_per_L, 6), d ? sig(p.drug_mol_per_L, 6) : "",
-                        d ? sig(p.drug_mg_per_mL, 6) : "",
-                        d && std::isfinite(p.solubility_mol_per_L) ? sig(p.solubility_mol_per_L, 6) : "",
-                        d ? p.limiting_solid : "", d ? sig(p.supersaturation_ratio, 6) : "",
-                        d ? (p.risk ? "true" : "false") : "", d ? sig(p.equilibrium_pH, 6) : "",
-                        d ? sig(p.equilibrium_dissolved_mol_per_L, 6) : "", d ? p.equilibrium_solid : ""});
-  }
-}
-
-void write_dilute_json(const DilutionResult& r, std::ostream& out) {
-  using J = nlohmann::ordered_json;
-  auto num = [](double v) { return std::isfinite(v) ? J(v) : J(nullptr); };
-  J j;
-  j["medium"] = r.medium_id;
-  j["temperature_C"] = r.temperature_C;
-  j["ratio_definition"] = "total volume / formulation volume";
-  J pts = J::array();
-  for (const DilutionPoint& p : r.points) {
-    J o;
-    o["ratio"] = p.ratio;
-    o["pH"] = p.pH;
-    o["ionic_strength_mol_per_L"] = p.ionic_strength_mol_per_L;
-    o["osmolarity_mOsm_per_L"] = p.osmolarity_mOsm_per_L;
-    if (p.has_drug) {
-      o["drug_mol_per_L"] = p.drug_mol_per_L;
-      o["drug_mg_per_mL"] = p.drug_mg_per_mL;
-      o["solubility_mol_per_L"] = num(p.solubility_mol_per_L);
-      o["limiting_solid"] = p.limiting_solid;
-      o["supersaturation_ratio"] = p.supersaturation_ratio;
-      o["risk"] = p.risk;
-      o["equilibrium"] = {{"pH", p.equilibrium_pH},
-                          {"dissolved_mol_per_L", p.equilibrium_dissolved_mol_per_L},
-                          {"solid", p.equilibrium_solid}};
-    } else {
-      o["drug_mol_per_L"] = nullptr;
-      o["solubility_mol_per_L"] = nullptr;
-      o["supersaturation_ratio"] = nullptr;
-      o["risk"] = false;
-    }
-    pts.push_back(o);
-  }
-  j["points"] = pts;
-  j["notes"] = r.notes;
-  j["warnings"] = r.warnings;
-  j["caution"] = caution_text();
-  out << j.dump(2) << "\n";
 }
 
 }  // namespace pkarta

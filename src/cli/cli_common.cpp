@@ -359,7 +359,7 @@ std::string placeholder(const std::string& name, const std::string& description)
       {"buffers", "all|ID[,...]"}, {"buffer", "ID"}, {"route", "ROUTE"}, {"dose-range", "FRACTION"},
       {"preparation", "premade|adjusted"}, {"challenge", "AMOUNT"}, {"min-capacity", "CAPACITY"},
       {"round", "AMOUNT"}, {"conc", "AMOUNT"}, {"reagents", "ACID[,BASE]"}, {"params", "NAME[,...]"},
-      {"ratios", "RATIO[,...]"}, {"blood-model", "open|closed"}, {"pco2", "MMHG"}, {"dose-as", "weighed|free"}, {"activity", "MODEL"}};
+      {"ratios", "RATIO[,...]"}, {"blood-model", "open|closed"}, {"pco2", "MMHG"}, {"blood", "plasma|whole"}, {"dose-as", "weighed|free"}, {"activity", "MODEL"}};
   for (const auto& [n, p] : kNames) {
     if (name == n) return p;
   }

@@ -6,6 +6,7 @@
 #include "cli_output.h"
 #include "commands.h"
 #include "pkarta/analyses/dilute.h"
+#include "pkarta/writers/dilute_writer.h"
 #include "pkarta/writers/tables.h"
 #include "pkarta/chem/mixture_builder.h"
 
@@ -32,7 +33,7 @@ int run_dilute(const Args& args) {
   return guarded([&] {
     CommonOptions common;
     FormulationOptions f;
-    std::string into, ratios = "1,2,5,10,20,50,100", into_temp, blood_model, pco2;
+    std::string into, ratios = "1,2,5,10,20,50,100", into_temp, blood_model, pco2, blood = "plasma";
     po::options_description desc("dilute options");
     add_formulation_options(desc, f);
     desc.add_options()
@@ -44,7 +45,9 @@ int run_dilute(const Args& args) {
                                              "37 for plasma or blood)")
         ("blood-model", po::value(&blood_model), "bicarbonate of plasma or blood: open (held at a set "
                                                  "pCO2, default for plasma or blood) or closed")
-        ("pco2", po::value(&pco2), "arterial pCO2 of the open model, mmHg (default 40)");
+        ("pco2", po::value(&pco2), "arterial pCO2 of the open model, mmHg (default 40)")
+        ("blood", po::value(&blood)->default_value("plasma"), "non-bicarbonate buffering of a plasma or blood medium: "
+                                                              "plasma (7.7 mmol/L per pH) or whole (with haemoglobin, 21.0)");
     TableOptions tables;
     add_table_options(desc, tables);
     add_common_options(desc, common);
@@ -53,7 +56,7 @@ int run_dilute(const Args& args) {
       print_help(std::cout,
                  "pkarta dilute [--compound FILE --dose AMOUNT [--form free|SALT]] [--add REAGENT=AMOUNT]... "
                  "[--medium MEDIUM] [--temp CELSIUS] --into MEDIUM [--ratios 1,2,5,10,20,50,100] [--into-temp CELSIUS] "
-                 "[--blood-model open|closed] [--pco2 MMHG]",
+                 "[--blood-model open|closed] [--pco2 MMHG] [--blood plasma|whole]",
                  desc);
       std::cout << "\n" << tables_help(dilute_table_info());
       print_examples(std::cout, {"pkarta dilute --compound compounds/demo-base.xml --dose 2mg/mL --form mesylate --into plasma-7.4",
@@ -77,6 +80,13 @@ int run_dilute(const Args& args) {
     else if (blood_model == "closed") options.blood_model = BloodModel::kClosed;
     else if (!blood_model.empty()) {
       throw InputError(SourceLocation{"--blood-model", 0, 0}, "expected open or closed, got \"" + blood_model + "\"");
+    }
+    if (blood == "whole") options.blood = BloodKind::kWhole;
+    else if (blood != "plasma") {
+      throw InputError(SourceLocation{"--blood", 0, 0}, "expected plasma or whole, got \"" + blood + "\"");
+    }
+    if (options.blood == BloodKind::kWhole && !is_physiological_medium(lib, into)) {
+      throw InputError(SourceLocation{"--blood", 0, 0}, "whole needs a plasma or blood medium; " + into + " is neither");
     }
     if (!pco2.empty()) options.pco2_mmHg = option_number("--pco2", pco2, 1.0, 200.0);
     if (options.blood_model == BloodModel::kOpen && !is_physiological_medium(lib, into)) {

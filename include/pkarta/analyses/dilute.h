@@ -36,6 +36,14 @@ namespace pkarta {
 ///  - kAuto: open for a physiological medium, closed (nothing to do) otherwise.
 enum class BloodModel { kAuto, kOpen, kClosed };
 
+/// Which non-bicarbonate buffering a physiological medium is given (proteins, mainly albumin,
+/// and phosphate of plasma; with haemoglobin for whole blood). The Van Slyke equation as given by
+/// Siggaard-Andersen (1977, Scand. J. Clin. Lab. Invest. 37 Suppl 146, 15-20) has the
+/// non-bicarbonate buffer value beta = 7.7 mmol/L per pH for plasma and 1.43 cHb + 7.7 for whole
+/// blood (cHb in mmol/L of monomer; 9.3 mmol/L for 15 g/dL) (recalled from Siggaard-Andersen
+/// 1977, to be verified). It is modelled as a lumped ampholyte (see docs/model.md).
+enum class BloodKind { kPlasma, kWhole };
+
 /// What to dilute into, and how far.
 struct DilutionOptions {
   std::string medium_id;              ///< library medium (water, saline-0.9, plasma-7.4, ...)
@@ -48,6 +56,13 @@ struct DilutionOptions {
   /// Textbook of Medical Physiology), so dissolved CO2 = 1.228 mmol/L.
   double pco2_mmHg = 40.0;
   double co2_solubility_mM_per_mmHg = 0.0307;
+  BloodKind blood = BloodKind::kPlasma;
+  double plasma_buffer_mM_per_pH = 7.7;       ///< non-bicarbonate buffer value of plasma
+  double haemoglobin_mmol_per_L = 9.3;        ///< cHb (monomer) of whole blood, 15 g/dL
+  double haemoglobin_buffer_per_mmol = 1.43;  ///< mmol/L per pH per mmol/L of haemoglobin
+  /// The non-bicarbonate buffer value of the undiluted medium, mmol/L per pH: 7.7 for plasma,
+  /// 1.43 x 9.3 + 7.7 = 21.0 for whole blood.
+  double non_bicarbonate_buffer_mM_per_pH() const;
   bool is_valid(std::string* error) const;
 };
 
@@ -82,6 +97,12 @@ struct DilutionResult {
   std::vector<std::string> inputs;        ///< readable contents of the formulation
   std::vector<DilutionPoint> points;
   std::string blood_model;                ///< "open", "closed" or "" (no physiological medium)
+  std::string blood;                      ///< "plasma", "whole" or "" (no physiological medium)
+  /// Non-bicarbonate buffer value of the undiluted medium (0 without a physiological medium).
+  double non_bicarbonate_buffer_mM_per_pH = 0.0;
+  /// One line naming the model, e.g. "open CO2 at pCO2 40 mmHg with plasma non-bicarbonate
+  /// buffer 7.7 mmol/L/pH"; empty without a physiological medium.
+  std::string blood_description;
   std::vector<std::string> notes;         ///< the simplifications behind the numbers
   std::vector<std::string> warnings;
   bool usable() const { return converged; }
@@ -104,15 +125,18 @@ bool is_physiological_medium(const Library& library, const std::string& medium_i
 Mixture open_carbonate_mixture(const Mixture& mixture, double co2_mol_per_L, const SolverOptions& solver,
                                Equilibrium* state);
 
+/// The lumped non-bicarbonate buffer of blood as an acid-base system: an ampholyte (charges +1,
+/// 0, -1) whose two conditional pK' are both 7.4 at `ionic_strength_mol_per_L` (Davies), so its
+/// net charge is zero at pH 7.4 and its buffer value there is (2/3) ln(10) C.
+AcidBaseSystem blood_buffer_system(double ionic_strength_mol_per_L, double temperature_C);
+
+/// Total (mol/L) of blood_buffer_system() giving the buffer value `beta_mol_per_L_per_pH` at pH 7.4.
+double blood_buffer_total(double beta_mol_per_L_per_pH);
+
 /// Analyses every ratio of `options`. Throws InputError for invalid options or medium.
 DilutionResult analyse_dilution(const Mixture& formulation, const Library& library,
                                 const DilutionOptions& options, std::vector<std::string> inputs = {});
 
-void write_dilute_text(const DilutionResult& result, std::ostream& out);
-void write_dilute_csv(const DilutionResult& result, std::ostream& out);
-/// JSON keys (docs/commands.md): points[] {ratio, pH, drug_mol_per_L, solubility_mol_per_L,
-/// supersaturation_ratio, risk}, plus notes, warnings and the equilibrium after precipitation.
-void write_dilute_json(const DilutionResult& result, std::ostream& out);
 
 }  // namespace pkarta
 
