@@ -19,6 +19,12 @@ std::vector<double> parse_ratios(const std::string& text) {
   std::istringstream in(text);
   std::string item;
   while (std::getline(in, item, ',')) {
+    if (item.find(':') != std::string::npos) {
+      // "1:10" reads as 1 part in 10 to some and as 1 part plus 10 to others: ask for the factor.
+      throw InputError(SourceLocation{"--ratios", 0, 0},
+                       "give each ratio as total volume / formulation volume, not as \"" + item +
+                           "\" (which reads two ways): 10 means 1 volume of formulation made up to 10");
+    }
     out.push_back(option_number("--ratios", item, 1.0, 1e9));
   }
   if (out.empty()) {
