@@ -19,7 +19,6 @@
 #include <cmath>
 #include <sstream>
 
-#include <nlohmann/json.hpp>
 
 namespace pkarta::cli {
 
@@ -250,22 +249,14 @@ int run_screen(const Args& args) {
     std::vector<ScreenReport> reports = screen_batch(lib, jobs, opt, batch);
     bar.finish();
 
-    // Every screen's JSON has "screens" (one object per compound); one compound also keeps its
-    // object's keys at the top level.
-    auto screen_json = [&reports]() {
-      std::ostringstream raw;
-      write_screen_json(reports, raw);
-      nlohmann::ordered_json j = nlohmann::ordered_json::parse(raw.str());
-      if (reports.size() == 1) {
-        nlohmann::ordered_json one = j;
-        for (const char* k : {"method", "osmolality_note", "caution"}) one.erase(k);
-        j["screens"] = nlohmann::ordered_json::array({one});
-      }
-      return j;
+    auto screen_json = [&reports](const ScreenBands* bands) {
+      std::ostringstream doc;
+      write_screen_json_document(reports, bands, doc);
+      return doc.str();
     };
     if (samples == 0) {
       emit_tables(tables, common.format, screen_tables(reports, nullptr), compounds);
-      if (common.format == "json") print_json(screen_json());
+      if (common.format == "json") print_json(screen_json(nullptr));
       else if (common.format == "text") write_screen_text(reports, std::cout, wide);
       return out.done(0);
     }
@@ -275,24 +266,9 @@ int run_screen(const Args& args) {
     const ScreenBands bands =
         screen_bands(lib, jobs.front(), opt, samples, static_cast<std::uint64_t>(seed_value), run);
     band_bar.finish();
-    auto finite_or_null = [](double v) { return std::isfinite(v) ? nlohmann::ordered_json(v) : nlohmann::ordered_json(); };
     emit_tables(tables, common.format, screen_tables(reports, &bands), compounds);
     if (common.format == "json") {
-      nlohmann::ordered_json j = screen_json();
-      for (auto& r : j["results"]) {
-        for (const ScreenBand& b : bands.buffers) {
-          if (r["buffer"] != b.buffer) continue;
-          r["min_conc_p05_mol_per_L"] = finite_or_null(b.p05_mol_per_L);
-          r["min_conc_p50_mol_per_L"] = finite_or_null(b.p50_mol_per_L);
-          r["min_conc_p95_mol_per_L"] = finite_or_null(b.p95_mol_per_L);
-          r["ok_fraction"] = b.ok_fraction;
-        }
-      }
-      j["uncertainty"] = {{"samples", samples}, {"seed", static_cast<std::uint64_t>(seed_value)}};
-      j["screens"] = nlohmann::ordered_json::array({j["screens"].front()});
-      for (const char* k : {"uncertainty"}) j["screens"][0][k] = j[k];
-      j["screens"][0]["results"] = j["results"];
-      print_json(j);
+      print_json(screen_json(&bands));
     } else if (common.format == "text") {
       write_screen_text(reports, std::cout, wide);
       std::cout << "\n";

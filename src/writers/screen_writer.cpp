@@ -180,7 +180,8 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
 std::string screen_method_note(ActivityModel activity) { return method_note(activity); }
 const char* screen_osmolality_note() { return kOsmolalityNote; }
 
-void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out) {
+namespace {
+nlohmann::ordered_json screen_json(const std::vector<ScreenReport>& reports) {
   nlohmann::ordered_json j;
   if (reports.size() == 1) {
     j = report_json(reports.front());
@@ -197,6 +198,38 @@ void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& o
   j["method"] = method_note(reports.empty() ? kDefaultActivityModel : reports.front().activity);
   j["osmolality_note"] = kOsmolalityNote;
   j["caution"] = caution_text();
+  return j;
+}
+}  // namespace
+
+void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out) {
+  out << screen_json(reports).dump(2) << "\n";
+}
+
+void write_screen_json_document(const std::vector<ScreenReport>& reports, const ScreenBands* bands,
+                                std::ostream& out) {
+  nlohmann::ordered_json j = screen_json(reports);
+  if (reports.size() == 1) {
+    nlohmann::ordered_json one = j;
+    for (const char* k : {"method", "osmolality_note", "caution"}) one.erase(k);
+    j["screens"] = nlohmann::ordered_json::array({one});
+  }
+  if (bands) {
+    auto finite_or_null = [](double v) { return std::isfinite(v) ? nlohmann::ordered_json(v) : nlohmann::ordered_json(); };
+    for (auto& r : j["results"]) {
+      for (const ScreenBand& b : bands->buffers) {
+        if (r["buffer"] != b.buffer) continue;
+        r["min_conc_p05_mol_per_L"] = finite_or_null(b.p05_mol_per_L);
+        r["min_conc_p50_mol_per_L"] = finite_or_null(b.p50_mol_per_L);
+        r["min_conc_p95_mol_per_L"] = finite_or_null(b.p95_mol_per_L);
+        r["ok_fraction"] = b.ok_fraction;
+      }
+    }
+    j["uncertainty"] = {{"samples", bands->samples}, {"seed", bands->seed}};
+    j["screens"] = nlohmann::ordered_json::array({j["screens"].front()});
+    j["screens"][0]["uncertainty"] = j["uncertainty"];
+    j["screens"][0]["results"] = j["results"];
+  }
   out << j.dump(2) << "\n";
 }
 

@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "pkarta/analyses/screen.h"
+#include "pkarta/analyses/uncertainty.h"
 
 namespace pkarta {
 
@@ -21,6 +22,11 @@ void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& ou
 std::string screen_method_note(ActivityModel activity);
 const char* screen_osmolality_note();
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
+/// The JSON document `pkarta screen` prints: write_screen_json's object, with "screens" (one
+/// object per compound) also for one compound; with bands (may be null; one compound), each
+/// buffer's 5/50/95 % minimum concentration and ok fraction, and "uncertainty".
+void write_screen_json_document(const std::vector<ScreenReport>& reports, const ScreenBands* bands,
+                                std::ostream& out);
 
 }  // namespace pkarta
 
