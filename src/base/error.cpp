@@ -1,5 +1,7 @@
 #include "pkarta/base/error.h"
 
+#include <utility>
+
 namespace pkarta {
 
 std::string SourceLocation::str() const {
@@ -59,5 +61,8 @@ std::string shown(std::string_view text) {
   while (cut > 0 && (static_cast<unsigned char>(text[cut]) & 0xC0) == 0x80) --cut;
   return std::string(text.substr(0, cut)) + "... (" + std::to_string(text.size()) + " characters)";
 }
+
+InputErrors::InputErrors(std::vector<InputError> all)
+    : InputError(all.at(0)), all_(std::move(all)) {}
 
 }  // namespace pkarta

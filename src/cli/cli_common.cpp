@@ -319,6 +319,10 @@ void error(const std::string& message) { std::cerr << "pkarta: " << message << "
 int guarded(const std::function<int()>& body) {
   try {
     return body();
+  } catch (const InputErrors& e) {
+    // Every error of a file, in line order.
+    for (const InputError& one : e.all()) error(one.what());
+    return kExitBadInput;
   } catch (const InputError& e) {
     error(e.what());
     return kExitBadInput;

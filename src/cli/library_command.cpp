@@ -262,47 +262,58 @@ int run_check(const Args& args) {
     J checked = J::array();
     DataTable t{"files", {"file", "kind", "id", "systems", "reagents", "buffers", "media", "pka", "salts", "summary"}, {}};
     std::ostringstream printed;
+    // Every error of every file is reported (each file's in line order), then nothing is
+    // printed on standard output.
+    std::vector<InputError> errors;
     for (const std::string& f : files) {
-      const std::string text = read_text_file(f);
-      std::ostream& out = printed;
-      pugi::xml_document doc;
-      const bool is_library = doc.load_buffer(text.data(), text.size()) &&
-                              std::string(doc.document_element().name()) == "library";
-      Warnings w;
-      if (is_library) {
-        const Library extra = parse_library(text, f, &lib, &w);
-        for (const auto& s : w) std::cerr << "pkarta: " << s << "\n";
-        std::ostringstream line;
-        line << "library ok (" << extra.systems.size() << " systems, " << extra.reagents.size()
-             << " reagents, " << extra.buffers.size() << " buffers, " << extra.media.size() << " media)";
-        out << f << ": " << line.str() << "\n";
-        checked.push_back({{"file", f}, {"kind", "library"}, {"ok", true}, {"id", extra.id},
-                           {"systems", extra.systems.size()}, {"reagents", extra.reagents.size()},
-                           {"buffers", extra.buffers.size()}, {"media", extra.media.size()},
-                           {"warnings", w}, {"summary", line.str()}});
-        t.add({f, "library", extra.id, std::to_string(extra.systems.size()), std::to_string(extra.reagents.size()),
-               std::to_string(extra.buffers.size()), std::to_string(extra.media.size()), "", "", line.str()});
-      } else {
-        const Compound c = parse_compound(text, f, lib, &w);
-        for (const auto& s : w) std::cerr << "pkarta: " << s << "\n";
-        std::ostringstream line;
-        line << "compound ok (" << c.id << ", " << c.system.pkas.size() << " pKa, " << c.salts.size() << " salts";
-        J derived = J::object();
-        for (const Salt& s : c.salts) {
-          if (s.solubility_in_water_mol_per_L) {
-            line << "; derived Ksp of " << s.id << " " << sig(*s.ksp, 4);
-            derived[s.id] = *s.ksp;
+      try {
+        const std::string text = read_text_file(f);
+        std::ostream& out = printed;
+        pugi::xml_document doc;
+        const bool is_library = doc.load_buffer(text.data(), text.size()) &&
+                                std::string(doc.document_element().name()) == "library";
+        Warnings w;
+        if (is_library) {
+          const Library extra = parse_library(text, f, &lib, &w);
+          for (const auto& s : w) std::cerr << "pkarta: " << s << "\n";
+          std::ostringstream line;
+          line << "library ok (" << extra.systems.size() << " systems, " << extra.reagents.size()
+               << " reagents, " << extra.buffers.size() << " buffers, " << extra.media.size() << " media)";
+          out << f << ": " << line.str() << "\n";
+          checked.push_back({{"file", f}, {"kind", "library"}, {"ok", true}, {"id", extra.id},
+                             {"systems", extra.systems.size()}, {"reagents", extra.reagents.size()},
+                             {"buffers", extra.buffers.size()}, {"media", extra.media.size()},
+                             {"warnings", w}, {"summary", line.str()}});
+          t.add({f, "library", extra.id, std::to_string(extra.systems.size()), std::to_string(extra.reagents.size()),
+                 std::to_string(extra.buffers.size()), std::to_string(extra.media.size()), "", "", line.str()});
+        } else {
+          const Compound c = parse_compound(text, f, lib, &w);
+          for (const auto& s : w) std::cerr << "pkarta: " << s << "\n";
+          std::ostringstream line;
+          line << "compound ok (" << c.id << ", " << c.system.pkas.size() << " pKa, " << c.salts.size() << " salts";
+          J derived = J::object();
+          for (const Salt& s : c.salts) {
+            if (s.solubility_in_water_mol_per_L) {
+              line << "; derived Ksp of " << s.id << " " << sig(*s.ksp, 4);
+              derived[s.id] = *s.ksp;
+            }
           }
+          line << ")";
+          out << f << ": " << line.str() << "\n";
+          checked.push_back({{"file", f}, {"kind", "compound"}, {"ok", true}, {"id", c.id},
+                             {"pka", c.system.pkas.size()}, {"salts", c.salts.size()}, {"derived_ksp", derived},
+                             {"warnings", w}, {"summary", line.str()}});
+          t.add({f, "compound", c.id, "", "", "", "", std::to_string(c.system.pkas.size()),
+                 std::to_string(c.salts.size()), line.str()});
         }
-        line << ")";
-        out << f << ": " << line.str() << "\n";
-        checked.push_back({{"file", f}, {"kind", "compound"}, {"ok", true}, {"id", c.id},
-                           {"pka", c.system.pkas.size()}, {"salts", c.salts.size()}, {"derived_ksp", derived},
-                           {"warnings", w}, {"summary", line.str()}});
-        t.add({f, "compound", c.id, "", "", "", "", std::to_string(c.system.pkas.size()),
-               std::to_string(c.salts.size()), line.str()});
+      } catch (const InputErrors& e) {
+        errors.insert(errors.end(), e.all().begin(), e.all().end());
+      } catch (const InputError& e) {
+        errors.push_back(e);
       }
     }
+    if (errors.size() == 1) throw InputError(errors.front());
+    if (!errors.empty()) throw InputErrors(errors);
     if (common.format == "json") print_json(J{{"files", checked}});
     if (common.format == "csv" || !tables.out_dir.empty()) emit_tables(tables, common.format, {t}, files);
     if (common.format == "text") std::cout << printed.str();

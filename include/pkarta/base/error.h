@@ -6,6 +6,7 @@
 #include <stdexcept>
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace pkarta {
 
@@ -31,6 +32,18 @@ class InputError : public std::runtime_error {
  private:
   SourceLocation where_;
   std::string message_;
+};
+
+/// Every error found in one file, in line order (a reader goes on after an error to report
+/// them all in one run). It is itself the first of them: what() gives that one alone.
+class InputErrors : public InputError {
+ public:
+  /// `all` must not be empty.
+  explicit InputErrors(std::vector<InputError> all);
+  const std::vector<InputError>& all() const noexcept { return all_; }
+
+ private:
+  std::vector<InputError> all_;
 };
 
 /// Longest piece of the user's input echoed in a message.

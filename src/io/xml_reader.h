@@ -1,0 +1,239 @@
+// Shared parts of the compound and library readers (internal to src/io): byte offsets to
+// file:line:column, the attribute readers, and the list of errors a file collects while it is
+// read (each element is read on its own, so one run reports every error of a file).
+#ifndef PKARTA_SRC_IO_XML_READER_H_
+#define PKARTA_SRC_IO_XML_READER_H_
+
+#include <pugixml.hpp>
+
+#include <algorithm>
+#include <cctype>
+#include <cmath>
+#include <cstring>
+#include <initializer_list>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "pkarta/chem/model.h"
+#include "pkarta/chem/units.h"
+#include "pkarta/io/text_file.h"
+#include "pkarta/io/xml_input.h"
+
+namespace pkarta::xml_detail {
+
+std::string hex_byte(char c);
+
+/// Thrown by an element that refers to an element already refused: the element is skipped
+/// without a second message (the first error names the cause).
+struct Skip {};
+
+// Maps byte offsets to 1-based line and column.
+class Locator {
+ public:
+  Locator(const std::string& text, std::string file) : file_(std::move(file)) {
+    line_starts_.push_back(0);
+    // Lines end with LF, CRLF or a lone CR (old Mac files): each counts once.
+    for (std::size_t i = 0; i < text.size(); ++i) {
+      if (text[i] == '\n' || (text[i] == '\r' && (i + 1 == text.size() || text[i + 1] != '\n'))) {
+        line_starts_.push_back(i + 1);
+      }
+    }
+  }
+  SourceLocation at(std::ptrdiff_t offset) const {
+    if (offset < 0) return {file_, 0, 0};
+    auto it = std::upper_bound(line_starts_.begin(), line_starts_.end(),
+                               static_cast<std::size_t>(offset));
+    const int line = static_cast<int>(it - line_starts_.begin());
+    const int col = static_cast<int>(static_cast<std::size_t>(offset) - *(it - 1)) + 1;
+    return {file_, line, col};
+  }
+  // offset_debug() points at the element name; report the '<' before it.
+  SourceLocation at(const pugi::xml_node& n) const {
+    const std::ptrdiff_t o = n.offset_debug();
+    return at(n.type() == pugi::node_element && o > 0 ? o - 1 : o);
+  }
+  const std::string& file() const { return file_; }
+
+ private:
+  std::string file_;
+  std::vector<std::size_t> line_starts_;
+};
+
+class Reader {
+ public:
+  Reader(const std::string& text, const std::string& name, Warnings* warnings)
+      : loc_(text, name), warnings_(warnings) {
+    // A NUL byte is never text: refuse it where it is, rather than let the parser stop there
+    // and silently ignore the rest of the file.
+    const std::size_t nul = text.find('\0');
+    if (nul != std::string::npos) {
+      throw InputError(loc_.at(static_cast<std::ptrdiff_t>(nul)),
+                       "NUL byte in the file (is it binary, or UTF-16? save it as UTF-8 text)");
+    }
+    const pugi::xml_parse_result r =
+        doc_.load_buffer(text.data(), text.size(), pugi::parse_default | pugi::parse_ws_pcdata_single,
+                         pugi::encoding_utf8);
+    if (!r) {
+      throw InputError(loc_.at(r.offset), std::string("malformed XML: ") + r.description());
+    }
+    // Well-formed XML may still hold bytes that are not UTF-8 (pugixml passes them through):
+    // refuse them where they are, before a name or id carries them into a report or JSON.
+    const std::size_t bad = invalid_utf8_offset(text);
+    if (bad != std::string_view::npos) {
+      throw InputError(loc_.at(static_cast<std::ptrdiff_t>(bad)),
+                       "invalid UTF-8 (byte " + hex_byte(text[bad]) + "); save the file as UTF-8 text");
+    }
+  }
+  pugi::xml_node root(const char* expected) {
+    pugi::xml_node n = doc_.document_element();
+    if (!n) throw InputError(SourceLocation{loc_.file(), 1, 1}, "empty document");
+    if (std::strcmp(n.name(), expected) != 0) {
+      throw InputError(loc_.at(n), std::string("root element is <") + n.name() + ">, expected <" +
+                                       expected + ">");
+    }
+    return n;
+  }
+  SourceLocation at(const pugi::xml_node& n) const { return loc_.at(n); }
+
+  /// Reads one element (or one check): an error is kept and reading goes on with the next.
+  /// Returns whether the body finished.
+  template <class Body>
+  bool attempt(Body&& body) {
+    try {
+      body();
+      return true;
+    } catch (const InputError& e) {
+      errors_.push_back(e);
+    } catch (const Skip&) {
+      skipped_ = true;
+    }
+    return false;
+  }
+  /// Whether an element was refused or skipped so far.
+  bool has_errors() const { return !errors_.empty() || skipped_; }
+  /// Throws the errors kept, in line order: one as it is, several as InputErrors.
+  void finish() {
+    if (errors_.empty()) return;
+    std::stable_sort(errors_.begin(), errors_.end(), [](const InputError& a, const InputError& b) {
+      return a.where().line != b.where().line ? a.where().line < b.where().line
+                                              : a.where().column < b.where().column;
+    });
+    if (errors_.size() == 1) throw InputError(errors_.front());
+    throw InputErrors(errors_);
+  }
+
+  [[noreturn]] void fail(const pugi::xml_node& n, const std::string& what) const {
+    throw InputError(loc_.at(n), what);
+  }
+
+  void check_attributes(const pugi::xml_node& n, std::initializer_list<const char*> known) {
+    for (const pugi::xml_attribute a : n.attributes()) {
+      bool ok = false;
+      for (const char* k : known) ok = ok || std::strcmp(a.name(), k) == 0;
+      if (!ok && warnings_) {
+        warnings_->push_back(loc_.at(n).str() + ": warning: unknown attribute '" + a.name() +
+                             "' on <" + n.name() + "> ignored");
+      }
+    }
+  }
+  void warn(const pugi::xml_node& n, const std::string& what) {
+    if (warnings_) warnings_->push_back(loc_.at(n).str() + ": warning: " + what);
+  }
+  void unknown_element(const pugi::xml_node& n) {
+    if (warnings_) {
+      warnings_->push_back(loc_.at(n).str() + ": warning: unknown element <" + n.name() +
+                           "> ignored");
+    }
+  }
+
+  std::string required(const pugi::xml_node& n, const char* attr) const {
+    const pugi::xml_attribute a = n.attribute(attr);
+    if (!a) fail(n, std::string("<") + n.name() + "> needs attribute '" + attr + "'");
+    std::string v = a.value();
+    if (v.empty()) fail(n, std::string("attribute '") + attr + "' of <" + n.name() + "> is empty");
+    return v;
+  }
+  std::string optional(const pugi::xml_node& n, const char* attr, const std::string& def = "") const {
+    const pugi::xml_attribute a = n.attribute(attr);
+    return a ? std::string(a.value()) : def;
+  }
+  double number(const pugi::xml_node& n, const char* attr) const {
+    return to_number(n, attr, required(n, attr));
+  }
+  double number_or(const pugi::xml_node& n, const char* attr, double def) const {
+    const pugi::xml_attribute a = n.attribute(attr);
+    return a ? to_number(n, attr, a.value()) : def;
+  }
+  double to_number(const pugi::xml_node& n, const char* attr, const std::string& v) const {
+    try {
+      return parse_number(v, std::string("attribute '") + attr + "'");
+    } catch (const InputError& e) {
+      fail(n, e.message() + " on <" + n.name() + ">");
+    }
+  }
+  double in_range(const pugi::xml_node& n, const char* attr, double v, double lo, double hi) const {
+    if (!(v >= lo && v <= hi)) {
+      std::ostringstream ss;
+      ss << "attribute '" << attr << "' of <" << n.name() << "> is " << v << ", expected " << lo
+         << " to " << hi;
+      fail(n, ss.str());
+    }
+    return v;
+  }
+  int integer(const pugi::xml_node& n, const char* attr, int def) const {
+    const pugi::xml_attribute a = n.attribute(attr);
+    if (!a) return def;
+    const double v = to_number(n, attr, a.value());
+    if (v != std::floor(v) || std::fabs(v) > 16) {
+      fail(n, std::string("attribute '") + attr + "' of <" + n.name() + "> must be a whole number");
+    }
+    return static_cast<int>(v);
+  }
+  Amount amount(const pugi::xml_node& n, const char* attr) const {
+    const std::string v = required(n, attr);
+    Amount a;
+    try {
+      a = parse_amount(v);
+    } catch (const InputError& e) {
+      fail(n, "attribute '" + std::string(attr) + "': " + e.message());
+    }
+    // Files are read as strictly as their schema: a number, at most one space, and the unit
+    // spelled as the schema spells it (the command line is more lenient).
+    const std::string canon = unit_symbol(a.unit);
+    std::string number = v.size() >= canon.size() && v.compare(v.size() - canon.size(), canon.size(), canon) == 0
+                             ? v.substr(0, v.size() - canon.size())
+                             : std::string("?");
+    if (!number.empty() && number.back() == ' ') number.pop_back();
+    const bool plain = !number.empty() && number.find_first_not_of("0123456789.eE+-") == std::string::npos &&
+                       (std::isdigit(static_cast<unsigned char>(number[0])) || number[0] == '.');
+    if (!plain) {
+      fail(n, "attribute '" + std::string(attr) + "' is \"" + v + "\": write a number, at most one space " +
+                  "and the unit as the schema spells it (" + canon + "; units: M, mM, uM, mol/kg, mg/mL, " +
+                  "g/L, ug/mL, %w/v)");
+    }
+    return a;
+  }
+  double temperature(const pugi::xml_node& n, const char* attr, double def) const {
+    const double t = number_or(n, attr, def);
+    return in_range(n, attr, t, -10.0, 100.0);
+  }
+
+ private:
+  Locator loc_;
+  Warnings* warnings_;
+  pugi::xml_document doc_;
+  std::vector<InputError> errors_;
+  bool skipped_ = false;
+};
+
+Pka read_pka(Reader& r, const pugi::xml_node& n);
+/// Refuses pKa values out of ascending order (one error each) and warns where two cross.
+void check_ascending(Reader& r, const std::vector<Pka>& pkas, const std::vector<pugi::xml_node>& nodes);
+/// The 'unit' attribute alone (the value is in 'value').
+Amount unit_attribute(Reader& r, const pugi::xml_node& n);
+double formula_mass(Reader& r, const pugi::xml_node& n, const std::string& formula);
+
+}  // namespace pkarta::xml_detail
+
+#endif  // PKARTA_SRC_IO_XML_READER_H_
