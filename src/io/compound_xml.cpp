@@ -1,4 +1,6 @@
 // Reading compound files (XML).
+#include <algorithm>
+#include <iterator>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -32,11 +34,23 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
   }
   std::vector<pugi::xml_node> pka_nodes, salt_nodes;
   pugi::xml_node s0_node;
+  std::ptrdiff_t last_rank = 0;  // of the last element in kOrder
   for (const pugi::xml_node n : root.children()) {
     if (n.type() != pugi::node_element) continue;
     const std::string tag = n.name();
     // Each element on its own: an error is kept and reading goes on with the next one.
     r.attempt([&] {
+      // The schema's order (compound.xsd); an unknown element is a warning, wherever it is.
+      static const char* const kOrder[] = {"description", "pka", "intrinsic-solubility", "salt",
+                                           "measured-solubility"};
+      const auto rank = std::find(std::begin(kOrder), std::end(kOrder), tag) - std::begin(kOrder);
+      if (rank < std::end(kOrder) - std::begin(kOrder)) {
+        if (rank < last_rank) {
+          r.fail(n, "<" + tag + "> after <" + kOrder[last_rank] + ">: the elements of <compound> go in the " +
+                        "order description, pka, intrinsic-solubility, salt, measured-solubility");
+        }
+        last_rank = std::max(last_rank, rank);
+      }
       if (tag == "description") {
         c.description = n.text().get();
       } else if (tag == "pka") {

@@ -58,8 +58,17 @@ void check_ascending(Reader& r, const std::vector<Pka>& pkas, const std::vector<
   for (std::size_t i = 1; i < pkas.size(); ++i) {
     if (!(pkas[i].value > pkas[i - 1].value)) {
       std::ostringstream ss;
-      ss << "pKa values must be in ascending order (" << pkas[i].value << " follows "
-         << pkas[i - 1].value << ")";
+      // The values as the file writes them (an apparent constant: as converted, the order compared).
+      auto value = [&](std::size_t k) {
+        std::ostringstream v;
+        if (pkas[k].is_apparent()) {
+          v << pkas[k].value;
+        } else {
+          v << shown(nodes[k].attribute("value").value());
+        }
+        return v.str();
+      };
+      ss << "pKa values must be in ascending order (" << value(i) << " follows " << value(i - 1) << ")";
       ordered = r.attempt([&] { r.fail(nodes[i], ss.str()); }) && ordered;
     }
   }

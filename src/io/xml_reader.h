@@ -11,6 +11,7 @@
 #include <cmath>
 #include <cstring>
 #include <initializer_list>
+#include <optional>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -174,9 +175,16 @@ class Reader {
   }
   double in_range(const pugi::xml_node& n, const char* attr, double v, double lo, double hi) const {
     if (!(v >= lo && v <= hi)) {
+      // The value as the file writes it when it is the attribute's own (not a converted one).
+      const pugi::xml_attribute a = n.attribute(attr);
       std::ostringstream ss;
-      ss << "attribute '" << attr << "' of <" << n.name() << "> is " << v << ", expected " << lo
-         << " to " << hi;
+      ss << "attribute '" << attr << "' of <" << n.name() << "> is ";
+      if (a && number_text(a.value()) == v) {
+        ss << shown(a.value());
+      } else {
+        ss << v;
+      }
+      ss << ", expected " << lo << " to " << hi;
       fail(n, ss.str());
     }
     return v;
@@ -213,6 +221,14 @@ class Reader {
                   "g/L, ug/mL, %w/v)");
     }
     return a;
+  }
+  // The attribute's text as a number, if it is one.
+  static std::optional<double> number_text(const char* text) {
+    try {
+      return parse_number(text, "");
+    } catch (const InputError&) {
+      return std::nullopt;
+    }
   }
   double temperature(const pugi::xml_node& n, const char* attr, double def) const {
     const double t = number_or(n, attr, def);
