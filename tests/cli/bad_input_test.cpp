@@ -157,6 +157,9 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
                " <intrinsic-solubility value='1' unit='ug/mL'/>\n"),                  // 80
       library(" <system id='s' name='s' source='invented'>\n  <pka value='4' type='acid' dH='-40'/>\n"
               "  <pka value='4.1' type='acid' dH='40'/>\n </system>\n"),              // 81
+      compound(" <pka value='8' type='bass'/>\n <intrinsic-solubility value='1' unit='mg/ml'/>\n"
+               " <salt id='free' counterion='Cl-' ksp='1'/>\n"),                     // 82 three errors
+      compound(" <intrinsic-solubility value='1' unit='ug/mL'/>\n <pka value='8' type='base'/>\n"),  // 83
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -354,6 +357,9 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
        ":3:2: warning: pKa 2 (7.4) and pKa 1 (7) cross by their temperature dependence: out of order from 31 to 60 °C"},
       {"compound file", F(80), "profile --compound {F} --temp 60", 0, "the macroscopic model, its constants in ascending order, no longer holds there"},
       {"library file", F(81), "check {F}", 0, ":4:3: warning: pKa 2 (4.1) and pKa 1 (4) cross by their temperature dependence: out of order from"},
+      {"compound file", F(82), "check {F}", 2, ":4:2: salt id 'free' is reserved"},
+      {"compound file", F(82), "mix --compound {F} --dose 1mg/mL", 2, ":3:2: attribute 'unit' is \"mg/ml\""},
+      {"compound file", F(83), "check {F}", 2, ":3:2: <pka> after <intrinsic-solubility>: the elements of <compound> go in the order"},
       // -o of the one-stream commands: checked before any work
       {"option", nullptr, "mix --add KH2PO4=25mM --format json -o /nonexistent-folder/x.json", 2,
        "/nonexistent-folder/x.json: cannot write: the folder /nonexistent-folder does not exist"},

@@ -274,6 +274,63 @@ TEST(Schema, CheckAgreesWithTheXsdOnUnitsAndAmounts) {
   }
 }
 
+// Files xmllint refuses for the order of their elements are refused by `check` too (exit 2, the
+// element out of order named at its line); the order is the schema's sequence.
+TEST(Schema, CheckAgreesWithTheXsdOnElementOrder) {
+  const std::string src = PKARTA_SOURCE_DIR;
+  auto xsd_ok = [&](const std::string& file) {
+    const std::string cmd = "xmllint --noout --schema " + src + "/compounds/schema/compound.xsd " + file +
+                            " >/dev/null 2>&1";
+    return std::system(cmd.c_str()) == 0;
+  };
+  const std::string pka = "\n<pka value='8' type='base'/>";
+  const std::string s0 = "\n<intrinsic-solubility value='1' unit='ug/mL'/>";
+  const std::string salt = "\n<salt id='hydrochloride' counterion='Cl-' ksp='1e-3'/>";
+  const std::string desc = "\n<description>a base</description>";
+  const std::string points = "\n<measured-solubility><point pH='7' value='1' unit='ug/mL'/></measured-solubility>";
+  int i = 0;
+  for (const std::string& body : {desc + pka + s0 + salt + points, s0 + pka, pka + salt + s0, pka + s0 + points + salt,
+                                  pka + desc + s0}) {
+    const std::string f = write_file("order" + std::to_string(i++) + ".xml",
+                                     "<compound id='x' name='x' molar-mass='300'>" + body + "\n</compound>\n");
+    const RunResult r = run("check " + f);
+    EXPECT_EQ(r.code == 0, xsd_ok(f)) << body << ": " << r.err;
+    if (r.code != 0) {
+      EXPECT_EQ(r.code, 2) << body;
+      EXPECT_NE(r.err.find("> after <"), std::string::npos) << r.err;
+      EXPECT_TRUE(r.out.empty()) << r.out;
+    }
+  }
+}
+
+// `check` names every error of a file in line order, and prints nothing on standard output;
+// the other commands refuse the file the same way (every error, exit 2, nothing written).
+TEST(Cli, CheckReportsEveryErrorOfAFileInLineOrder) {
+  const std::string f = write_file("three-errors.xml",
+                                   "<compound id='x' name='x' molar-mass='300'>\n"
+                                   " <pka value='8' type='base' sd='9'/>\n"
+                                   " <intrinsic-solubility value='1' unit='ug/mL'/>\n"
+                                   " <salt id='free' counterion='Cl-' ksp='1'/>\n"
+                                   " <salt id='mesylate' counterion='Cl-' ksp='0'/>\n"
+                                   "</compound>\n");
+  const std::string expected = "pkarta: " + f + ":2:2: attribute 'sd' of <pka> is 9, expected 0 to 5\n" +
+                               "pkarta: " + f + ":4:2: salt id 'free' is reserved\n" +
+                               "pkarta: " + f + ":5:2: ksp must be > 0, got 0\n";
+  const RunResult r = run("check " + f);
+  EXPECT_EQ(r.code, 2);
+  EXPECT_EQ(r.err, expected);
+  EXPECT_TRUE(r.out.empty()) << r.out;
+  // Two files: the errors of each, in the order of the files.
+  const RunResult two = run("check " + f + " compounds/demo-base.xml " + f);
+  EXPECT_EQ(two.code, 2);
+  EXPECT_EQ(two.err, expected + expected);
+  EXPECT_TRUE(two.out.empty()) << two.out;
+  const RunResult mix = run("mix --compound " + f + " --dose 1mg/mL");
+  EXPECT_EQ(mix.code, 2);
+  EXPECT_EQ(mix.err, expected);
+  EXPECT_TRUE(mix.out.empty()) << mix.out;
+}
+
 // A label claim "equivalent to 2 mg/mL of the base" (common practice for salts): with
 // --dose-as free the amount converts with the free form's molar mass (demo base 311.4 g/mol,
 // invented), otherwise with the salt's (hydrochloride 347.9 g/mol); the chloride follows the
