@@ -147,7 +147,8 @@ Library parse_library(const std::string& text, const std::string& name, const Li
   auto reagent_mass = [&](const std::string& id) {
     auto it = lib.reagents.find(id);
     if (it != lib.reagents.end()) return it->second.molar_mass_g_per_mol;
-    return base->reagents.at(id).molar_mass_g_per_mol;
+    // has_reagent() found it in `base` (at() is the invariant's check).
+    return (base != nullptr ? *base : lib).reagents.at(id).molar_mass_g_per_mol;
   };
   // Pass 3: buffers and media; unknown top-level elements.
   for (const pugi::xml_node n : root.children()) {
