@@ -98,18 +98,8 @@ class Solver {
   Split iterate(F&& amounts) const {
     EquilibriumModel model(alone_);
     Split x;
-    double ionic = 0.0;
-    for (int it = 0; it < 200; ++it) {
-      model.set_ionic_strength(ionic);
-      const EquilibriumModel::Evaluation ev = model.evaluate(options_.pH);
-      const double i_new = ev.ionic_strength + amounts(ev.charge, x);
-      if (options_.activity == ActivityModel::kIdeal ||
-          std::fabs(i_new - ionic) <= 1e-13 * std::max(i_new, 1e-30)) {
-        x.converged = true;
-        break;
-      }
-      ionic = i_new;
-    }
+    x.converged = balance_charge_at_pH(model, options_.pH, options_.activity == ActivityModel::kIdeal,
+                                       [&](double q) { return amounts(q, x); });
     return x;
   }
 

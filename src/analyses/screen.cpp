@@ -95,25 +95,14 @@ class BufferRun {
     p.pH = pH;
     alone_.systems[0].total_mol_per_L = conc;
     EquilibriumModel model(alone_);
-    double ionic = 0.0;
-    p.converged = false;
-    for (int it = 0; it < 200; ++it) {
-      model.set_ionic_strength(ionic);
-      const EquilibriumModel::Evaluation ev = model.evaluate(pH);
-      const double q = ev.charge;  // > 0: anions (acid titrant) needed; < 0: cations
+    p.converged = balance_charge_at_pH(model, pH, activity_ == ActivityModel::kIdeal, [&](double q) {
+      // q > 0: anions (acid titrant) needed; < 0: cations
       const Titrant& t = q > 0 ? acid_ : base_;
       const double amount = -q / t.net_charge;
       p.titrant = amount > 0 ? t.id : "";
       p.titrant_mol_per_L = amount > 0 ? amount : 0.0;
-      const double i_new = ev.ionic_strength + 0.5 * t.z2_sum * p.titrant_mol_per_L;
-      p.ionic_strength_mol_per_L = i_new;
-      if (activity_ == ActivityModel::kIdeal ||
-          std::fabs(i_new - ionic) <= 1e-13 * std::max(i_new, 1e-30)) {
-        p.converged = true;
-        break;
-      }
-      ionic = i_new;
-    }
+      return 0.5 * t.z2_sum * p.titrant_mol_per_L;
+    }, &p.ionic_strength_mol_per_L);
     return p;
   }
 

@@ -7,6 +7,7 @@
 #ifndef PKARTA_EQUILIBRIUM_H_
 #define PKARTA_EQUILIBRIUM_H_
 
+#include <algorithm>
 #include <array>
 #include <cmath>
 #include <cstdint>
@@ -325,6 +326,27 @@ void resolve_salt_ksp(Compound& compound, const Library& library);
 
 /// The salt's Ksp at temperature T (van 't Hoff with its dH of dissolution, else constant).
 double salt_ksp_at(const Salt& salt, double temperature_C);
+
+/// Titration at a fixed pH, the one loop of the buffer screen and the recipes: the charge of
+/// the model's species at pH (mol/L; > 0 when anions must be added) is balanced by strong ions
+/// the caller adds, `added(q)` returning their share of the ionic strength, and the ionic
+/// strength is iterated to self-consistency (fixed point, 1e-13 relative, at most 200 steps;
+/// one step when `ideal`). Returns whether it converged; `ionic_strength` (may be null) gets the
+/// last ionic strength computed, mol/L.
+template <typename F>
+bool balance_charge_at_pH(EquilibriumModel& model, double pH, bool ideal, F&& added,
+                          double* ionic_strength = nullptr) {
+  double ionic = 0.0;
+  for (int it = 0; it < 200; ++it) {
+    model.set_ionic_strength(ionic);
+    const EquilibriumModel::Evaluation ev = model.evaluate(pH);
+    const double i_new = ev.ionic_strength + added(ev.charge);
+    if (ionic_strength) *ionic_strength = i_new;
+    if (ideal || std::fabs(i_new - ionic) <= 1e-13 * std::max(i_new, 1e-30)) return true;
+    ionic = i_new;
+  }
+  return false;
+}
 
 /// Dissolved drug (mol/L) with an m:n salt at saturation: D from (alpha_j D)^m x^n = Ksp', with
 /// Ksp' the concentration product, alpha_j the fraction of the drug species in the salt and x
