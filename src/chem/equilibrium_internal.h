@@ -14,8 +14,9 @@ inline constexpr int kGammaOffset = 16;  // gamma_ table covers charges -16..+16
 inline constexpr double kPhLow = -3.0;   // bracket of every solve: charge balance > 0 here ...
 inline constexpr double kPhHigh = 17.0;  // ... and < 0 here, for totals up to 10 mol/L
 inline constexpr double kEps = 1e-12;    // relative slack of the phase-consistency checks
-// Largest relative charge residual of a returned state (docs/model.md, "Solver").
+// Largest relative charge and mass residuals of a returned state (docs/model.md, "Solver").
 inline constexpr double kMaxChargeResidual = 1e-10;
+inline constexpr double kMaxMassResidual = 1e-10;
 inline constexpr int kMaxComp = 1 + kMaxSalts;  // partition components: the drug and each counterion
 
 /// x^k for a small positive integer k, by multiplication (x^1 is x itself).

@@ -17,6 +17,7 @@ namespace pkarta {
 using equilibrium_detail::kPhLow;
 using equilibrium_detail::kPhHigh;
 using equilibrium_detail::kMaxChargeResidual;
+using equilibrium_detail::kMaxMassResidual;
 using equilibrium_detail::ipow;
 
 EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
@@ -491,7 +492,14 @@ Equilibrium solve(const Mixture& mixture, const SolverOptions& options) {
   }
   r.mass_residual_rel = mass_res;
   add_range_warnings(mixture, &r);
-  if (!all_finite(r)) return refused_as_diverging(mixture, r);
+  // Far beyond the activity model's range the coefficients of highly charged species can also
+  // underflow a system's species fractions to zero, which shows as a lost mass balance.
+  const bool beyond_range =
+      (mixture.activity == ActivityModel::kDavies && r.ionic_strength_mol_per_L > kDaviesMaxIonicStrength) ||
+      (mixture.activity != ActivityModel::kIdeal && r.ionic_strength_mol_per_L > kCheckedMaxIonicStrength);
+  if (!all_finite(r) || (beyond_range && !(mass_res <= kMaxMassResidual))) {
+    return refused_as_diverging(mixture, r);
+  }
   r.termination = Termination::kConverged;
   r.message = "converged";
   return r;
