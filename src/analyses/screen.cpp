@@ -164,7 +164,53 @@ class BufferRun {
       signed_base += step;
       set(signed_base);
     }
+    if (!p.converged) bisect_titrant(p, signed_base, target, set);
     return p;
+  }
+
+  // The adjusted titrant by bracketing and bisection on the signed amount, for the cases the
+  // capacity-limited Newton steps do not reach (a dose far from the target with little buffer:
+  // the pH rises monotonically with the strong base added).
+  template <typename Set>
+  void bisect_titrant(BufferPreparation& p, double start, double target, Set&& set) {
+    auto ph_at = [&](double signed_base, double* pH) {
+      set(signed_base);
+      EquilibriumModel model(mixture(p));
+      const StateSummary s = model.solve(options_, target);
+      *pH = s.pH;
+      if (s.converged) p.ionic_strength_mol_per_L = s.ionic_strength_mol_per_L;
+      return s.converged;
+    };
+    double lo = start, hi = start, pH_lo = 0.0, pH_hi = 0.0;
+    if (!ph_at(start, &pH_lo)) return;
+    pH_hi = pH_lo;
+    double width = std::max(1e-6, std::fabs(start));
+    for (int it = 0; it < 80 && !(pH_lo <= target && target <= pH_hi); ++it) {
+      if (pH_lo > target) {
+        hi = lo;
+        pH_hi = pH_lo;
+        lo -= width;
+        if (!ph_at(lo, &pH_lo)) return;
+      } else {
+        lo = hi;
+        pH_lo = pH_hi;
+        hi += width;
+        if (!ph_at(hi, &pH_hi)) return;
+      }
+      width *= 2.0;
+    }
+    if (!(pH_lo <= target && target <= pH_hi)) return;
+    for (int it = 0; it < 200; ++it) {
+      const double mid = 0.5 * (lo + hi);
+      double pH_mid = 0.0;
+      if (!ph_at(mid, &pH_mid)) return;
+      if (std::fabs(pH_mid - target) < 1e-7) {
+        p.converged = true;
+        return;
+      }
+      (pH_mid < target ? lo : hi) = mid;
+      if (hi - lo <= 1e-15 * std::max(std::fabs(lo), std::fabs(hi))) break;
+    }
   }
 
   // pH after the drug at total buffer concentration conc (NaN when a solve fails).
@@ -370,6 +416,13 @@ ScreenCriterion make_criterion(const char* id, const char* quantity, double low,
 }
 
 }  // namespace
+
+BufferPreparation dose_titration(const Library& library, const Buffer& buffer, const ScreenJob& job,
+                                 const ScreenOptions& options) {
+  BufferRun run(library, buffer, &job.compound, job.dose_mol_per_L, job.form, options.temperature_C,
+                options.activity);
+  return run.prepare_for(0.0, options.target_pH, ScreenPreparation::kAdjusted);
+}
 
 const ScreenCriterion* ScreenResult::criterion(const std::string& id) const {
   for (const ScreenCriterion& c : criteria) {

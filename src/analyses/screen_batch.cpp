@@ -47,6 +47,11 @@ void check_job(const ScreenJob& job) {
   }
 }
 
+bool any_ok(const ScreenReport& rep) {
+  return std::any_of(rep.results.begin(), rep.results.end(),
+                     [](const ScreenResult& r) { return r.status == ScreenStatus::kOk; });
+}
+
 // Runs body(i) for i in [0, n) on `threads` threads.
 void parallel_for(std::size_t n, int threads, const std::function<void(std::size_t)>& body,
                   const std::function<void()>& after_each) {
@@ -86,6 +91,45 @@ void parallel_for(std::size_t n, int threads, const std::function<void(std::size
   if (failure) std::rethrow_exception(failure);
 }
 
+
+// For each premade screen in which no buffer is ok: the same buffers screened "adjusted" (its
+// ok results kept, ranked) and the titrant the dose alone needs, with the titrants of the
+// leading adjusted buffer (else of the closest premade one).
+void add_fallbacks(const Library& library, const std::vector<ScreenJob>& jobs,
+                   const std::vector<const Buffer*>& buffers, const ScreenOptions& options, int threads,
+                   std::vector<ScreenReport>& reports) {
+  if (options.preparation != ScreenPreparation::kPremade || buffers.empty()) return;
+  std::vector<std::size_t> failing;
+  for (std::size_t i = 0; i < reports.size(); ++i) {
+    if (!any_ok(reports[i])) failing.push_back(i);
+  }
+  if (failing.empty()) return;
+  ScreenOptions adjusted = options;
+  adjusted.preparation = ScreenPreparation::kAdjusted;
+  const std::size_t nb = buffers.size();
+  std::vector<std::vector<ScreenResult>> results(failing.size(), std::vector<ScreenResult>(nb));
+  parallel_for(failing.size() * nb, threads, [&](std::size_t k) {
+    const std::size_t i = failing[k / nb], b = k % nb;
+    results[k / nb][b] = screen_buffer(library, *buffers[b], jobs[i], reports[i].solubility_at_target_mol_per_L, adjusted);
+  }, nullptr);
+  for (std::size_t f = 0; f < failing.size(); ++f) {
+    ScreenReport& rep = reports[failing[f]];
+    ScreenFallback fb;
+    rank_screen_results(results[f]);
+    for (ScreenResult& r : results[f]) {
+      if (r.status == ScreenStatus::kOk) fb.adjusted.push_back(std::move(r));
+    }
+    const std::string& lead = fb.adjusted.empty() ? rep.results.front().buffer : fb.adjusted.front().buffer;
+    const BufferPreparation t = dose_titration(library, library.buffer(lead), jobs[failing[f]], options);
+    fb.dose_titrant_found = t.converged;
+    fb.dose_titrant = t.converged ? t.titrant : "";
+    fb.dose_titrant_mol_per_L = t.converged ? t.titrant_mol_per_L : 0.0;
+    if (!fb.dose_titrant.empty()) {
+      fb.dose_titrant_mg_per_mL = fb.dose_titrant_mol_per_L * library.reagent(fb.dose_titrant).molar_mass_g_per_mol;
+    }
+    rep.fallback = std::move(fb);
+  }
+}
 
 }  // namespace
 
@@ -172,8 +216,9 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
     ++done;
     if (batch.progress) batch.progress(done, total);
   });
+  for (ScreenReport& rep : reports) rank_screen_results(rep.results);
+  add_fallbacks(library, jobs, buffers, options, threads, reports);
   for (ScreenReport& rep : reports) {
-    rank_screen_results(rep.results);
     if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
       rep.warnings.push_back("the dose exceeds the drug's solubility in water at the target pH");
     }

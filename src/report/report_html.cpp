@@ -7,6 +7,7 @@
 
 #include "pkarta/base/format.h"
 #include "pkarta/report/svg_chart.h"
+#include "pkarta/writers/screen_writer.h"
 #include "report_internal.h"
 
 namespace pkarta {
@@ -163,8 +164,15 @@ void write_summary(const Page& pg) {
               fixed(sr.high_temperature_C, 0) + " °C)",
           "Highlighted first row of the buffer screen (" + pg.number("screen") + ").");
     } else {
-      key(out, "lead", "Recommended buffer", "none",
-          "No screened buffer holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) + " with this dose.",
+      const bool adjusted = sr.fallback && !sr.fallback->adjusted.empty();
+      const ScreenResult* alt = adjusted ? &sr.fallback->adjusted.front() : nullptr;
+      key(out, "lead", "Recommended buffer",
+          alt && alt->recommended_conc_mol_per_L
+              ? alt->name + " " + sig(*alt->recommended_conc_mol_per_L * 1e3, 3) + " mM, pH adjusted after the dose"
+              : std::string("none"),
+          "No screened buffer made first at the target holds pH " + fixed(sr.target_pH, 2) + " ± " +
+              fixed(sr.tolerance_pH, 2) + " with this dose" +
+              (alt ? "; made with the pH adjusted after the dose (" + (alt->titrant.empty() ? std::string("no titrant") : sig(alt->titrant_mol_per_L * 1e3, 3) + " mM " + alt->titrant) + "), it holds it (set by " + alt->binding + ")." : std::string(".")),
           "Buffer screen (" + pg.number("screen") + ").");
     }
     key(out, "", "Solubility at target pH", sig(sr.solubility_at_target_mol_per_L * mm, 3) + " mg/mL",
@@ -363,6 +371,15 @@ void write_screen(const Page& pg) {
         << " mOsm/L (ideal).</p>\n";
   } else {
     out << "<p class=\"lead-statement\"><strong>No buffer holds the target with this dose.</strong></p>\n";
+    if (sr.fallback) {
+      out << "<p>" << esc(screen_fallback_summary(sr)) << "</p>\n";
+      const std::vector<std::string> items = screen_fallback_items(sr);
+      if (!items.empty()) {
+        out << "<ul>\n";
+        for (const std::string& item : items) out << "<li>" << esc(item) << "</li>\n";
+        out << "</ul>\n";
+      }
+    }
   }
   if (const ReportTable* t = find_table(pg.tables, "screen.csv")) {
     // Buffers with no pKa near the target are named below the table, not given a row each.

@@ -25,16 +25,18 @@ double osmolality_estimate(double osmolarity_mOsm_per_L, double temperature_C) {
 }
 
 // Word-wraps a paragraph at `width` columns.
-void write_wrapped(std::ostream& out, const std::string& text, std::size_t width = 100) {
-  std::size_t col = 0;
+void write_wrapped(std::ostream& out, const std::string& text, std::size_t width = 100,
+                   const std::string& indent = "") {
+  out << indent;
+  std::size_t col = indent.size();
   std::size_t i = 0;
   while (i < text.size()) {
     const std::size_t j = std::min(text.find(' ', i), text.size());
     const std::string word = text.substr(i, j - i);
-    if (col > 0 && col + 1 + word.size() > width) {
-      out << "\n";
-      col = 0;
-    } else if (col > 0) {
+    if (col > indent.size() && col + 1 + word.size() > width) {
+      out << "\n" << indent;
+      col = indent.size();
+    } else if (col > indent.size()) {
       out << ' ';
       ++col;
     }
@@ -94,6 +96,14 @@ void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
   }
 }
 
+// The next step when no buffer is ok made premade (screen_fallback_summary and _items).
+void write_fallback(const ScreenReport& rep, std::ostream& out) {
+  if (!rep.fallback) return;
+  out << "\n";
+  write_wrapped(out, screen_fallback_summary(rep), 100, "  ");
+  for (const std::string& item : screen_fallback_items(rep)) out << "    " << item << "\n";
+}
+
 nlohmann::ordered_json opt_number(const std::optional<double>& v) {
   if (!v || !std::isfinite(*v)) return nullptr;
   return *v;
@@ -102,6 +112,54 @@ nlohmann::ordered_json opt_number(const std::optional<double>& v) {
 nlohmann::ordered_json number(double v) {
   if (!std::isfinite(v)) return nullptr;
   return v;
+}
+
+nlohmann::ordered_json result_json(const ScreenReport& rep, const ScreenResult& r, int rank) {
+  nlohmann::ordered_json x;
+  x["rank"] = rank;
+  x["buffer"] = r.buffer;
+  x["name"] = r.name;
+  x["status"] = screen_status_name(r.status);
+  x["min_conc_mol_per_L"] = opt_number(r.min_conc_mol_per_L);
+  x["min_conc_at_lower_bound"] = r.min_conc_at_lower_bound;
+  x["conc_used_mol_per_L"] = r.conc_used_mol_per_L;
+  x["max_conc_mol_per_L"] = r.max_conc_mol_per_L;
+  x["titrant"] = r.titrant.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.titrant);
+  x["titrant_mol_per_L"] = r.titrant_mol_per_L;
+  x["nearest_pKa"] = number(r.nearest_pka);
+  x["pH_after_drug"] = number(r.pH_after_drug);
+  x["pH_drift"] = number(r.pH_drift);
+  x["capacity_mol_per_L_per_pH"] = number(r.capacity_mol_per_L_per_pH);
+  x["ionic_strength_mol_per_L"] = number(r.ionic_strength_mol_per_L);
+  x["osmolarity_mOsm_per_L"] = number(r.osmolarity_mOsm_per_L);
+  x["osmolality_estimate_mOsm_per_kg"] = number(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C));
+  x["pH_at_5C"] = number(r.pH_at_5C);
+  x["pH_at_40C"] = number(r.pH_at_40C);
+  x["drug_solid"] = r.drug_solid;
+  if (rep.dose_range_fraction > 0) {
+    x["worst_pH_in_dose_range"] = opt_number(r.worst_pH_in_dose_range);
+    x["dose_range_within_tolerance"] = r.dose_range_within_tolerance;
+  }
+  x["binding"] = r.binding.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.binding);
+  x["recommended_conc_mol_per_L"] = opt_number(r.recommended_conc_mol_per_L);
+  x["pH_after_acid_challenge"] = number(r.pH_after_acid_challenge);
+  x["pH_after_base_challenge"] = number(r.pH_after_base_challenge);
+  nlohmann::ordered_json crit = nlohmann::ordered_json::object();
+  for (const ScreenCriterion& c : r.criteria) {
+    nlohmann::ordered_json y;
+    y["quantity"] = c.quantity;
+    y["value"] = number(c.value);
+    y["limit_low"] = number(c.limit_low);
+    y["limit_high"] = number(c.limit_high);
+    y["pass"] = c.pass;
+    y["min_conc_mol_per_L"] = opt_number(c.min_conc_mol_per_L);
+    crit[c.id] = y;
+  }
+  x["criteria"] = crit;
+  x["route_flags"] = r.route_flags;
+  x["routes"] = r.routes;
+  x["warnings"] = r.warnings;
+  return x;
 }
 
 nlohmann::ordered_json report_json(const ScreenReport& rep) {
@@ -123,54 +181,21 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
   j["solubility_at_target_pH_mol_per_L"] = number(rep.solubility_at_target_mol_per_L);
   nlohmann::ordered_json results = nlohmann::ordered_json::array();
   int rank = 0;
-  for (const ScreenResult& r : rep.results) {
-    nlohmann::ordered_json x;
-    x["rank"] = ++rank;
-    x["buffer"] = r.buffer;
-    x["name"] = r.name;
-    x["status"] = screen_status_name(r.status);
-    x["min_conc_mol_per_L"] = opt_number(r.min_conc_mol_per_L);
-    x["min_conc_at_lower_bound"] = r.min_conc_at_lower_bound;
-    x["conc_used_mol_per_L"] = r.conc_used_mol_per_L;
-    x["max_conc_mol_per_L"] = r.max_conc_mol_per_L;
-    x["titrant"] = r.titrant.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.titrant);
-    x["titrant_mol_per_L"] = r.titrant_mol_per_L;
-    x["nearest_pKa"] = number(r.nearest_pka);
-    x["pH_after_drug"] = number(r.pH_after_drug);
-    x["pH_drift"] = number(r.pH_drift);
-    x["capacity_mol_per_L_per_pH"] = number(r.capacity_mol_per_L_per_pH);
-    x["ionic_strength_mol_per_L"] = number(r.ionic_strength_mol_per_L);
-    x["osmolarity_mOsm_per_L"] = number(r.osmolarity_mOsm_per_L);
-    x["osmolality_estimate_mOsm_per_kg"] = number(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C));
-    x["pH_at_5C"] = number(r.pH_at_5C);
-    x["pH_at_40C"] = number(r.pH_at_40C);
-    x["drug_solid"] = r.drug_solid;
-    if (rep.dose_range_fraction > 0) {
-      x["worst_pH_in_dose_range"] = opt_number(r.worst_pH_in_dose_range);
-      x["dose_range_within_tolerance"] = r.dose_range_within_tolerance;
-    }
-    x["binding"] = r.binding.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(r.binding);
-    x["recommended_conc_mol_per_L"] = opt_number(r.recommended_conc_mol_per_L);
-    x["pH_after_acid_challenge"] = number(r.pH_after_acid_challenge);
-    x["pH_after_base_challenge"] = number(r.pH_after_base_challenge);
-    nlohmann::ordered_json crit = nlohmann::ordered_json::object();
-    for (const ScreenCriterion& c : r.criteria) {
-      nlohmann::ordered_json y;
-      y["quantity"] = c.quantity;
-      y["value"] = number(c.value);
-      y["limit_low"] = number(c.limit_low);
-      y["limit_high"] = number(c.limit_high);
-      y["pass"] = c.pass;
-      y["min_conc_mol_per_L"] = opt_number(c.min_conc_mol_per_L);
-      crit[c.id] = y;
-    }
-    x["criteria"] = crit;
-    x["route_flags"] = r.route_flags;
-    x["routes"] = r.routes;
-    x["warnings"] = r.warnings;
-    results.push_back(x);
-  }
+  for (const ScreenResult& r : rep.results) results.push_back(result_json(rep, r, ++rank));
   j["results"] = results;
+  if (rep.fallback) {
+    const ScreenFallback& fb = *rep.fallback;
+    nlohmann::ordered_json f;
+    f["dose_titrant"] = fb.dose_titrant.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(fb.dose_titrant);
+    f["dose_titrant_mol_per_L"] = fb.dose_titrant_found ? nlohmann::ordered_json(fb.dose_titrant_mol_per_L) : nlohmann::ordered_json(nullptr);
+    f["dose_titrant_mg_per_mL"] = fb.dose_titrant_found ? nlohmann::ordered_json(fb.dose_titrant_mg_per_mL) : nlohmann::ordered_json(nullptr);
+    f["preparation"] = "adjusted";
+    nlohmann::ordered_json ok = nlohmann::ordered_json::array();
+    int k = 0;
+    for (const ScreenResult& r : fb.adjusted) ok.push_back(result_json(rep, r, ++k));
+    f["results"] = ok;
+    j["premade_fallback"] = f;
+  }
   j["warnings"] = rep.warnings;
   return j;
 }
@@ -178,6 +203,42 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
 }  // namespace
 
 std::string screen_method_note(ActivityModel activity) { return method_note(activity); }
+
+std::string screen_fallback_summary(const ScreenReport& rep) {
+  if (!rep.fallback) return "";
+  const ScreenFallback& fb = *rep.fallback;
+  std::string text = "With the buffer made first at pH " + fixed(rep.target_pH, 2) + ", the dose itself moves the pH: ";
+  if (!fb.dose_titrant_found) {
+    text += "no amount of the buffer's titrant brings the dose alone in water to the target.";
+  } else if (fb.dose_titrant.empty() || fb.dose_titrant_mol_per_L < 1e-6) {
+    text += "the dose alone in water sits at the target.";
+  } else {
+    text += "dissolved alone in water, the dose (" + form_text(rep) + ") needs " +
+            sig(1e3 * fb.dose_titrant_mol_per_L, 3) + " mM " + fb.dose_titrant + " (" +
+            sig(fb.dose_titrant_mg_per_mL, 3) + " mg/mL) to reach it.";
+  }
+  if (fb.adjusted.empty()) {
+    return text + " Made with the pH adjusted after the dose (--preparation adjusted), no buffer is ok either.";
+  }
+  return text + " Made with the pH adjusted after the dose (--preparation adjusted: buffer and dose dissolved, "
+                "then the titrant added to the target), these hold it:";
+}
+
+std::vector<std::string> screen_fallback_items(const ScreenReport& rep) {
+  std::vector<std::string> items;
+  if (!rep.fallback) return items;
+  for (std::size_t k = 0; k < rep.fallback->adjusted.size() && k < 3; ++k) {
+    const ScreenResult& r = rep.fallback->adjusted[k];
+    std::string line = r.buffer + " " +
+                       (r.recommended_conc_mol_per_L ? sig(1e3 * *r.recommended_conc_mol_per_L, 3) : std::string("?")) +
+                       " mM";
+    if (!r.titrant.empty()) line += " with " + sig(1e3 * r.titrant_mol_per_L, 3) + " mM " + r.titrant;
+    line += " (set by " + r.binding + "; pH " + fixed(r.pH_at_5C, 2) + " at " + fixed(rep.low_temperature_C, 0) +
+            " °C, " + fixed(r.pH_at_40C, 2) + " at " + fixed(rep.high_temperature_C, 0) + " °C)";
+    items.push_back(line);
+  }
+  return items;
+}
 const char* screen_osmolality_note() { return kOsmolalityNote; }
 
 namespace {
@@ -307,6 +368,7 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     }
     write_screen_criteria(rep, out);
     write_screen_near_misses(rep, out);
+    write_fallback(rep, out);
     std::vector<std::string> notes;
     for (const ScreenResult& r : rep.results) {
       for (const std::string& w : r.route_flags) notes.push_back(r.buffer + ": " + w);

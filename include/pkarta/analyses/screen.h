@@ -170,6 +170,17 @@ struct ScreenResult {
   double temperature_drift_pH() const { return pH_at_40C - pH_at_5C; }
 };
 
+/// What a formulator does next when no buffer holds the target with the buffer made first
+/// (preparation premade): the strong acid or base the dose itself needs to reach the target in
+/// water, and the same screen with the pH adjusted after the dose.
+struct ScreenFallback {
+  std::string dose_titrant;              ///< reagent (a buffer titrant, e.g. NaOH); "" when none is needed
+  double dose_titrant_mol_per_L = 0.0;   ///< amount bringing the dose alone in water to the target pH
+  double dose_titrant_mg_per_mL = 0.0;   ///< the same as mass of the reagent as listed in the library
+  bool dose_titrant_found = false;       ///< false when that titration did not converge
+  std::vector<ScreenResult> adjusted;    ///< ok results of the screen made "adjusted", ranked
+};
+
 /// A screen of one compound: ranked results (achievable first by concentration needed, then
 /// by |pH drift over 5-40 °C|; then not-achievable, dose-not-soluble, outside-range).
 struct ScreenReport {
@@ -193,6 +204,8 @@ struct ScreenReport {
   std::optional<double> max_drift_pH;
   double round_step_mol_per_L = 0.0;
   std::vector<ScreenResult> results;
+  /// Set when preparation is premade and no result is ok (see ScreenFallback).
+  std::optional<ScreenFallback> fallback;
   std::vector<std::string> warnings;
 };
 
@@ -207,6 +220,12 @@ struct ScreenJob {
 /// solubility in water at the target pH (see screen_solubility_at_target).
 ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const ScreenJob& job,
                            double solubility_at_target_mol_per_L, const ScreenOptions& options);
+
+/// The buffer's own titrant (acid or base) that brings the dose alone, dissolved in water
+/// without the buffer system, to the target pH at the run temperature (closed system, the
+/// salt's counterion included). `converged` is false when no amount does.
+BufferPreparation dose_titration(const Library& library, const Buffer& buffer, const ScreenJob& job,
+                                 const ScreenOptions& options);
 
 /// The drug's solubility in water at the target pH and run temperature (solubility_at_pH).
 double screen_solubility_at_target(const Library& library, const Compound& compound,

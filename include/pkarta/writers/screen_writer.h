@@ -20,6 +20,11 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
 void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out);
 /// The method note and the osmolality note the writers end with.
 std::string screen_method_note(ActivityModel activity);
+/// When the screen has a fallback (no buffer ok made premade): one paragraph saying what the dose
+/// alone needs and that the pH can be adjusted after the dose, and one line per adjusted buffer
+/// that holds the target (at most three). Empty without a fallback.
+std::string screen_fallback_summary(const ScreenReport& report);
+std::vector<std::string> screen_fallback_items(const ScreenReport& report);
 const char* screen_osmolality_note();
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
 /// The JSON document `pkarta screen` prints: write_screen_json's object, with "screens" (one

@@ -1,0 +1,99 @@
+// The buffer screen's next step when no buffer holds the target made premade: the titrant the
+// dose alone needs (checked against the charge balance written out by hand) and the same
+// buffers screened with the pH adjusted after the dose.
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+#include "pkarta/analyses/screen.h"
+#include "pkarta/chem/water.h"
+#include "pkarta/io/xml_input.h"
+
+namespace pkarta {
+namespace {
+
+// An invented monoprotic acid, pKa 4.20 (thermodynamic, no temperature dependence), soluble
+// enough that no solid forms in these checks.
+Compound invented_acid() {
+  Compound c;
+  c.id = "acid-4.2";
+  c.name = "invented acid";
+  c.molar_mass_g_per_mol = 250.0;
+  c.system.id = c.id;
+  Pka p;
+  p.value = 4.20;
+  p.type = GroupType::kAcid;
+  c.system.pkas.push_back(p);
+  c.has_intrinsic_solubility = true;
+  c.s0_mol_per_L = 1.0;
+  return c;
+}
+
+ScreenJob acid_job(double dose_mol_per_L) {
+  ScreenJob j;
+  j.compound = invented_acid();
+  j.dose_mol_per_L = dose_mol_per_L;
+  return j;
+}
+
+TEST(ScreenFallback, DoseTitrantMatchesTheChargeBalanceByHand) {
+  // With activity coefficients 1, the strong base that brings C mol/L of a monoprotic acid to
+  // pH p in water is, from the charge balance [Na+] + [H+] = [A-] + [OH-]:
+  //   [Na+] = C / (1 + 10^(pKa - p)) + Kw / h - h,  h = 10^-p.
+  const Library lib = builtin_library();
+  ScreenOptions opt;
+  opt.activity = ActivityModel::kIdeal;
+  opt.temperature_C = 25.0;
+  for (double target : {5.0, 6.0, 7.4}) {
+    opt.target_pH = target;
+    const double c = 0.02;
+    const BufferPreparation t = dose_titration(lib, lib.buffer("phosphate"), acid_job(c), opt);
+    ASSERT_TRUE(t.converged) << target;
+    EXPECT_EQ(t.titrant, "NaOH") << target;
+    const double h = std::pow(10.0, -target);
+    const double kw = std::pow(10.0, -pkw(25.0));
+    const double by_hand = c / (1.0 + std::pow(10.0, 4.20 - target)) + kw / h - h;
+    EXPECT_NEAR(t.titrant_mol_per_L, by_hand, 1e-6 * by_hand) << target;
+  }
+}
+
+TEST(ScreenFallback, PremadeFailureGivesTheAdjustedBuffersThatHoldTheTarget) {
+  // 20 mM of a free acid into a buffer made first at pH 7.4: 20 mM of acid released on
+  // ionisation is more than 0.1 M phosphate or tris absorbs within 0.1 pH, so no buffer is ok;
+  // adjusted after the dose, both hold the target by construction of that preparation.
+  const Library lib = builtin_library();
+  ScreenOptions opt;
+  opt.target_pH = 7.4;
+  opt.buffers = {"phosphate", "tris"};
+  const ScreenReport rep = screen(lib, acid_job(0.02), opt);
+  for (const ScreenResult& r : rep.results) EXPECT_NE(r.status, ScreenStatus::kOk) << r.buffer;
+  ASSERT_TRUE(rep.fallback);
+  EXPECT_TRUE(rep.fallback->dose_titrant_found);
+  EXPECT_EQ(rep.fallback->dose_titrant, "NaOH");
+  // About the dose itself (fully ionised at pH 7.4, 3 units above the pKa): 20 mM within 0.1 %.
+  EXPECT_NEAR(rep.fallback->dose_titrant_mol_per_L, 0.02, 2e-5);
+  EXPECT_NEAR(rep.fallback->dose_titrant_mg_per_mL, 0.02 * lib.reagent("NaOH").molar_mass_g_per_mol, 1e-3);
+  ASSERT_FALSE(rep.fallback->adjusted.empty());
+  for (const ScreenResult& r : rep.fallback->adjusted) {
+    EXPECT_EQ(r.status, ScreenStatus::kOk) << r.buffer;
+    EXPECT_NEAR(r.pH_after_drug, opt.target_pH, opt.tolerance_pH) << r.buffer;
+    ASSERT_TRUE(r.recommended_conc_mol_per_L) << r.buffer;
+  }
+}
+
+TEST(ScreenFallback, NoFallbackWhenABufferHoldsTheTargetOrTheScreenIsAdjusted) {
+  const Library lib = builtin_library();
+  ScreenOptions opt;
+  opt.target_pH = 7.4;
+  opt.buffers = {"phosphate", "tris"};
+  // 0.2 mM of the acid: 0.1 M phosphate absorbs it easily.
+  const ScreenReport small = screen(lib, acid_job(2e-4), opt);
+  EXPECT_EQ(small.results.front().status, ScreenStatus::kOk);
+  EXPECT_FALSE(small.fallback);
+  opt.preparation = ScreenPreparation::kAdjusted;
+  const ScreenReport adjusted = screen(lib, acid_job(0.02), opt);
+  EXPECT_FALSE(adjusted.fallback);
+}
+
+}  // namespace
+}  // namespace pkarta
