@@ -13,16 +13,18 @@
 namespace pkarta {
 
 using xml_detail::Reader;
+using xml_detail::Text;
 
 Compound parse_compound(const std::string& text, const std::string& name, const Library& library,
                         Warnings* warnings) {
   Reader r(text, name, warnings);
   const pugi::xml_node root = r.root("compound");
-  r.check_attributes(root, {"id", "name", "molar-mass", "permanent-charge"});
   Compound c;
   c.file = name;
   // The root's attributes (the molar mass converts every amount): an error there ends the reading.
   if (!r.attempt([&] {
+    r.check_attributes(root, {{"id", Text::kId}, {"name", Text::kNonEmpty}, "molar-mass",
+                              {"permanent-charge", Text::kInteger}});
     c.id = r.required(root, "id");
     c.name = r.optional(root, "name", c.id);
     c.molar_mass_g_per_mol = r.in_range(root, "molar-mass", r.number(root, "molar-mass"), 1.0, 1e6);
@@ -35,12 +37,15 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
   std::vector<pugi::xml_node> pka_nodes, salt_nodes;
   pugi::xml_node s0_node;
   std::ptrdiff_t last_rank = 0;  // of the last element in kOrder
+  int descriptions = 0, measured = 0;
+  // Unknown elements and text between the elements: errors, as the schema's.
+  r.check_children(root, {"description", "pka", "intrinsic-solubility", "salt", "measured-solubility"});
   for (const pugi::xml_node n : root.children()) {
     if (n.type() != pugi::node_element) continue;
     const std::string tag = n.name();
     // Each element on its own: an error is kept and reading goes on with the next one.
     r.attempt([&] {
-      // The schema's order (compound.xsd); an unknown element is a warning, wherever it is.
+      // The schema's order (compound.xsd); an unknown element is refused above.
       static const char* const kOrder[] = {"description", "pka", "intrinsic-solubility", "salt",
                                            "measured-solubility"};
       const auto rank = std::find(std::begin(kOrder), std::end(kOrder), tag) - std::begin(kOrder);
@@ -52,6 +57,9 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         last_rank = std::max(last_rank, rank);
       }
       if (tag == "description") {
+        if (++descriptions > 1) r.fail(n, "a second <description>; give one");
+        r.check_attributes(n, {});
+        r.check_children(n, {}, true);
         c.description = n.text().get();
       } else if (tag == "pka") {
         c.system.pkas.push_back(read_pka(r, n));
@@ -59,8 +67,9 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
       } else if (tag == "intrinsic-solubility") {
         if (s0_node) r.fail(n, "a second <intrinsic-solubility>; give one");
         s0_node = n;
-        r.check_attributes(n, {"value", "unit", "temperature", "dH", "log-sd", "source", "ionic-strength",
-                               "electrolyte"});
+        r.check_attributes(n, {"value", "unit", "temperature", "dH", "log-sd", {"source", Text::kNonEmpty},
+                               "ionic-strength", {"electrolyte", Text::kNonEmpty}});
+        r.check_children(n, {});
         const double v = r.number(n, "value");
         if (!(v > 0)) r.fail(n, "intrinsic solubility must be > 0, got " + r.required(n, "value"));
         Amount a = unit_attribute(r, n);
@@ -75,8 +84,10 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         c.s0_stated_electrolyte = r.optional(n, "electrolyte", "");
         c.has_intrinsic_solubility = true;
       } else if (tag == "salt") {
-        r.check_attributes(n, {"id", "counterion", "counterion-charge", "stoichiometry", "ksp",
-                               "solubility-in-water", "molar-mass", "temperature", "dH", "source"});
+        r.check_attributes(n, {{"id", Text::kId}, {"counterion", Text::kId}, {"counterion-charge", Text::kInteger},
+                               "stoichiometry", "ksp", "solubility-in-water", "molar-mass", "temperature", "dH",
+                               {"source", Text::kNonEmpty}});
+        r.check_children(n, {});
         Salt s;
         s.where = r.at(n);
         s.id = r.required(n, "id");
@@ -190,14 +201,14 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         }
         c.salts.push_back(s);
       } else if (tag == "measured-solubility") {
-        for (const pugi::xml_node p : n.children()) {
-          if (p.type() != pugi::node_element) continue;
-          if (std::strcmp(p.name(), "point") != 0) {
-            r.unknown_element(p);
-            continue;
-          }
+        if (++measured > 1) r.fail(n, "a second <measured-solubility>; give all the points in one");
+        r.check_attributes(n, {});
+        r.check_children(n, {"point"});
+        if (!n.child("point")) r.fail(n, "<measured-solubility> has no <point>");
+        for (const pugi::xml_node p : n.children("point")) {
           r.attempt([&] {
             r.check_attributes(p, {"pH", "value", "unit", "temperature", "log-sd"});
+            r.check_children(p, {});
             MeasuredPoint m;
             m.where = r.at(p);
             m.pH = r.in_range(p, "pH", r.number(p, "pH"), -1.0, 15.0);
@@ -217,8 +228,6 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
             c.measured.push_back(m);
           });
         }
-      } else {
-        r.unknown_element(n);
       }
     });
   }

@@ -14,12 +14,15 @@ extern const std::size_t kBuiltinLibraryXmlSize;
 }  // namespace detail
 
 using xml_detail::Reader;
+using xml_detail::Text;
 
 Library parse_library(const std::string& text, const std::string& name, const Library* base,
                       Warnings* warnings) {
   Reader r(text, name, warnings);
   const pugi::xml_node root = r.root("library");
-  r.check_attributes(root, {"id", "version", "name"});
+  r.attempt([&] { r.check_attributes(root, {{"id", Text::kId}, {"version", Text::kNonEmpty}, {"name", Text::kNonEmpty}}); });
+  // Unknown elements and text between the elements: errors, as the schema's.
+  r.check_children(root, {"ion", "system", "reagent", "buffer", "medium"});
   // Each element is read on its own: an error is kept and reading goes on with the next
   // element, so one run names every error of the file. An element that refers to one refused
   // (by its id) is skipped without a second message.
@@ -60,13 +63,16 @@ Library parse_library(const std::string& text, const std::string& name, const Li
     const std::string tag = n.name();
     if (tag == "ion") {
       element(n, "ion", [&] {
-        r.check_attributes(n, {"id", "charge", "formula", "molar-mass", "name"});
+        r.check_attributes(n, {{"id", Text::kId}, {"charge", Text::kInteger}, "formula", "molar-mass",
+                               {"name", Text::kNonEmpty}});
+        r.check_children(n, {});
         Ion ion;
         ion.id = r.required(n, "id");
         unique(n, "ion", ion.id);
         ion.name = r.optional(n, "name", ion.id);
         ion.charge = r.integer(n, "charge", 0);
         if (!n.attribute("charge")) r.fail(n, "<ion> needs attribute 'charge'");
+        r.in_range(n, "charge", ion.charge, -4, 4);
         if (n.attribute("molar-mass")) {
           ion.molar_mass_g_per_mol = r.in_range(n, "molar-mass", r.number(n, "molar-mass"), 0.5, 5000);
         } else if (n.attribute("formula")) {
@@ -78,7 +84,9 @@ Library parse_library(const std::string& text, const std::string& name, const Li
       });
     } else if (tag == "system") {
       element(n, "system", [&] {
-        r.check_attributes(n, {"id", "name", "source", "permanent-charge"});
+        r.check_attributes(n, {{"id", Text::kId}, {"name", Text::kNonEmpty}, {"source", Text::kNonEmpty},
+                               {"permanent-charge", Text::kInteger}});
+        r.check_children(n, {"pka"});
         AcidBaseSystem s;
         s.id = r.required(n, "id");
         unique(n, "system", s.id);
@@ -87,11 +95,9 @@ Library parse_library(const std::string& text, const std::string& name, const Li
         s.permanent_charge = r.integer(n, "permanent-charge", 0);
         std::vector<pugi::xml_node> nodes;
         children(n, [&](const pugi::xml_node& c) {
-          if (std::strcmp(c.name(), "pka") == 0) {
+          if (std::strcmp(c.name(), "pka") == 0) {  // another element is refused above
             s.pkas.push_back(read_pka(r, c));
             nodes.push_back(c);
-          } else {
-            r.unknown_element(c);
           }
         });
         if (s.pkas.empty()) r.fail(n, "<system> '" + shown(s.id) + "' has no <pka>");
@@ -110,7 +116,8 @@ Library parse_library(const std::string& text, const std::string& name, const Li
   // Pass 2: reagents.
   for (const pugi::xml_node n : root.children("reagent")) {
     element(n, "reagent", [&] {
-      r.check_attributes(n, {"id", "formula", "name", "state", "molar-mass"});
+      r.check_attributes(n, {{"id", Text::kId}, "formula", {"name", Text::kNonEmpty}, "state"});
+      r.check_children(n, {"gives"});
       Reagent g;
       g.id = r.required(n, "id");
       unique(n, "reagent", g.id);
@@ -122,11 +129,9 @@ Library parse_library(const std::string& text, const std::string& name, const Li
       }
       g.molar_mass_g_per_mol = formula_mass(r, n, g.formula);
       children(n, [&](const pugi::xml_node& c) {
-        if (std::strcmp(c.name(), "gives") != 0) {
-          r.unknown_element(c);
-          return;
-        }
-        r.check_attributes(c, {"system", "ion", "count"});
+        if (std::strcmp(c.name(), "gives") != 0) return;  // refused above
+        r.check_attributes(c, {{"system", Text::kId}, {"ion", Text::kId}, {"count", Text::kPositiveInteger}});
+        r.check_children(c, {});
         Contribution k;
         const bool sys = static_cast<bool>(c.attribute("system"));
         const bool ion = static_cast<bool>(c.attribute("ion"));
@@ -156,8 +161,10 @@ Library parse_library(const std::string& text, const std::string& name, const Li
     const std::string tag = n.name();
     if (tag == "buffer") {
       element(n, "buffer", [&] {
-        r.check_attributes(n, {"id", "system", "name", "routes", "max-conc", "acid-titrant",
-                               "base-titrant", "acid-reagent", "base-reagent"});
+        r.check_attributes(n, {{"id", Text::kId}, {"system", Text::kId}, {"name", Text::kNonEmpty}, "routes",
+                               "max-conc", {"acid-titrant", Text::kId}, {"base-titrant", Text::kId},
+                               {"acid-reagent", Text::kOptionalId}, {"base-reagent", Text::kOptionalId}});
+        r.check_children(n, {});
         Buffer b;
         b.id = r.required(n, "id");
         unique(n, "buffer", b.id);
@@ -171,6 +178,7 @@ Library parse_library(const std::string& text, const std::string& name, const Li
           }
           b.routes.push_back(w);
         }
+        if (b.routes.empty()) r.fail(n, "attribute 'routes' of <buffer> is empty; give one or more of oral, parenteral, ophthalmic, topical");
         if (n.attribute("max-conc")) {
           const Amount a = r.amount(n, "max-conc");
           if (a.is_mass_based()) r.fail(n, "max-conc must be in M, mM or mol/kg");
@@ -188,7 +196,9 @@ Library parse_library(const std::string& text, const std::string& name, const Li
       });
     } else if (tag == "medium") {
       element(n, "medium", [&] {
-        r.check_attributes(n, {"id", "name", "source", "nominal-pH"});
+        r.check_attributes(n, {{"id", Text::kId}, {"name", Text::kNonEmpty}, {"source", Text::kNonEmpty},
+                               {"nominal-pH", Text::kOptionalPH}});
+        r.check_children(n, {"add"});
         Medium m;
         m.id = r.required(n, "id");
         unique(n, "medium", m.id);
@@ -196,11 +206,9 @@ Library parse_library(const std::string& text, const std::string& name, const Li
         m.source = r.optional(n, "source", "");
         m.nominal_pH = r.optional(n, "nominal-pH", "");
         children(n, [&](const pugi::xml_node& c) {
-          if (std::strcmp(c.name(), "add") != 0) {
-            r.unknown_element(c);
-            return;
-          }
-          r.check_attributes(c, {"reagent", "amount"});
+          if (std::strcmp(c.name(), "add") != 0) return;  // refused above
+          r.check_attributes(c, {{"reagent", Text::kId}, "amount"});
+          r.check_children(c, {});
           const std::string id = r.required(c, "reagent");
           if (!has_reagent(id)) r.fail(c, "unknown reagent '" + shown(id) + "'");
           const Amount a = r.amount(c, "amount");
@@ -214,8 +222,6 @@ Library parse_library(const std::string& text, const std::string& name, const Li
         });
         lib.media[m.id] = m;
       });
-    } else if (tag != "ion" && tag != "system" && tag != "reagent") {
-      r.unknown_element(n);
     }
   }
   r.finish();

@@ -17,8 +17,9 @@ std::string hex_byte(char c) {
 }
 
 Pka read_pka(Reader& r, const pugi::xml_node& n) {
-  r.check_attributes(n, {"value", "type", "dH", "dCp", "temperature", "sd", "source", "ionic-strength",
-                         "scale", "electrolyte"});
+  r.check_attributes(n, {"value", "type", "dH", "dCp", "temperature", "sd", {"source", Text::kNonEmpty},
+                         "ionic-strength", "scale", {"electrolyte", Text::kNonEmpty}});
+  r.check_children(n, {});
   Pka p;
   p.where = r.at(n);
   p.value = r.in_range(n, "value", r.number(n, "value"), -5.0, 20.0);
@@ -125,6 +126,80 @@ double formula_mass(Reader& r, const pugi::xml_node& n, const std::string& formu
   } catch (const InputError& e) {
     r.fail(n, e.message());
   }
+}
+
+}  // namespace pkarta::xml_detail
+
+namespace pkarta::xml_detail {
+
+namespace {
+bool id_char(char c, bool first) {
+  const bool alnum = (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || (c >= '0' && c <= '9');
+  return alnum || (!first && (c == '_' || c == '.' || c == '+' || c == '-'));
+}
+bool digits(const std::string& s, std::size_t from) {
+  return from < s.size() && s.find_first_not_of("0123456789", from) == std::string::npos;
+}
+}  // namespace
+
+std::string trimmed(const std::string& t) {
+  const std::size_t b = t.find_first_not_of(" \t\r\n");
+  if (b == std::string::npos) return "";
+  return t.substr(b, t.find_last_not_of(" \t\r\n") + 1 - b);
+}
+
+// The schema's simple types (compound.xsd, library.xsd), the same patterns.
+std::string text_problem(Text t, const std::string& v) {
+  switch (t) {
+    case Text::kAny:
+      return "";
+    case Text::kOptionalId:
+      if (v.empty()) return "";
+      [[fallthrough]];
+    case Text::kId: {
+      bool ok = !v.empty();
+      for (std::size_t i = 0; ok && i < v.size(); ++i) ok = id_char(v[i], i == 0);
+      return ok ? "" : "an id is letters and digits, then also _ . + - (no spaces)";
+    }
+    case Text::kNonEmpty:
+      return trimmed(v).empty() ? "write some text, or leave the attribute out" : "";
+    case Text::kInteger: {
+      const std::string w = trimmed(v);  // the schema collapses white space around a number
+      return digits(w, !w.empty() && (w[0] == '+' || w[0] == '-') ? 1 : 0) ? "" : "expected a whole number such as -1, 0 or 2";
+    }
+    case Text::kPositiveInteger: {
+      const std::string w = trimmed(v);
+      const bool ok = digits(w, !w.empty() && w[0] == '+' ? 1 : 0) && w.find_first_not_of("+0") != std::string::npos;
+      return ok ? "" : "expected a whole number of 1 or more";
+    }
+    case Text::kOptionalPH: {
+      if (v.empty()) return "";
+      const std::size_t s = v[0] == '+' || v[0] == '-' ? 1 : 0;
+      const std::size_t dot = v.find('.', s);
+      const std::string whole = v.substr(s, dot == std::string::npos ? std::string::npos : dot - s);
+      const std::string frac = dot == std::string::npos ? "" : v.substr(dot + 1);
+      const bool ok = (whole.empty() || digits(whole, 0)) && (frac.empty() || digits(frac, 0)) &&
+                      (!whole.empty() || !frac.empty());
+      return ok ? "" : "expected a pH such as 7.4, or nothing";
+    }
+  }
+  return "";
+}
+
+bool is_namespace_attribute(const pugi::xml_node& n, const char* name) {
+  const std::string a = name;
+  if (a.compare(0, 6, "xmlns:") == 0) return true;
+  const std::size_t colon = a.find(':');
+  if (colon == std::string::npos) return false;
+  const std::string local = a.substr(colon + 1);
+  if (local != "noNamespaceSchemaLocation" && local != "schemaLocation") return false;
+  const std::string decl = "xmlns:" + a.substr(0, colon);
+  for (pugi::xml_node p = n; p; p = p.parent()) {
+    if (const pugi::xml_attribute d = p.attribute(decl.c_str())) {
+      return std::strcmp(d.value(), "http://www.w3.org/2001/XMLSchema-instance") == 0;
+    }
+  }
+  return false;
 }
 
 }  // namespace pkarta::xml_detail

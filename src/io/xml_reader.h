@@ -61,6 +61,33 @@ class Locator {
   std::vector<std::size_t> line_starts_;
 };
 
+/// How the schema types an attribute's text (the numbers are checked where they are read).
+enum class Text {
+  kAny,
+  kId,               // [A-Za-z0-9][A-Za-z0-9_.+-]*
+  kOptionalId,       // an id or empty
+  kNonEmpty,         // some text that is not only spaces
+  kInteger,          // [+-]digits
+  kPositiveInteger,  // [+]digits, > 0
+  kOptionalPH,       // empty or [+-]decimal, no exponent
+};
+
+/// An attribute the schema allows on an element, and the type of its text.
+struct Attr {
+  Attr(const char* n, Text t = Text::kAny) : name(n), text(t) {}  // NOLINT: implicit from a name
+  const char* name;
+  Text text;
+};
+
+/// Why `value` is not text of type `t` (empty when it is).
+std::string text_problem(Text t, const std::string& value);
+/// `t` without leading and trailing white space.
+std::string trimmed(const std::string& t);
+/// Whether `name` on `n` is a namespace declaration (xmlns:p) or the schema location of
+/// XML Schema instance (xsi:noNamespaceSchemaLocation, xsi:schemaLocation): not attributes of
+/// the file's own, as the schema sees them.
+bool is_namespace_attribute(const pugi::xml_node& n, const char* name);
+
 class Reader {
  public:
   Reader(const std::string& text, const std::string& name, Warnings* warnings)
@@ -128,24 +155,80 @@ class Reader {
     throw InputError(loc_.at(n), what);
   }
 
-  void check_attributes(const pugi::xml_node& n, std::initializer_list<const char*> known) {
+  /// Reports an error at `n` and goes on reading (the error is kept for finish()).
+  void error(const pugi::xml_node& n, const std::string& what) { errors_.push_back(InputError(loc_.at(n), what)); }
+
+  /// Checks the attributes of `n` against the schema's: each unknown one is an error naming
+  /// those allowed, and a value that is not written as the schema's type wants is one too
+  /// (after every attribute is checked, the element is skipped: throws Skip).
+  void check_attributes(const pugi::xml_node& n, std::initializer_list<Attr> known) {
+    bool bad_value = false;
     for (const pugi::xml_attribute a : n.attributes()) {
-      bool ok = false;
-      for (const char* k : known) ok = ok || std::strcmp(a.name(), k) == 0;
-      if (!ok && warnings_) {
-        warnings_->push_back(loc_.at(n).str() + ": warning: unknown attribute '" + a.name() +
-                             "' on <" + n.name() + "> ignored");
+      // Well-formed XML never repeats an attribute (pugixml does not check it).
+      for (pugi::xml_attribute b = a.previous_attribute(); b; b = b.previous_attribute()) {
+        if (std::strcmp(a.name(), b.name()) == 0) {
+          error(n, "attribute '" + shown(a.name()) + "' is given twice on <" + n.name() + ">");
+          bad_value = true;
+        }
+      }
+      const Attr* k = nullptr;
+      for (const Attr& x : known) {
+        if (std::strcmp(a.name(), x.name) == 0) k = &x;
+      }
+      if (k == nullptr) {
+        if (is_namespace_attribute(n, a.name())) continue;
+        if (std::strcmp(a.name(), "xmlns") == 0) {
+          error(n, std::string("<") + n.name() + "> is in the namespace \"" + shown(a.value()) +
+                       "\"; the schema's elements have none: remove xmlns");
+          continue;
+        }
+        std::string allowed;
+        for (const Attr& x : known) allowed += (allowed.empty() ? "" : ", ") + std::string(x.name);
+        error(n, "unknown attribute '" + shown(a.name()) + "' on <" + n.name() + ">; " +
+                     (allowed.empty() ? std::string("<") + n.name() + "> takes no attributes" : "allowed here: " + allowed));
+        continue;
+      }
+      if (const std::string why = text_problem(k->text, a.value()); !why.empty()) {
+        error(n, "attribute '" + std::string(a.name()) + "' of <" + n.name() + "> is \"" + shown(a.value()) +
+                     "\": " + why);
+        bad_value = true;
       }
     }
+    if (bad_value) throw Skip{};
+  }
+  /// Checks the children of `n`: each element not in `allowed` is an error naming those allowed
+  /// here (none: the element holds attributes only), and so is text where the schema has none.
+  /// Returns whether all were fine.
+  bool check_children(const pugi::xml_node& n, std::initializer_list<const char*> allowed, bool text_allowed = false) {
+    bool ok = true;
+    std::string list;
+    for (const char* x : allowed) list += (list.empty() ? "" : ", ") + std::string(x);
+    for (const pugi::xml_node c : n.children()) {
+      if (c.type() == pugi::node_element) {
+        bool known = false;
+        for (const char* x : allowed) known = known || std::strcmp(c.name(), x) == 0;
+        if (known) continue;
+        error(c, "unknown element <" + shown(c.name()) + "> in <" + n.name() + ">; " +
+                     (text_allowed   ? std::string("<") + n.name() + "> holds text only"
+                      : list.empty() ? std::string("<") + n.name() + "> holds attributes only, no elements"
+                                     : "allowed here: " + list));
+        ok = false;
+      } else if ((c.type() == pugi::node_pcdata || c.type() == pugi::node_cdata) && !text_allowed) {
+        // Whitespace between elements is fine; an element of attributes alone holds none.
+        const std::string t = c.value();
+        if (!list.empty() && t.find_first_not_of(" \t\r\n") == std::string::npos) continue;
+        const std::string what = trimmed(t).empty() ? std::string("white space") : "text \"" + shown(trimmed(t)) + "\"";
+        const std::size_t lead = trimmed(t).empty() ? 0 : t.find_first_not_of(" \t\r\n");
+        errors_.push_back(InputError(loc_.at(c.offset_debug() + static_cast<std::ptrdiff_t>(lead)), what + " in <" + n.name() + ">; " +
+                     (list.empty() ? std::string("<") + n.name() + "> holds attributes only"
+                                   : "only the elements " + list + " go here")));
+        ok = false;
+      }
+    }
+    return ok;
   }
   void warn(const pugi::xml_node& n, const std::string& what) {
     if (warnings_) warnings_->push_back(loc_.at(n).str() + ": warning: " + what);
-  }
-  void unknown_element(const pugi::xml_node& n) {
-    if (warnings_) {
-      warnings_->push_back(loc_.at(n).str() + ": warning: unknown element <" + n.name() +
-                           "> ignored");
-    }
   }
 
   std::string required(const pugi::xml_node& n, const char* attr) const {

@@ -104,7 +104,7 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       "<compound id='x' name='x' molar-mass='300' permanent-charge='2.5'/>",         // 40
       "<compound id='x' name='x' molar-mass='300' permanent-charge='2'>\n <pka value='9' type='acid'/>\n"
       " <intrinsic-solubility value='1' unit='mg/mL'/>\n</compound>\n",               // 41
-      base_with(" <colour value='blue'/>\n"),                                         // 42 warning only
+      base_with(" <colour value='blue'/>\n"),                                         // 42
       // library files (43..)
       library(" <system id='s'/>\n"),                                                // 43
       library(" <reagent id='r' formula='Qq'><gives ion='Na+'/></reagent>\n"),        // 44
@@ -160,6 +160,11 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       compound(" <pka value='8' type='bass'/>\n <intrinsic-solubility value='1' unit='mg/ml'/>\n"
                " <salt id='free' counterion='Cl-' ksp='1'/>\n"),                     // 82 three errors
       compound(" <intrinsic-solubility value='1' unit='ug/mL'/>\n <pka value='8' type='base'/>\n"),  // 83
+      // names the schema does not have (84..)
+      compound(" <pka value='8' type='base' temprature='30'/>\n <intrinsic-solubility value='1' unit='ug/mL'/>\n"),  // 84
+      library(" <ionn id='Q+' charge='1' molar-mass='10'/>\n"),                      // 85
+      library(" <reagent id='r' formula='NaCl'><give ion='Na+'/></reagent>\n"),       // 86
+      library(" <reagent id='r' formula='NaCl' molar-mass='58.4'><gives ion='Na+'/></reagent>\n"),  // 87
   };
   auto F = [&](int i) { return files[i].c_str(); };
   const Case cases[] = {
@@ -267,10 +272,16 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"compound file", F(37), "check {F}", 2, "salt 'hcl' would disproportionate in water"},
       {"compound file", F(38), "check {F}", 2, "measured solubility must be > 0, got -3"},
       {"compound file", F(39), "check {F}", 2, "attribute 'pH' of <point> is 20, expected -1 to 15"},
-      {"compound file", F(40), "check {F}", 2, "attribute 'permanent-charge' of <compound> must be a whole number"},
+      {"compound file", F(40), "check {F}", 2, "attribute 'permanent-charge' of <compound> is \"2.5\": expected a whole number such as -1, 0 or 2"},
       {"compound file", F(41), "check {F}", 2, "the compound has no net-neutral form (permanent-charge 2)"},
-      {"compound file", F(42), "check {F}", 0, ":4:2: warning: unknown element <colour> ignored"},
-      {"compound file", F(42), "mix --compound {F} --dose 1e-3mg/mL --add NaCl=150mM", 0, "unknown element <colour> ignored"},
+      {"compound file", F(42), "check {F}", 2,
+       ":4:2: unknown element <colour> in <compound>; allowed here: description, pka, intrinsic-solubility, salt, measured-solubility"},
+      {"compound file", F(42), "mix --compound {F} --dose 1e-3mg/mL --add NaCl=150mM", 2, ":4:2: unknown element <colour> in <compound>"},
+      {"compound file", F(84), "check {F}", 2,
+       ":2:2: unknown attribute 'temprature' on <pka>; allowed here: value, type, dH, dCp, temperature, sd, source,"},
+      {"library file", F(85), "check {F}", 2, ":2:2: unknown element <ionn> in <library>; allowed here: ion, system, reagent, buffer, medium"},
+      {"library file", F(86), "check {F}", 2, ":2:33: unknown element <give> in <reagent>; allowed here: gives"},
+      {"library file", F(87), "check {F}", 2, ":2:2: unknown attribute 'molar-mass' on <reagent>; allowed here: id, formula, name, state"},
       // library files
       {"library file", F(43), "check {F}", 2, ":2:2: <system> 's' has no <pka>"},
       {"library file", F(44), "check {F}", 2, "formula \"Qq\": unknown element 'Qq' at character 3"},
@@ -283,9 +294,9 @@ TEST(BadInput, EveryCaseExitsWithItsCodeAndMessage) {
       {"library file", F(51), "check {F}", 2, "attribute 'state' is \"gas\", expected solid, liquid or solution"},
       {"library file", F(52), "check {F}", 2, "attribute 'amount' of <add> is 1000 mol/L, beyond the 10 mol/L"},
       {"library file", F(53), "check {F}", 2, "<gives> needs exactly one of 'system' or 'ion'"},
-      {"library file", F(54), "check {F}", 2, "attribute 'count' of <gives> is 0, expected 1e-06 to 100"},
+      {"library file", F(54), "check {F}", 2, "attribute 'count' of <gives> is \"0\": expected a whole number of 1 or more"},
       {"library file", F(55), "check {F}", 2, "attribute 'max-conc' of <buffer> is 10, expected 1e-05 to 5"},
-      {"library file", F(56), "check {F}", 2, "attribute 'charge' of <ion> must be a whole number"},
+      {"library file", F(56), "check {F}", 2, "attribute 'charge' of <ion> is \"1.5\": expected a whole number"},
       {"library file", F(57), "check {F}", 2, "formula \"Ca(OH\": missing ')'"},
       {"library file", F(58), "check {F}", 2, "max-conc must be in M, mM or mol/kg"},
       {"library file", F(52), "mix --add NaCl=10mM --library {F}", 2, "beyond the 10 mol/L"},

@@ -211,20 +211,29 @@ std::string formula_cells(const std::string& csv) {
 }
 
 TEST(SafeFiles, NamesAndIdsStartingLikeFormulasAreNeutralisedInEveryCsv) {
-  // The compound id, its name and a salt id start with '=' and '@'; the reader accepts them.
+  // Ids follow the schema's pattern (a letter or digit first): an id starting with '=' or '@'
+  // is refused where it is written, so no id reaches a CSV as a formula.
+  for (const char* ids : {"<compound id='=cmd' molar-mass='300'/>",
+                          "<compound id='cmd' molar-mass='300'><salt id='@hcl' counterion='Cl-' ksp='1e-3'/></compound>"}) {
+    const std::string bad = pkarta_test::write_file("formula-id.xml", ids);
+    const pkarta_test::RunResult out = pkarta_test::run("check " + bad);
+    EXPECT_EQ(out.code, 2) << ids;
+    EXPECT_NE(out.err.find("an id is letters and digits"), std::string::npos) << out.err;
+  }
+  // The compound's name starts with '@'; the reader accepts it.
   const std::string compound = pkarta_test::write_file(
       "formula-compound.xml",
-      "<compound id='=cmd' name='@SUM(A1)' molar-mass='300'>\n <pka value='8' type='base'/>\n"
-      " <intrinsic-solubility value='1' unit='ug/mL'/>\n <salt id='@hcl' counterion='Cl-' ksp='1e-3'/>\n"
+      "<compound id='cmd' name='@SUM(A1)' molar-mass='300'>\n <pka value='8' type='base'/>\n"
+      " <intrinsic-solubility value='1' unit='ug/mL'/>\n <salt id='hcl' counterion='Cl-' ksp='1e-3'/>\n"
       " <measured-solubility><point pH='2' value='3' unit='mg/mL'/><point pH='7' value='20' unit='ug/mL'/>"
       "<point pH='9' value='1.2' unit='ug/mL'/></measured-solubility>\n</compound>\n");
   struct Run {
     std::string args, expect;
   };
   const Run runs[] = {
-      {"mix --compound " + compound + " --dose 1mg/mL --add KH2PO4=25mM --format csv --table species", "'=cmd HA+,'=cmd,1,"},
-      {"profile --compound " + compound + " --format csv", ",'@hcl,"},
-      {"screen --compound " + compound + " --dose 1mg/mL --target-ph 6 --format csv", "'=cmd"},
+      {"mix --compound " + compound + " --dose 1mg/mL --add KH2PO4=25mM --format csv --table species", "cmd HA+,cmd,1,"},
+      {"profile --compound " + compound + " --format csv", ",hcl,"},
+      {"screen --compound " + compound + " --dose 1mg/mL --target-ph 6 --format csv", "cmd"},
       {"fit --compound " + compound + " --params s0 --format csv", "log10_S0_mol_per_L"},
   };
   for (const Run& r : runs) {
@@ -244,7 +253,7 @@ TEST(SafeFiles, NamesAndIdsStartingLikeFormulasAreNeutralisedInEveryCsv) {
   ASSERT_EQ(rep.code, 0) << rep.err;
   const fs::path tables = pkarta_test::temp_dir() + "/formula-report";
   const std::string compound_csv = slurp((tables / "compound.csv").string());
-  EXPECT_NE(compound_csv.find("id,'=cmd"), std::string::npos) << compound_csv;
+  EXPECT_NE(compound_csv.find("id,cmd"), std::string::npos) << compound_csv;
   EXPECT_NE(compound_csv.find("name,'@SUM(A1)"), std::string::npos) << compound_csv;
   int tables_read = 0;
   for (const auto& e : fs::directory_iterator(tables)) {
@@ -253,8 +262,8 @@ TEST(SafeFiles, NamesAndIdsStartingLikeFormulasAreNeutralisedInEveryCsv) {
     EXPECT_EQ(formula_cells(slurp(e.path().string())), "") << e.path();
   }
   EXPECT_GE(tables_read, 5);
-  // The text output is not CSV: the id is shown as written.
-  EXPECT_NE(pkarta_test::run("mix --compound " + compound + " --dose 1mg/mL").out.find("=cmd HA+"), std::string::npos);
+  // The text output is not CSV: the name is shown as written.
+  EXPECT_NE(pkarta_test::run("mix --compound " + compound + " --dose 1mg/mL").out.find("(@SUM(A1))"), std::string::npos);
 }
 
 // Bytes that are not UTF-8 (RFC 3629) are found where they are; a compound file holding them
