@@ -372,7 +372,7 @@ Profile compute_profile(const Compound& compound, const Library& library,
   if (conditions.activity == ActivityModel::kDavies) {
     span = where_points(p.points, [](const ProfilePoint& x) { return x.ionic_strength_mol_per_L > kDaviesMaxIonicStrength; }, &count);
     if (count > 0) {
-      p.warnings.push_back("ionic strength above 0.5 mol/L at " + std::to_string(count) + " of " +
+      p.warnings.push_back("ionic strength above " + fixed(kDaviesMaxIonicStrength, 1) + " mol/L at " + std::to_string(count) + " of " +
                            std::to_string(p.points.size()) + " points (" + span +
                            "): the Davies equation is outside its range there");
     }

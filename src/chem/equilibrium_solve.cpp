@@ -273,7 +273,7 @@ Equilibrium not_converged(const Mixture& mixture, const StateSummary& s, Equilib
     r.termination = Termination::kNumericalFailure;
     r.message = "the activity corrections diverge: at ionic strength " +
                 std::to_string(s.ionic_strength_mol_per_L).substr(0, 5) +
-                " mol/L the Davies equation is far outside its range (0.5 mol/L); the mixture "
+                " mol/L the Davies equation is far outside its range (" + fixed(kDaviesMaxIonicStrength, 1) + " mol/L); the mixture "
                 "is too concentrated for the model";
   }
   return r;
@@ -427,11 +427,12 @@ void add_range_warnings(const Mixture& mixture, Equilibrium* r) {
                           " C is outside 0-60 C, the validity range of the water and pKa(T) data");
   }
   if (mixture.activity == ActivityModel::kDavies && r->ionic_strength_mol_per_L > kDaviesMaxIonicStrength) {
-    r->warnings.push_back("ionic strength above 0.5 mol/L: the Davies equation is outside its range");
+    r->warnings.push_back("ionic strength above " + fixed(kDaviesMaxIonicStrength, 1) +
+                          " mol/L: the Davies equation is outside its range");
   }
   if ((mixture.activity == ActivityModel::kSit || mixture.activity == ActivityModel::kTruesdellJones) &&
       r->ionic_strength_mol_per_L > kCheckedMaxIonicStrength) {
-    r->warnings.push_back("ionic strength above 0.6 mol/L: beyond the range in which the " +
+    r->warnings.push_back("ionic strength above " + fixed(kCheckedMaxIonicStrength, 1) + " mol/L: beyond the range in which the " +
                           model_words(mixture.activity) + " was checked against published buffer tables");
   }
   if (r->drug && r->drug->solid != "none") {
@@ -460,7 +461,7 @@ Equilibrium refused_as_diverging(const Mixture& mixture, const Equilibrium& r) {
   refused.message = "the activity corrections diverge: at ionic strength " +
                     std::to_string(r.ionic_strength_mol_per_L).substr(0, 5) +
                     " mol/L the " + model_words(mixture.activity) + " is far outside its range (" +
-                    (mixture.activity == ActivityModel::kDavies ? "0.5" : "0.6") +
+                    fixed(mixture.activity == ActivityModel::kDavies ? kDaviesMaxIonicStrength : kCheckedMaxIonicStrength, 1) +
                     " mol/L); the mixture is too concentrated for the model";
   return refused;
 }

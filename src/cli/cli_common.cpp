@@ -11,6 +11,7 @@
 
 #include "pkarta/base/error.h"
 #include "pkarta/base/format.h"
+#include "pkarta/base/limits.h"
 #include "pkarta/base/suggest.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/io/atomic_file.h"
@@ -200,7 +201,7 @@ void add_activity_options(po::options_description& desc, ActivityOptions& a) {
       ("activity", po::value(&a.activity),
        ("activity model: " + activity_model_names() + " (default " +
         activity_model_id(kDefaultActivityModel) + "; sit: specific ion interaction, for ionic "
-        "strength up to 0.6 mol/L; ideal: the same as --ideal)").c_str())
+        "strength up to " + fixed(kCheckedMaxIonicStrength, 1) + " mol/L; ideal: the same as --ideal)").c_str())
       ("ideal", po::bool_switch(&a.ideal), "activity coefficients 1 (no Davies correction)");
 }
 

@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "pkarta/base/limits.h"
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/io/solubility_csv.h"
 #include "pkarta/io/xml_input.h"
@@ -80,7 +81,7 @@ Compound parse_compound(const std::string& text, const std::string& name, const 
         if (n.attribute("dH")) c.s0_dH_kJ_per_mol = r.in_range(n, "dH", r.number(n, "dH"), -200, 200);
         c.s0_log_sd = r.in_range(n, "log-sd", r.number_or(n, "log-sd", 0.0), 0.0, 5.0);
         c.s0_stated_ionic_strength_mol_per_L =
-            r.in_range(n, "ionic-strength", r.number_or(n, "ionic-strength", 0.0), 0.0, 0.5);
+            r.in_range(n, "ionic-strength", r.number_or(n, "ionic-strength", 0.0), 0.0, kDaviesMaxIonicStrength);
         c.s0_stated_electrolyte = r.optional(n, "electrolyte", "");
         c.has_intrinsic_solubility = true;
       } else if (tag == "salt") {

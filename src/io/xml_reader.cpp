@@ -5,6 +5,7 @@
 #include <vector>
 
 #include "pkarta/base/format.h"
+#include "pkarta/base/limits.h"
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/formula.h"
 
@@ -41,7 +42,7 @@ Pka read_pka(Reader& r, const pugi::xml_node& n) {
     r.fail(n, "attribute 'scale' of <pka> is \"" + scale + "\", expected thermodynamic, concentration or mixed");
   }
   // Davies is a fair activity model to about I = 0.5 mol/L (Davies 1962).
-  p.stated_ionic_strength_mol_per_L = r.in_range(n, "ionic-strength", r.number_or(n, "ionic-strength", 0.0), 0.0, 0.5);
+  p.stated_ionic_strength_mol_per_L = r.in_range(n, "ionic-strength", r.number_or(n, "ionic-strength", 0.0), 0.0, kDaviesMaxIonicStrength);
   p.stated_electrolyte = r.optional(n, "electrolyte", "");
   if (p.is_apparent() && !(p.stated_ionic_strength_mol_per_L > 0)) {
     r.fail(n, "<pka> with scale=\"" + scale + "\" needs ionic-strength (mol/L, > 0) of the measurement");

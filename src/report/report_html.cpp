@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "pkarta/base/format.h"
+#include "pkarta/base/limits.h"
 #include "pkarta/report/svg_chart.h"
 #include "pkarta/writers/screen_writer.h"
 #include "report_internal.h"
@@ -534,7 +535,9 @@ void write_methods(const Page& pg) {
   out << "<ul>\n"
          "<li>Species fractions from the macroscopic pKa values (Henderson-Hasselbalch form [1]) with "
          "thermodynamic constants corrected to the ionic strength by the Davies equation [2], solved "
-         "self-consistently with the pH. Above 0.5 mol/L ionic strength the Davies equation is outside its range.</li>\n"
+         "self-consistently with the pH. Above "
+      << fixed(kDaviesMaxIonicStrength, 1)
+      << " mol/L ionic strength the Davies equation is outside its range.</li>\n"
          "<li>Temperature: pKa, Ksp and S0 by the van 't Hoff equation with constant heat capacity of ionization [3]; "
          "buffer constants from the compilation of Goldberg, Kishore and Lennen [3] as named in the library. "
          "Water: pKw after Harned and Robinson [6], density after Kell [7], dielectric constant after Malmberg and "
