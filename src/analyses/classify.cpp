@@ -62,16 +62,10 @@ ClassifyResult classify(const Compound& compound, const Library& library, const 
   r.dose_mol_per_L = o.dose_mg / mf / o.volume_mL;  // mmol per mL
   r.dose_mg_per_mL = o.dose_mg / o.volume_mL;
 
-  ProfileConditions cond;
-  cond.temperature_C = o.temperature_C;
-  cond.activity = o.activity;
+  ProfileConditions cond = ProfileConditions::in_water(o.temperature_C, o.activity);
   cond.acid_titrant = o.acid_titrant;
   cond.base_titrant = o.base_titrant;
-  ProfileGrid grid;
-  grid.from_pH = o.from_pH;
-  grid.to_pH = o.to_pH;
-  grid.step_pH = o.scan_step_pH;
-  const Profile scan = compute_profile(compound, library, cond, grid);
+  const Profile scan = compute_profile(compound, library, cond, ProfileGrid::range(o.from_pH, o.to_pH, o.scan_step_pH));
   SolubilityScanner scanner(compound, library, cond);
 
   // Lowest point of the scan (the last grid point may fall short of to_pH: add it).

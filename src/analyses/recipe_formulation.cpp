@@ -209,10 +209,9 @@ Formulation make_formulation(const Library& library, const RecipeOptions& option
   };
   f.pH_low = ph_at(f.low_temperature_C);
   f.pH_high = ph_at(f.high_temperature_C);
-  ProfileConditions cond;
-  cond.temperature_C = o.temperature_C;
-  cond.activity = o.activity;
-  f.solubility_at_pH_mol_per_L = solubility_at_pH(compound, library, f.pH, cond).solubility_mol_per_L;
+  f.solubility_at_pH_mol_per_L =
+      solubility_at_pH(compound, library, f.pH, ProfileConditions::in_water(o.temperature_C, o.activity))
+          .solubility_mol_per_L;
   f.solubility_margin = f.solubility_at_pH_mol_per_L > 0 ? dose / f.solubility_at_pH_mol_per_L : 0.0;
   if (f.solid != "none") f.warnings.push_back("the dose does not dissolve completely: solid " + f.solid + " expected");
 

@@ -331,10 +331,9 @@ double ph_after_drug(const Library& library, const Buffer& buffer, double conc_m
 
 double screen_solubility_at_target(const Library& library, const Compound& compound,
                                    const ScreenOptions& options) {
-  ProfileConditions cond;
-  cond.temperature_C = options.temperature_C;
-  cond.activity = options.activity;
-  return solubility_at_pH(compound, library, options.target_pH, cond).solubility_mol_per_L;
+  return solubility_at_pH(compound, library, options.target_pH,
+                          ProfileConditions::in_water(options.temperature_C, options.activity))
+      .solubility_mol_per_L;
 }
 
 std::vector<const Buffer*> screen_candidates(const Library& library, const ScreenOptions& options) {

@@ -74,13 +74,8 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
   p.inputs = run.inputs;
 
   // pH-solubility profile in water, pH held by HCl or NaOH, with pHmax.
-  ProfileConditions cond;
-  cond.temperature_C = request.temperature_C;
-  cond.activity = request.activity;
-  ProfileGrid grid;
-  grid.from_pH = request.profile_from_pH;
-  grid.to_pH = request.profile_to_pH;
-  grid.step_pH = request.profile_step_pH;
+  const ProfileConditions cond = ProfileConditions::in_water(request.temperature_C, request.activity);
+  const ProfileGrid grid = ProfileGrid::range(request.profile_from_pH, request.profile_to_pH, request.profile_step_pH);
   d.profile = compute_profile(compound, library, cond, grid);
 
   // Solubility classification at 37 °C (ICH M9).

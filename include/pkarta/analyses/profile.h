@@ -32,6 +32,13 @@ struct ProfileConditions {
                                      ///< temperature and activity fields are ignored
   std::string acid_titrant = "HCl";  ///< library reagent giving the strong anion
   std::string base_titrant = "NaOH"; ///< library reagent giving the strong cation
+  /// Water held at each pH by HCl or NaOH, at a temperature, with an activity model.
+  static ProfileConditions in_water(double temperature_C, ActivityModel activity) {
+    ProfileConditions c;
+    c.temperature_C = temperature_C;
+    c.activity = activity;
+    return c;
+  }
 };
 
 /// Solubility at one pH.
@@ -107,6 +114,14 @@ struct ProfileGrid {
   double to_pH = 13.0;
   double step_pH = 0.05;
   std::vector<double> points_pH;  ///< non-empty: these pH values (sorted, duplicates dropped)
+  /// From from_pH to to_pH in steps of step_pH.
+  static ProfileGrid range(double from_pH, double to_pH, double step_pH) {
+    ProfileGrid g;
+    g.from_pH = from_pH;
+    g.to_pH = to_pH;
+    g.step_pH = step_pH;
+    return g;
+  }
   /// "ProfileGrid::step_pH = 0, must be > 0" style messages; pH values must lie in [-1, 15].
   bool is_valid(std::string* error) const;
   /// The pH values, ascending: from, from + step, ... up to to (within 1e-9 of a step).
