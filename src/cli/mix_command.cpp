@@ -31,13 +31,9 @@ int run_mix_temperatures(FormulationOptions f, const Library& lib, const std::ve
   }
   emit_tables(tables, format, mix_tables(results), {f.compound_file});
   if (format == "json") {
-    nlohmann::ordered_json states = nlohmann::ordered_json::array();
-    for (const MixResult& r : results) {
-      std::ostringstream one;
-      write_mix_json(r, one);
-      states.push_back(nlohmann::ordered_json::parse(one.str()));
-    }
-    print_json(nlohmann::ordered_json{{"states", states}});
+    std::ostringstream doc;
+    write_mix_json_document(results, doc);
+    print_json(doc.str());
     return 0;
   }
   if (format == "csv") return 0;
@@ -118,12 +114,9 @@ int run_mix(const Args& args) {
     }
     emit_tables(tables, common.format, mix_tables({r}), {f.compound_file});
     if (common.format == "json") {
-      // One temperature: the object of that state, and the list of states every mix has.
-      std::ostringstream one;
-      write_mix_json(r, one);
-      nlohmann::ordered_json j = nlohmann::ordered_json::parse(one.str());
-      j["states"] = nlohmann::ordered_json::array({j});
-      print_json(j);
+      std::ostringstream doc;
+      write_mix_json_document({r}, doc);
+      print_json(doc.str());
     } else if (common.format == "text") {
       write_mix_text(r, std::cout);
     }

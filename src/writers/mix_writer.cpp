@@ -54,7 +54,9 @@ void write_mix_csv(const MixResult& r, std::ostream& out) {
   write_table_csv(mix_tables({r}).front(), out);
 }
 
-void write_mix_json(const MixResult& r, std::ostream& out) {
+namespace {
+
+nlohmann::ordered_json mix_json(const MixResult& r) {
   const Equilibrium& e = r.equilibrium;
   nlohmann::ordered_json j;
   j["pH"] = e.pH;
@@ -86,6 +88,19 @@ void write_mix_json(const MixResult& r, std::ostream& out) {
   }
   j["warnings"] = e.warnings;
   j["caution"] = caution_text();
+  return j;
+}
+
+}  // namespace
+
+void write_mix_json(const MixResult& r, std::ostream& out) { out << mix_json(r).dump(2) << "\n"; }
+
+void write_mix_json_document(const std::vector<MixResult>& results, std::ostream& out) {
+  nlohmann::ordered_json states = nlohmann::ordered_json::array();
+  for (const MixResult& r : results) states.push_back(mix_json(r));
+  nlohmann::ordered_json j;
+  if (results.size() == 1) j = states.front();
+  j["states"] = states;
   out << j.dump(2) << "\n";
 }
 

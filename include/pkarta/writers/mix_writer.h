@@ -3,6 +3,7 @@
 #define PKARTA_WRITERS_MIX_WRITER_H_
 
 #include <ostream>
+#include <vector>
 
 #include "pkarta/analyses/mix.h"
 
@@ -11,6 +12,9 @@ namespace pkarta {
 void write_mix_text(const MixResult& result, std::ostream& out);
 void write_mix_csv(const MixResult& result, std::ostream& out);
 void write_mix_json(const MixResult& result, std::ostream& out);
+/// The JSON document of `pkarta mix`: {"states": [...]} with one object per temperature; with
+/// one temperature, that state's keys at the top level as well.
+void write_mix_json_document(const std::vector<MixResult>& results, std::ostream& out);
 
 }  // namespace pkarta
 
