@@ -128,3 +128,74 @@ TEST(LibrarySystems, SulfateSecondStep) {
 
 }  // namespace
 }  // namespace pkarta
+
+namespace pkarta {
+namespace {
+
+// Temperature dependence of the lactate, benzoate and histidine (imidazolium) steps: the
+// library's pKa at 5 and 37 °C against van 't Hoff with constant dCp worked out here from each
+// source's own numbers at 298.15 K (R = 8.314462618 J/(K mol), CODATA 2018), within 0.002;
+// where the source gives pK at other temperatures as an equation, against that equation too.
+double vant_hoff_by_hand(double pk25, double dH_J, double dCp, double t_C) {
+  const double R = 8.314462618, ln10 = std::log(10.0), T0 = 298.15, T = t_C + 273.15;
+  return pk25 + dH_J / (R * ln10) * (1.0 / T - 1.0 / T0) -
+         dCp / (R * ln10) * (T0 / T - 1.0 + std::log(T / T0));
+}
+
+// Benzoic acid. Kettler, Wesolowski and Palmer 1995, "Dissociation quotient of benzoic acid in
+// aqueous sodium chloride media to 250 °C", J. Solution Chem. 24(4), abstract: at 25 °C, 1 bar,
+// I = 0, log Ka = -4.206, dH 0.3 kJ/mol, dCp -207 J/(K mol).
+// Cross-check: "Ionization of aqueous benzoic acid: conductance and thermodynamics", J. Solution
+// Chem. 8(5), 329-345 (doi 10.1007/BF00646786), abstract: pKa(m) = -75.5422 + 3136.34/T +
+// 28.7965 log10 T - 6.8139e-3 T. Tolerance 0.015: the two studies differ by 0.005 at 25 °C
+// (4.206 against 4.201), and the conductance fit's ionization heat capacity (about -37
+// cal/(K mol), -155 J/(K mol), same abstract) against -207 adds up to 0.007 more by 5 °C.
+TEST(LibrarySystems, BenzoateFollowsKettler1995) {
+  const Library lib = builtin_library();
+  const Pka& k = lib.system("benzoate").pkas.at(0);
+  const auto conductance = [](double t_C) {
+    const double T = t_C + 273.15;
+    return -75.5422 + 3136.34 / T + 28.7965 * std::log10(T) - 6.8139e-3 * T;
+  };
+  for (double t : {5.0, 37.0}) {
+    EXPECT_NEAR(k.at(t), vant_hoff_by_hand(4.206, 0.3e3, -207.0, t), 0.002) << t << " °C";
+    EXPECT_NEAR(k.at(t), conductance(t), 0.015) << t << " °C";
+  }
+  EXPECT_NEAR(k.at(25.0), 4.206, 0.002);
+}
+
+// Lactic acid. Martin and Tartar's determination as summarised in the monograph "Holten",
+// chapter V paragraph 1.1, quoted in the ECHA REACH registration dossier for lactic acid
+// (dissociation constant): pKa = 3.857 + 5e-5 (t - 22.5)^2, t in °C. The source gives no dH or
+// dCp; they follow from its equation at 25 °C (van 't Hoff: dH = -ln10 R T^2 dpK/dT, dCp =
+// d(dH)/dT), worked out here. Against the equation itself at 5 and 37 °C the tolerance is
+// 0.003: the equation holds d2pK/dT2 constant where the model holds dCp constant (they part by
+// 0.0016 at 5 °C, worked out by hand), plus the rounding of dH and dCp in the library.
+TEST(LibrarySystems, LactateFollowsMartinAndTartar) {
+  const Library lib = builtin_library();
+  const Pka& k = lib.system("lactate").pkas.at(0);
+  const double R = 8.314462618, ln10 = std::log(10.0), T0 = 298.15;
+  const auto equation = [](double t_C) { return 3.857 + 5e-5 * (t_C - 22.5) * (t_C - 22.5); };
+  const double slope = 2.0 * 5e-5 * (25.0 - 22.5), curvature = 2.0 * 5e-5;  // per K, per K^2
+  const double dH = -ln10 * R * T0 * T0 * slope;                                   // J/mol
+  const double dCp = -ln10 * R * (2.0 * T0 * slope + T0 * T0 * curvature);          // J/(K mol)
+  for (double t : {5.0, 37.0}) {
+    EXPECT_NEAR(k.at(t), vant_hoff_by_hand(equation(25.0), dH, dCp, t), 0.002) << t << " °C";
+    EXPECT_NEAR(k.at(t), equation(t), 0.003) << t << " °C";
+  }
+}
+
+// L-histidine, imidazolium step. Bhattacharya and Lecomte 1997, "Temperature dependence of
+// histidine ionization constants in myoglobin", abstract: standard enthalpy of ionization 29
+// kJ/mol for free histidine (no dCp given: 0). The pK 6.07 at 25 °C is the library's (recalled
+// from Goldberg et al. 2002, to be verified); the source gives no pK at other temperatures.
+TEST(LibrarySystems, HistidineImidazoliumFollowsBhattacharyaAndLecomte) {
+  const Library lib = builtin_library();
+  const Pka& k = lib.system("histidine").pkas.at(1);
+  for (double t : {5.0, 37.0})
+    EXPECT_NEAR(k.at(t), vant_hoff_by_hand(6.07, 29e3, 0.0, t), 0.002) << t << " °C";
+  EXPECT_LT(k.at(37.0), k.at(25.0) - 0.15);  // an amine-like step: pK falls about 0.2 by 37 °C
+}
+
+}  // namespace
+}  // namespace pkarta
