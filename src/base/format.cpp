@@ -238,6 +238,24 @@ std::string trim_space(const std::string& s) {
   return s.substr(b, e - b + 1);
 }
 
+std::string spaced_amount(const std::string& s) {
+  const std::string t = trim_space(s);
+  std::size_t i = 0;
+  while (i < t.size() && (std::isdigit(static_cast<unsigned char>(t[i])) || t[i] == '.')) ++i;
+  if (i == 0) return t;
+  // An exponent belongs to the number: 1e-3M, 2.5E2 mM.
+  if (i + 1 < t.size() && (t[i] == 'e' || t[i] == 'E')) {
+    std::size_t j = i + 1;
+    if (t[j] == '+' || t[j] == '-') ++j;
+    if (j < t.size() && std::isdigit(static_cast<unsigned char>(t[j]))) {
+      while (j < t.size() && std::isdigit(static_cast<unsigned char>(t[j]))) ++j;
+      i = j;
+    }
+  }
+  if (i >= t.size()) return t;
+  return t.substr(0, i) + " " + trim_space(t.substr(i));
+}
+
 std::string join_strings(const std::vector<std::string>& v, const std::string& sep) {
   std::string s;
   for (std::size_t i = 0; i < v.size(); ++i) s += (i ? sep : "") + v[i];

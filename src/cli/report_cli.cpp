@@ -2,6 +2,7 @@
 
 #include "progress_bar.h"
 
+#include "pkarta/base/format.h"
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/io/sha256.h"
@@ -105,7 +106,7 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
     }
     if (!(req.dose_mol_per_L > 0)) throw InputError(SourceLocation{"--dose", 0, 0}, "the dose must be above 0");
     check_dose("--dose", compound, r.dose, req.dose_mol_per_L);
-    req.dose_text = r.dose + dose_basis_note(basis, r.form);
+    req.dose_text = spaced_amount(r.dose) + dose_basis_note(basis, r.form);
   } else if (r.form != "free") {
     form_molar_mass(compound, r.form, library);  // an unknown form is an error even without a dose
   }

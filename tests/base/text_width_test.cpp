@@ -75,4 +75,16 @@ TEST(FullPrecision, NumbersReadBackExactly) {
   EXPECT_EQ(pkarta::full(std::optional<double>()), "");
 }
 
+// The SI Brochure (BIPM, 9th edition 2019, section 5.4.3): the value of a quantity is written
+// as a number and a unit separated by a space.
+TEST(SpacedAmount, OneSpaceBetweenNumberAndUnit) {
+  EXPECT_EQ(pkarta::spaced_amount("2mg/mL"), "2 mg/mL");
+  EXPECT_EQ(pkarta::spaced_amount(" 2   mg/mL "), "2 mg/mL");
+  EXPECT_EQ(pkarta::spaced_amount("1e-3M"), "1e-3 M");
+  EXPECT_EQ(pkarta::spaced_amount("2.5E2 mM"), "2.5E2 mM");
+  EXPECT_EQ(pkarta::spaced_amount("0.5"), "0.5");
+  EXPECT_EQ(pkarta::spaced_amount("mg/mL"), "mg/mL");
+  EXPECT_EQ(pkarta::spaced_amount("5eq"), "5 eq");
+}
+
 }  // namespace

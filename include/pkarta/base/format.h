@@ -53,6 +53,9 @@ std::string fit_text_width(const std::string& text, std::size_t max_width = kTex
 std::string ascii_lower(std::string s);
 /// s without leading and trailing spaces, tabs and carriage returns.
 std::string trim_space(const std::string& s);
+/// An amount as written, with one space between its number and its unit ("2mg/mL" and
+/// " 2 mg/mL" give "2 mg/mL"); text that does not start with a number is returned trimmed.
+std::string spaced_amount(const std::string& s);
 /// The strings of v joined by sep.
 std::string join_strings(const std::vector<std::string>& v, const std::string& sep);
 
