@@ -252,6 +252,68 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     p.salt_solid[single] = precip;
     p.salt_drug = precip;
     x[s.comp] = xt - precip;
+  } else if (single >= 0 && !with_free) {
+    // A lone m:n salt: one unknown, u = ln d. Its product fixes the counterion, m u + n ln x = L
+    // (L = ln kq - m ln alpha), and the two mass balances d + m s = dose, x + n s = X leave
+    // g(u) = n d - m x - (n dose - m X) = 0, increasing in u; the same equations as the general
+    // dual below, by safeguarded Newton on g inside its bracket.
+    const SaltPhase& s = salts_[single];
+    const double xt = total[s.comp];
+    if (!(xt > 0)) return false;
+    const double m = s.m, n = s.n;
+    const double big_l = std::log(kq[single]) - m * std::log(alpha[s.species]);
+    const double ln_dose = std::log(dose), ln_xt = std::log(xt);
+    // The salt precipitates (s > 0) only from a supersaturated fully dissolved state.
+    if (!(m * ln_dose + n * ln_xt > big_l)) return false;
+    double lo = (big_l - n * ln_xt) / m, hi = ln_dose;  // x = X at lo, d = dose at hi
+    const double excess = n * dose - m * xt;
+    double u;
+    if (subset == warm_subset_) {
+      u = warm_mu_[0];
+    } else if (excess > 0) {
+      u = std::log(excess / n);  // the counterion nearly exhausted: d near (n dose - m X) / n
+    } else {
+      u = (big_l - n * std::log(-excess / m)) / m;  // the drug nearly exhausted
+    }
+    if (!(u > lo && u < hi)) u = 0.5 * (lo + hi);
+    double dd = 0.0, xx = 0.0;
+    bool converged = false;
+    for (int it = 0; it < 200; ++it) {
+      dd = std::exp(u);
+      xx = std::exp((big_l - m * u) / n);
+      const double g = n * dd - m * xx - excess;
+      if (g == 0.0) {
+        converged = true;
+        break;
+      }
+      if (g > 0) hi = u; else lo = u;
+      const double step = -g / (n * dd + (m * m / n) * xx);
+      double un = u + step;
+      const bool newton = un > lo && un < hi;
+      if (!newton) un = 0.5 * (lo + hi);
+      const double moved = std::fabs(un - u);
+      u = un;
+      // A Newton step this short leaves an error far below rounding (quadratic convergence).
+      if ((newton && moved <= 1e-12) || !(hi - lo > 1e-15 * (1.0 + std::fabs(u)))) {
+        dd = std::exp(u);
+        xx = std::exp((big_l - m * u) / n);
+        converged = true;
+        break;
+      }
+    }
+    if (!converged) return false;
+    // The precipitate from the balance that cancels less.
+    const double precip = dd / dose <= xx / xt ? (dose - dd) / m : (xt - xx) / n;
+    if (!(precip >= 0)) return false;
+    d = dd;
+    p.salt_solid[single] = precip;
+    p.salt_drug = m * precip;
+    x[s.comp] = xx;
+    if (undersaturated_except(subset, alpha, kq, d, x, kEps)) {
+      warm_subset_ = subset;
+      warm_mu_[0] = u;
+      warm_mu_[1] = std::log(xx);
+    }
   } else if (single >= 0 && with_free) {
     const SaltPhase& s = salts_[single];
     d = s0_ / an;
