@@ -112,6 +112,43 @@ bool EquilibriumModel::partition_slope(const Partition& p, double h, double zb, 
   // Unknowns: dmu_l (l: the drug and the counterions of the salts present) and dlambda_r (the
   // solids present). Rows: c_l dmu_l + sum_r nu_rl dlambda_r = 0 (totals fixed);
   // sum_l nu_rl dmu_l = dlogk_r, with d ln alpha_j / d ln h = z_j - zbar.
+  if (!p.solids.free && p.salt_drug != 0.0) {
+    // A lone salt k: the three rows solve by hand, d dmu_d + m dlam = 0, x dmu_x + n dlam = 0,
+    // m dmu_d + n dmu_x = dlogk, so dlam = -dlogk / (m^2/d + n^2/x) and dmu_d = -m dlam / d.
+    int k = -1;
+    for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
+      if (!p.solids.has_salt(salts_[j].index)) continue;
+      if (k >= 0) {
+        k = -2;
+        break;
+      }
+      k = j;
+    }
+    if (k >= 0) {
+      const SaltPhase& s = salts_[k];
+      double left = component_total(s.comp);
+      for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
+        if (salts_[j].comp == s.comp) left -= salts_[j].n * p.salt_solid[j];
+      }
+      if (!(p.dissolved > 0) || !(left > 0)) return false;
+      double dlogk = -s.m * (s.zd - zb), zq = s.zx, var = 0.0;
+      if (s.sys >= 0) {
+        double al[kMaxPka + 1], szb, sz2;
+        moments(systems_[s.sys], h, al, &szb, &sz2);
+        zq = szb;
+        var = sz2 - szb * szb;
+        dlogk -= s.n * (s.zx - szb);
+      }
+      const double m = s.m, n = s.n;
+      const double dlam = -dlogk / (m * m / p.dissolved + n * n / left);
+      const double dmu = -m * dlam / p.dissolved;
+      const double g = p.dissolved * (dmu * zb + (z2 - zb * zb)) - n * dlam * zq -
+                       n * p.salt_solid[k] * var;
+      if (!std::isfinite(g)) return false;
+      *slope = g;
+      return true;
+    }
+  }
   const int nc = static_cast<int>(comp_ion_.size());
   int local_of[kMaxComp], comps[kMaxComp], ncl = 0;
   for (int c = 0; c < nc; ++c) local_of[c] = -1;
@@ -253,55 +290,44 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     p.salt_drug = precip;
     x[s.comp] = xt - precip;
   } else if (single >= 0 && !with_free) {
-    // A lone m:n salt: one unknown, u = ln d. Its product fixes the counterion, m u + n ln x = L
-    // (L = ln kq - m ln alpha), and the two mass balances d + m s = dose, x + n s = X leave
-    // g(u) = n d - m x - (n dose - m X) = 0, increasing in u; the same equations as the general
-    // dual below, by safeguarded Newton on g inside its bracket.
+    // A lone m:n salt: one unknown. The product fixes m ln d + n ln x = L (L = ln kq
+    // - m ln alpha), and the mass balances d + m s = dose, x + n s = X leave n d - m x = E with
+    // E = n dose - m X. Unknown w: ln x where the drug is in excess (E > 0, d = (E + m x)/n),
+    // else ln d (x = (n d - E)/m), so the other amount is a sum of positive terms. Then
+    // psi(w) = a w + b ln y - L = 0 with y = (c e^w + e0)/q is convex and increasing, its slope
+    // between a and a + b: Newton's iterates lie above the root after the first step and fall
+    // to it monotonically.
     const SaltPhase& s = salts_[single];
     const double xt = total[s.comp];
     if (!(xt > 0)) return false;
     const double m = s.m, n = s.n;
     const double big_l = std::log(kq[single]) - m * std::log(alpha[s.species]);
-    const double ln_dose = std::log(dose), ln_xt = std::log(xt);
     // The salt precipitates (s > 0) only from a supersaturated fully dissolved state.
-    if (!(m * ln_dose + n * ln_xt > big_l)) return false;
-    double lo = (big_l - n * ln_xt) / m, hi = ln_dose;  // x = X at lo, d = dose at hi
+    if (!(m * std::log(dose) + n * std::log(xt) > big_l)) return false;
     const double excess = n * dose - m * xt;
-    double u;
-    if (subset == warm_subset_) {
-      u = warm_mu_[0];
-    } else if (excess > 0) {
-      u = std::log(excess / n);  // the counterion nearly exhausted: d near (n dose - m X) / n
-    } else {
-      u = (big_l - n * std::log(-excess / m)) / m;  // the drug nearly exhausted
-    }
-    if (!(u > lo && u < hi)) u = 0.5 * (lo + hi);
-    double dd = 0.0, xx = 0.0;
+    const bool drug_excess = excess > 0;
+    const double a = drug_excess ? n : m, b = drug_excess ? m : n;
+    const double e0 = drug_excess ? excess : -excess, q = a;
+    const double c = b;
+    double w = (big_l - b * std::log(c / q)) / (a + b);  // the root with e0 dropped: above
+    if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);  // ... with c e^w dropped
+    if (subset == warm_subset_) w = warm_mu_[drug_excess ? 1 : 0];
     bool converged = false;
-    for (int it = 0; it < 200; ++it) {
-      dd = std::exp(u);
-      xx = std::exp((big_l - m * u) / n);
-      const double g = n * dd - m * xx - excess;
-      if (g == 0.0) {
-        converged = true;
-        break;
-      }
-      if (g > 0) hi = u; else lo = u;
-      const double step = -g / (n * dd + (m * m / n) * xx);
-      double un = u + step;
-      const bool newton = un > lo && un < hi;
-      if (!newton) un = 0.5 * (lo + hi);
-      const double moved = std::fabs(un - u);
-      u = un;
-      // A Newton step this short leaves an error far below rounding (quadratic convergence).
-      if ((newton && moved <= 1e-12) || !(hi - lo > 1e-15 * (1.0 + std::fabs(u)))) {
-        dd = std::exp(u);
-        xx = std::exp((big_l - m * u) / n);
+    for (int it = 0; it < 100; ++it) {
+      const double ce = c * std::exp(w);
+      const double f = a * w + b * std::log((ce + e0) / q) - big_l;
+      const double step = -f / (a + b * ce / (ce + e0));
+      if (!std::isfinite(step)) return false;
+      w += step;
+      // A step this short leaves an error far below rounding (quadratic convergence).
+      if (std::fabs(step) <= 1e-12) {
         converged = true;
         break;
       }
     }
     if (!converged) return false;
+    const double primary = std::exp(w), other = (c * primary + e0) / q;
+    const double dd = drug_excess ? other : primary, xx = drug_excess ? primary : other;
     // The precipitate from the balance that cancels less.
     const double precip = dd / dose <= xx / xt ? (dose - dd) / m : (xt - xx) / n;
     if (!(precip >= 0)) return false;
@@ -311,8 +337,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     x[s.comp] = xx;
     if (undersaturated_except(subset, alpha, kq, d, x, kEps)) {
       warm_subset_ = subset;
-      warm_mu_[0] = u;
-      warm_mu_[1] = std::log(xx);
+      warm_mu_[drug_excess ? 1 : 0] = w;  // E, and so the unknown's kind, is fixed per model
     }
   } else if (single >= 0 && with_free) {
     const SaltPhase& s = salts_[single];
