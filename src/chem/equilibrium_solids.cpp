@@ -112,42 +112,72 @@ bool EquilibriumModel::partition_slope(const Partition& p, double h, double zb, 
   // Unknowns: dmu_l (l: the drug and the counterions of the salts present) and dlambda_r (the
   // solids present). Rows: c_l dmu_l + sum_r nu_rl dlambda_r = 0 (totals fixed);
   // sum_l nu_rl dmu_l = dlogk_r, with d ln alpha_j / d ln h = z_j - zbar.
-  if (!p.solids.free && p.salt_drug != 0.0) {
-    // A lone salt k: the three rows solve by hand, d dmu_d + m dlam = 0, x dmu_x + n dlam = 0,
-    // m dmu_d + n dmu_x = dlogk, so dlam = -dlogk / (m^2/d + n^2/x) and dmu_d = -m dlam / d.
-    int k = -1;
-    for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
-      if (!p.solids.has_salt(salts_[j].index)) continue;
-      if (k >= 0) {
-        k = -2;
-        break;
-      }
-      k = j;
+  // Small cases by hand over the drug (d) and one counterion (x): a lone salt, or two solids
+  // (the free form and a salt, or two salts of one counterion).
+  int present[2], np = 0;
+  for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
+    if (!p.solids.has_salt(salts_[j].index)) continue;
+    if (np == 2) {
+      np = 3;
+      break;
     }
-    if (k >= 0) {
-      const SaltPhase& s = salts_[k];
-      double left = component_total(s.comp);
-      for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
-        if (salts_[j].comp == s.comp) left -= salts_[j].n * p.salt_solid[j];
-      }
-      if (!(p.dissolved > 0) || !(left > 0)) return false;
-      double dlogk = -s.m * (s.zd - zb), zq = s.zx, var = 0.0;
+    present[np++] = j;
+  }
+  const int nsolid = np + (p.solids.free ? 1 : 0);
+  if (np >= 1 && np <= 2 && nsolid <= 2 && (np == 1 || salts_[present[0]].comp == salts_[present[1]].comp)) {
+    const int comp = salts_[present[0]].comp;
+    double left = component_total(comp);
+    for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
+      if (salts_[j].comp == comp) left -= salts_[j].n * p.salt_solid[j];
+    }
+    if (!(p.dissolved > 0) || !(left > 0)) return false;
+    // Row of each solid: nu = (m, n), dlogk; the free form (1, 0), zb.
+    double rm[2], rn[2], dlogk[2], zq[2] = {}, var[2] = {};
+    int r = 0;
+    if (p.solids.free) {
+      rm[r] = 1.0;
+      rn[r] = 0.0;
+      dlogk[r++] = zb;
+    }
+    for (int t = 0; t < np; ++t, ++r) {
+      const SaltPhase& s = salts_[present[t]];
+      rm[r] = s.m;
+      rn[r] = s.n;
+      dlogk[r] = -s.m * (s.zd - zb);
+      zq[r] = s.zx;
       if (s.sys >= 0) {
         double al[kMaxPka + 1], szb, sz2;
         moments(systems_[s.sys], h, al, &szb, &sz2);
-        zq = szb;
-        var = sz2 - szb * szb;
-        dlogk -= s.n * (s.zx - szb);
+        zq[r] = szb;
+        var[r] = sz2 - szb * szb;
+        dlogk[r] -= s.n * (s.zx - szb);
       }
-      const double m = s.m, n = s.n;
-      const double dlam = -dlogk / (m * m / p.dissolved + n * n / left);
-      const double dmu = -m * dlam / p.dissolved;
-      const double g = p.dissolved * (dmu * zb + (z2 - zb * zb)) - n * dlam * zq -
-                       n * p.salt_solid[k] * var;
-      if (!std::isfinite(g)) return false;
-      *slope = g;
-      return true;
     }
+    const double d = p.dissolved;
+    double dmu_d, dlam[2] = {};
+    if (nsolid == 1) {
+      // d dmu_d + m dlam = 0, x dmu_x + n dlam = 0, m dmu_d + n dmu_x = dlogk.
+      dlam[0] = -dlogk[0] / (rm[0] * rm[0] / d + rn[0] * rn[0] / left);
+      dmu_d = -rm[0] * dlam[0] / d;
+    } else {
+      // As many solids as components: nu dmu = dlogk fixes dmu, nu^T dlam = -c dmu the rest.
+      const double det = rm[0] * rn[1] - rm[1] * rn[0];
+      if (!(std::fabs(det) > 1e-300)) return false;
+      dmu_d = (dlogk[0] * rn[1] - dlogk[1] * rn[0]) / det;
+      const double dmu_x = (rm[0] * dlogk[1] - rm[1] * dlogk[0]) / det;
+      const double bd = -d * dmu_d, bx = -left * dmu_x;
+      dlam[0] = (bd * rn[1] - bx * rm[1]) / det;
+      dlam[1] = (rm[0] * bx - rn[0] * bd) / det;
+    }
+    double g = d * (dmu_d * zb + (z2 - zb * zb));
+    const int first_salt = p.solids.free ? 1 : 0;
+    for (int t = 0; t < np; ++t) {
+      const int rr = first_salt + t;
+      g -= rn[rr] * dlam[rr] * zq[rr] + rn[rr] * p.salt_solid[present[t]] * var[rr];
+    }
+    if (!std::isfinite(g)) return false;
+    *slope = g;
+    return true;
   }
   const int nc = static_cast<int>(comp_ion_.size());
   int local_of[kMaxComp], comps[kMaxComp], ncl = 0;
@@ -301,9 +331,10 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     const double xt = total[s.comp];
     if (!(xt > 0)) return false;
     const double m = s.m, n = s.n;
-    const double big_l = std::log(kq[single]) - m * std::log(alpha[s.species]);
     // The salt precipitates (s > 0) only from a supersaturated fully dissolved state.
-    if (!(m * std::log(dose) + n * std::log(xt) > big_l)) return false;
+    const double k_drug = kq[single] / ipow(alpha[s.species], s.m);  // K = d^m x^n
+    if (!(ipow(dose, s.m) * ipow(xt, s.n) > k_drug)) return false;
+    const double big_l = std::log(k_drug);
     const double excess = n * dose - m * xt;
     const bool drug_excess = excess > 0;
     const double a = drug_excess ? n : m, b = drug_excess ? m : n;
@@ -312,6 +343,9 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     double w = (big_l - b * std::log(c / q)) / (a + b);  // the root with e0 dropped: above
     if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);  // ... with c e^w dropped
     if (subset == warm_subset_) w = warm_mu_[drug_excess ? 1 : 0];
+    // Newton's error after a step of length t is at most psi''/(2 psi') t^2 <= b/(8a) t^2
+    // (psi'' <= b/4, psi' >= a): a step below `tiny` leaves an error below 1e-17 in w.
+    const double tiny = std::sqrt(8e-17 * a / b);
     bool converged = false;
     for (int it = 0; it < 100; ++it) {
       const double ce = c * std::exp(w);
@@ -319,8 +353,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
       const double step = -f / (a + b * ce / (ce + e0));
       if (!std::isfinite(step)) return false;
       w += step;
-      // A step this short leaves an error far below rounding (quadratic convergence).
-      if (std::fabs(step) <= 1e-12) {
+      if (std::fabs(step) <= tiny) {
         converged = true;
         break;
       }
