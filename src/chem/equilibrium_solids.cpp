@@ -342,7 +342,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     const double c = b;
     double w = (big_l - b * std::log(c / q)) / (a + b);  // the root with e0 dropped: above
     if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);  // ... with c e^w dropped
-    if (subset == warm_subset_) w = warm_mu_[drug_excess ? 1 : 0];
+    if (!std::isnan(lone_warm_[single])) w = lone_warm_[single];
     // Newton's error after a step of length t is at most psi''/(2 psi') t^2 <= b/(8a) t^2
     // (psi'' <= b/4, psi' >= a): a step below `tiny` leaves an error below 1e-17 in w.
     const double tiny = std::sqrt(8e-17 * a / b);
@@ -368,10 +368,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     p.salt_solid[single] = precip;
     p.salt_drug = m * precip;
     x[s.comp] = xx;
-    if (undersaturated_except(subset, alpha, kq, d, x, kEps)) {
-      warm_subset_ = subset;
-      warm_mu_[drug_excess ? 1 : 0] = w;  // E, and so the unknown's kind, is fixed per model
-    }
+    lone_warm_[single] = w;  // E, and so the unknown's kind, is fixed per model
   } else if (single >= 0 && with_free) {
     const SaltPhase& s = salts_[single];
     d = s0_ / an;
@@ -420,7 +417,6 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     for (int l = 0; l < ncl; ++l) {
       tot[l] = total[comps[l]];
       if (!(tot[l] > 0)) return false;
-      mu[l] = std::log(tot[l]);
     }
     // As many solids as components (the phase rule's limit): the solubility products alone fix
     // the potentials, nu mu = logk, and the mass balances the solid amounts, nu^T lam = T - c.
@@ -446,6 +442,8 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
       }
       if (!solve_dense(ns, a, lam)) return false;
       converged = true;
+    } else {
+      for (int l = 0; l < ncl; ++l) mu[l] = std::log(tot[l]);
     }
     // Warm start from the last solution of the same active set (the previous evaluation).
     if (!converged && subset == warm_subset_) {
@@ -496,7 +494,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     }
     d = std::exp(mu[0]);
     for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
-    if (undersaturated_except(subset, alpha, kq, d, x, kEps)) {
+    if (ns != ncl && undersaturated_except(subset, alpha, kq, d, x, kEps)) {
       warm_subset_ = subset;
       for (int l = 0; l < ncl; ++l) warm_mu_[l] = mu[l];
     }
