@@ -109,6 +109,9 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     drug_neutral_ = d.compound.has_intrinsic_solubility ? d.compound.system.neutral_index() : -1;
     s0_ = d.compound.has_intrinsic_solubility ? d.compound.s0_at(temperature_C_)
                                               : std::numeric_limits<double>::infinity();
+    comp_ion_.reserve(1 + d.compound.salts.size());
+    comp_sys_.reserve(1 + d.compound.salts.size());
+    salts_.reserve(d.compound.salts.size());
     comp_ion_.push_back(-1);
     comp_sys_.push_back(-1);
     for (std::size_t idx = 0; idx < d.compound.salts.size(); ++idx) {
@@ -172,12 +175,14 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     const int ns = static_cast<int>(salts_.size());
     const int nc = static_cast<int>(comp_ion_.size());
     std::vector<std::pair<int, std::uint32_t>> sets;
+    sets.reserve(std::size_t{1} << (ns + 1));
     for (std::uint32_t mask = 1; mask < (1u << (ns + 1)); ++mask) {
       if ((mask & 1u) && !free_possible) continue;
-      double a[kMaxComp][kMaxComp] = {};
+      double a[kMaxComp][kMaxComp];
       int rows = 0;
       for (int b = 0; b <= ns; ++b) {
         if (!((mask >> b) & 1u)) continue;
+        if (rows < kMaxComp) std::fill(a[rows], a[rows] + nc, 0.0);
         if (b == 0) {
           a[rows][0] = 1.0;
         } else {
@@ -205,6 +210,7 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     }
     std::stable_sort(sets.begin(), sets.end(),
                      [](const auto& x, const auto& y) { return x.first < y.first; });
+    subsets_.reserve(sets.size());
     for (const auto& st : sets) subsets_.push_back(st.second);
   }
   per_species_ = m.activity == ActivityModel::kSit || m.activity == ActivityModel::kTruesdellJones;

@@ -112,6 +112,73 @@ bool EquilibriumModel::partition_slope(const Partition& p, double h, double zb, 
   // Unknowns: dmu_l (l: the drug and the counterions of the salts present) and dlambda_r (the
   // solids present). Rows: c_l dmu_l + sum_r nu_rl dlambda_r = 0 (totals fixed);
   // sum_l nu_rl dmu_l = dlogk_r, with d ln alpha_j / d ln h = z_j - zbar.
+  // Small cases by hand over the drug (d) and one counterion (x): a lone salt, or two solids
+  // (the free form and a salt, or two salts of one counterion).
+  int present[2], np = 0;
+  for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
+    if (!p.solids.has_salt(salts_[j].index)) continue;
+    if (np == 2) {
+      np = 3;
+      break;
+    }
+    present[np++] = j;
+  }
+  const int nsolid = np + (p.solids.free ? 1 : 0);
+  if (np >= 1 && np <= 2 && nsolid <= 2 && (np == 1 || salts_[present[0]].comp == salts_[present[1]].comp)) {
+    const int comp = salts_[present[0]].comp;
+    double left = component_total(comp);
+    for (int j = 0; j < static_cast<int>(salts_.size()); ++j) {
+      if (salts_[j].comp == comp) left -= salts_[j].n * p.salt_solid[j];
+    }
+    if (!(p.dissolved > 0) || !(left > 0)) return false;
+    // Row of each solid: nu = (m, n), dlogk; the free form (1, 0), zb.
+    double rm[2], rn[2], dlogk[2], zq[2] = {}, var[2] = {};
+    int r = 0;
+    if (p.solids.free) {
+      rm[r] = 1.0;
+      rn[r] = 0.0;
+      dlogk[r++] = zb;
+    }
+    for (int t = 0; t < np; ++t, ++r) {
+      const SaltPhase& s = salts_[present[t]];
+      rm[r] = s.m;
+      rn[r] = s.n;
+      dlogk[r] = -s.m * (s.zd - zb);
+      zq[r] = s.zx;
+      if (s.sys >= 0) {
+        double al[kMaxPka + 1], szb, sz2;
+        moments(systems_[s.sys], h, al, &szb, &sz2);
+        zq[r] = szb;
+        var[r] = sz2 - szb * szb;
+        dlogk[r] -= s.n * (s.zx - szb);
+      }
+    }
+    const double d = p.dissolved;
+    double dmu_d, dlam[2] = {};
+    if (nsolid == 1) {
+      // d dmu_d + m dlam = 0, x dmu_x + n dlam = 0, m dmu_d + n dmu_x = dlogk.
+      dlam[0] = -dlogk[0] / (rm[0] * rm[0] / d + rn[0] * rn[0] / left);
+      dmu_d = -rm[0] * dlam[0] / d;
+    } else {
+      // As many solids as components: nu dmu = dlogk fixes dmu, nu^T dlam = -c dmu the rest.
+      const double det = rm[0] * rn[1] - rm[1] * rn[0];
+      if (!(std::fabs(det) > 1e-300)) return false;
+      dmu_d = (dlogk[0] * rn[1] - dlogk[1] * rn[0]) / det;
+      const double dmu_x = (rm[0] * dlogk[1] - rm[1] * dlogk[0]) / det;
+      const double bd = -d * dmu_d, bx = -left * dmu_x;
+      dlam[0] = (bd * rn[1] - bx * rm[1]) / det;
+      dlam[1] = (rm[0] * bx - rn[0] * bd) / det;
+    }
+    double g = d * (dmu_d * zb + (z2 - zb * zb));
+    const int first_salt = p.solids.free ? 1 : 0;
+    for (int t = 0; t < np; ++t) {
+      const int rr = first_salt + t;
+      g -= rn[rr] * dlam[rr] * zq[rr] + rn[rr] * p.salt_solid[present[t]] * var[rr];
+    }
+    if (!std::isfinite(g)) return false;
+    *slope = g;
+    return true;
+  }
   const int nc = static_cast<int>(comp_ion_.size());
   int local_of[kMaxComp], comps[kMaxComp], ncl = 0;
   for (int c = 0; c < nc; ++c) local_of[c] = -1;
@@ -252,6 +319,56 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     p.salt_solid[single] = precip;
     p.salt_drug = precip;
     x[s.comp] = xt - precip;
+  } else if (single >= 0 && !with_free) {
+    // A lone m:n salt: one unknown. The product fixes m ln d + n ln x = L (L = ln kq
+    // - m ln alpha), and the mass balances d + m s = dose, x + n s = X leave n d - m x = E with
+    // E = n dose - m X. Unknown w: ln x where the drug is in excess (E > 0, d = (E + m x)/n),
+    // else ln d (x = (n d - E)/m), so the other amount is a sum of positive terms. Then
+    // psi(w) = a w + b ln y - L = 0 with y = (c e^w + e0)/q is convex and increasing, its slope
+    // between a and a + b: Newton's iterates lie above the root after the first step and fall
+    // to it monotonically.
+    const SaltPhase& s = salts_[single];
+    const double xt = total[s.comp];
+    if (!(xt > 0)) return false;
+    const double m = s.m, n = s.n;
+    // The salt precipitates (s > 0) only from a supersaturated fully dissolved state.
+    const double k_drug = kq[single] / ipow(alpha[s.species], s.m);  // K = d^m x^n
+    if (!(ipow(dose, s.m) * ipow(xt, s.n) > k_drug)) return false;
+    const double big_l = std::log(k_drug);
+    const double excess = n * dose - m * xt;
+    const bool drug_excess = excess > 0;
+    const double a = drug_excess ? n : m, b = drug_excess ? m : n;
+    const double e0 = drug_excess ? excess : -excess, q = a;
+    const double c = b;
+    double w = (big_l - b * std::log(c / q)) / (a + b);  // the root with e0 dropped: above
+    if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);  // ... with c e^w dropped
+    if (!std::isnan(lone_warm_[single])) w = lone_warm_[single];
+    // Newton's error after a step of length t is at most psi''/(2 psi') t^2 <= b/(8a) t^2
+    // (psi'' <= b/4, psi' >= a): a step below `tiny` leaves an error below 1e-17 in w.
+    const double tiny = std::sqrt(8e-17 * a / b);
+    bool converged = false;
+    for (int it = 0; it < 100; ++it) {
+      const double ce = c * std::exp(w);
+      const double f = a * w + b * std::log((ce + e0) / q) - big_l;
+      const double step = -f / (a + b * ce / (ce + e0));
+      if (!std::isfinite(step)) return false;
+      w += step;
+      if (std::fabs(step) <= tiny) {
+        converged = true;
+        break;
+      }
+    }
+    if (!converged) return false;
+    const double primary = std::exp(w), other = (c * primary + e0) / q;
+    const double dd = drug_excess ? other : primary, xx = drug_excess ? primary : other;
+    // The precipitate from the balance that cancels less.
+    const double precip = dd / dose <= xx / xt ? (dose - dd) / m : (xt - xx) / n;
+    if (!(precip >= 0)) return false;
+    d = dd;
+    p.salt_solid[single] = precip;
+    p.salt_drug = m * precip;
+    x[s.comp] = xx;
+    lone_warm_[single] = w;  // E, and so the unknown's kind, is fixed per model
   } else if (single >= 0 && with_free) {
     const SaltPhase& s = salts_[single];
     d = s0_ / an;
@@ -300,7 +417,6 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     for (int l = 0; l < ncl; ++l) {
       tot[l] = total[comps[l]];
       if (!(tot[l] > 0)) return false;
-      mu[l] = std::log(tot[l]);
     }
     // As many solids as components (the phase rule's limit): the solubility products alone fix
     // the potentials, nu mu = logk, and the mass balances the solid amounts, nu^T lam = T - c.
@@ -326,6 +442,8 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
       }
       if (!solve_dense(ns, a, lam)) return false;
       converged = true;
+    } else {
+      for (int l = 0; l < ncl; ++l) mu[l] = std::log(tot[l]);
     }
     // Warm start from the last solution of the same active set (the previous evaluation).
     if (!converged && subset == warm_subset_) {
@@ -376,7 +494,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     }
     d = std::exp(mu[0]);
     for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
-    if (undersaturated_except(subset, alpha, kq, d, x, kEps)) {
+    if (ns != ncl && undersaturated_except(subset, alpha, kq, d, x, kEps)) {
       warm_subset_ = subset;
       for (int l = 0; l < ncl; ++l) warm_mu_[l] = mu[l];
     }

@@ -119,6 +119,89 @@ TEST(Stoichiometry, TwoToOneSulfateSolubilityAtFixedPh) {
   }
 }
 
+// Root of an increasing function on [lo, hi] by bisection (the test's own solver, independent of
+// the model's).
+template <typename F>
+double bisect(F&& f, double lo, double hi) {
+  for (int i = 0; i < 400 && hi - lo > 1e-300; ++i) {
+    const double mid = 0.5 * (lo + hi);
+    if (f(mid) > 0) hi = mid; else lo = mid;
+  }
+  return 0.5 * (lo + hi);
+}
+
+// A lone 1:2 salt away from its own stoichiometry, at a fixed pH (activity coefficients 1, no
+// free form possible). Drug dose D, chloride total X; s formula units precipitate, leaving
+// S = D - s dissolved and [Cl-] = X - 2 s = X - 2 D + 2 S, so (hand derivation)
+//   Ksp = f S (X - 2 D + 2 S)^2,  f = alpha_0 (BH2++),  S in (max(0, D - X/2), D].
+// Chloride in excess (common-ion effect, X > 2 D) and short of it (X < 2 D) both; each pH is
+// evaluated on one model in sequence (each partition starts from the one before) and on a fresh
+// model, which must agree.
+TEST(Stoichiometry, DihydrochlorideOffStoichiometryAtFixedPhSolvesTheCubic) {
+  Compound c = dibasic_base();
+  c.has_intrinsic_solubility = false;
+  const double ksp = 1e-6, dose = 0.05;
+  c.salts.push_back(salt("dihydrochloride", "Cl-", 1, 2, ksp));
+  for (double chloride : {0.15, 0.3, 0.06, 0.02}) {
+    Mixture m;
+    m.activity = ActivityModel::kIdeal;
+    DrugAmount d;
+    d.compound = c;
+    d.dose_mol_per_L = dose;
+    d.form = "free";
+    m.drug = d;
+    m.add_ion("Cl-", -1, chloride);
+    const EquilibriumModel sequence(m);
+    for (double pH : {2.0, 2.5, 3.0, 4.0, 5.0, 5.5}) {
+      const double f = fraction(c.system, pH, 0);
+      const double lo = std::max(0.0, dose - 0.5 * chloride);
+      auto excess_product = [&](double s) {
+        const double x = chloride - 2.0 * dose + 2.0 * s;
+        return f * s * x * x - ksp;
+      };
+      // Saturated only when the whole dose dissolved exceeds Ksp.
+      if (!(excess_product(dose) > 0)) continue;
+      const double expected = bisect(excess_product, lo, dose);
+      const EquilibriumModel fresh(m);
+      for (const EquilibriumModel* model : {&sequence, &fresh}) {
+        const EquilibriumModel::Evaluation ev = model->evaluate(pH);
+        EXPECT_TRUE(ev.drug.solids.has_salt(0) && !ev.drug.solids.free) << chloride << " " << pH;
+        EXPECT_NEAR(ev.drug.dissolved / expected, 1.0, 1e-12) << chloride << " " << pH;
+        EXPECT_NEAR(ev.drug.salt_solid[0], dose - expected, 1e-14) << chloride << " " << pH;
+        EXPECT_NEAR(ev.drug.dissolved + ev.drug.salt_drug, dose, 1e-15) << chloride << " " << pH;
+      }
+    }
+  }
+}
+
+// A lone 2:1 sulfate (BH+)2 SO4-- with sulfate in excess, at a fixed pH (activity coefficients
+// 1): dose D, sulfate total Y, s formula units precipitate, S = D - 2 s dissolved and
+// [SO4--] = Y - s = Y - (D - S)/2, so (hand derivation) Ksp = (f S)^2 (Y - (D - S)/2).
+TEST(Stoichiometry, TwoToOneSulfateWithExcessSulfateAtFixedPh) {
+  Compound c = monobasic_base(8.0, 1e-2);
+  c.has_intrinsic_solubility = false;
+  const double ksp = 1e-9, dose = 0.1, sulfate = 0.2;
+  c.salts.push_back(salt("sulfate", "SO4--", 2, 1, ksp));
+  Mixture m;
+  m.activity = ActivityModel::kIdeal;
+  DrugAmount d;
+  d.compound = c;
+  d.dose_mol_per_L = dose;
+  d.form = "free";
+  m.drug = d;
+  m.add_ion("SO4--", -2, sulfate);
+  const EquilibriumModel model(m);
+  for (double pH : {3.0, 5.0, 6.5, 7.5}) {
+    const double f = fraction(c.system, pH, 0);
+    auto excess_product = [&](double s) { return f * s * f * s * (sulfate - 0.5 * (dose - s)) - ksp; };
+    const double expected = bisect(excess_product, 0.0, dose);
+    const EquilibriumModel::Evaluation ev = model.evaluate(pH);
+    EXPECT_TRUE(ev.drug.solids.has_salt(0)) << pH;
+    EXPECT_NEAR(ev.drug.dissolved / expected, 1.0, 1e-12) << pH;
+    EXPECT_NEAR(ev.drug.salt_solid[0], 0.5 * (dose - expected), 1e-14) << pH;
+  }
+}
+
 // The closed system: the dihydrochloride in water sets its own pH; the returned state holds
 // the activity product at Ksp and closes the balances.
 TEST(Stoichiometry, DihydrochlorideInWaterHoldsItsActivityProduct) {

@@ -11,6 +11,7 @@
 #include <array>
 #include <cmath>
 #include <cstdint>
+#include <limits>
 #include <optional>
 #include <string>
 #include <vector>
@@ -306,6 +307,13 @@ class EquilibriumModel {
   mutable std::uint32_t last_subset_ = 0;    // the active set found last (tried first)
   mutable std::uint32_t warm_subset_ = 0;    // active set of warm_mu_ (general solve)
   mutable std::array<double, kMaxSolidComponents> warm_mu_{};
+  // Per model salt, the unknown of its last lone-salt partition (NaN: none yet).
+  mutable std::array<double, kMaxSalts> lone_warm_ = filled_nan();
+  static constexpr std::array<double, kMaxSalts> filled_nan() {
+    std::array<double, kMaxSalts> a{};
+    for (double& v : a) v = std::numeric_limits<double>::quiet_NaN();
+    return a;
+  }
 };
 
 /// Solves a mixture and returns the full state (species list, drug state, warnings).
