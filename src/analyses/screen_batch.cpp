@@ -100,8 +100,13 @@ void add_fallbacks(const Library& library, const std::vector<ScreenJob>& jobs,
                    std::vector<ScreenReport>& reports) {
   if (options.preparation != ScreenPreparation::kPremade || buffers.empty()) return;
   std::vector<std::size_t> failing;
+  // Only where a buffer fails to hold the pH (not-achievable): adjusting the pH after the dose
+  // does not help a dose that does not dissolve at the target.
   for (std::size_t i = 0; i < reports.size(); ++i) {
-    if (!any_ok(reports[i])) failing.push_back(i);
+    const bool pH_fails = std::any_of(reports[i].results.begin(), reports[i].results.end(), [](const ScreenResult& r) {
+      return r.status == ScreenStatus::kNotAchievable;
+    });
+    if (!any_ok(reports[i]) && pH_fails) failing.push_back(i);
   }
   if (failing.empty()) return;
   ScreenOptions adjusted = options;
@@ -132,6 +137,37 @@ void add_fallbacks(const Library& library, const std::vector<ScreenJob>& jobs,
 }
 
 }  // namespace
+
+std::vector<std::pair<double, double>> dose_soluble_pH_ranges(const Library& library, const Compound& compound,
+                                                              double dose_mol_per_L, const ScreenOptions& options) {
+  SolubilityScanner scanner(compound, library, ProfileConditions::in_water(options.temperature_C, options.activity));
+  auto dissolves = [&](double pH) { return scanner.at(pH).solubility_mol_per_L >= dose_mol_per_L; };
+  // The pH where `dissolves` changes between a (value va) and b.
+  auto edge = [&](double a, double b, bool va) {
+    for (int it = 0; it < 10 && std::fabs(b - a) > 1e-4; ++it) {
+      const double mid = 0.5 * (a + b);
+      (dissolves(mid) == va ? a : b) = mid;
+    }
+    return 0.5 * (a + b);
+  };
+  std::vector<std::pair<double, double>> ranges;
+  const double step = 0.05;
+  const int n = static_cast<int>(std::lround((13.0 - 1.0) / step));
+  bool prev = dissolves(1.0);
+  double start = 1.0;
+  for (int i = 1; i <= n; ++i) {
+    const double pH = 1.0 + i * step, before = pH - step;
+    const bool now = dissolves(pH);
+    if (now != prev) {
+      const double x = edge(before, pH, prev);
+      if (now) start = x;
+      else ranges.emplace_back(start, x);
+      prev = now;
+    }
+  }
+  if (prev) ranges.emplace_back(start, 13.0);
+  return ranges;
+}
 
 void rank_screen_results(std::vector<ScreenResult>& results) {
   auto key_conc = [](const ScreenResult& r) { return r.min_conc_mol_per_L ? *r.min_conc_mol_per_L : kInf; };
@@ -220,7 +256,22 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
   add_fallbacks(library, jobs, buffers, options, threads, reports);
   for (ScreenReport& rep : reports) {
     if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
-      rep.warnings.push_back("the dose exceeds the drug's solubility in water at the target pH");
+      const ScreenJob& job = jobs[static_cast<std::size_t>(&rep - reports.data())];
+      rep.dose_soluble_pH_ranges = dose_soluble_pH_ranges(library, job.compound, rep.dose_mol_per_L, options);
+      std::string where;
+      for (const auto& [lo, hi] : rep.dose_soluble_pH_ranges) {
+        if (!where.empty()) where += " or ";
+        if (lo <= 1.0 + 1e-9 && hi >= 13.0 - 1e-9) where += "over pH 1-13";
+        else if (lo <= 1.0 + 1e-9) where += "at pH " + fixed(hi, 2) + " and below";
+        else if (hi >= 13.0 - 1e-9) where += "at pH " + fixed(lo, 2) + " and above";
+        else where += "at pH " + fixed(lo, 2) + " to " + fixed(hi, 2);
+      }
+      rep.warnings.push_back("the dose (" + sig(1e3 * rep.dose_mol_per_L, 3) + " mM) exceeds the drug's solubility in water at pH " +
+                             fixed(rep.target_pH, 2) + " (" + sig(1e3 * rep.solubility_at_target_mol_per_L, 3) + " mM, " +
+                             fixed(rep.temperature_C, 1) + " °C): " +
+                             (where.empty() ? std::string("it dissolves nowhere between pH 1 and 13 in water")
+                                            : "in water it dissolves " + where) +
+                             "; lower the dose or move the target pH");
     }
     if (rep.route == "parenteral" || rep.route == "ophthalmic") {
       for (const ScreenResult& r : rep.results) {

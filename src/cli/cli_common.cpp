@@ -290,7 +290,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
     } catch (const InputError& e) {
       throw InputError(SourceLocation{"--add", 0, 0}, e.message());
     }
-    if (inputs) inputs->push_back(id + " " + amount_text);
+    if (inputs) inputs->push_back(id + " " + spaced_amount(amount_text));
   }
   if (!f.compound_file.empty()) {
     if (f.dose.empty()) throw InputError(SourceLocation{"--dose", 0, 0}, "--compound needs --dose");
@@ -307,7 +307,7 @@ Mixture build_formulation(const FormulationOptions& f, const Library& library,
                        e.message());
     }
     check_dose("--dose", c, f.dose, conc);
-    if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + f.dose + dose_basis_note(basis, f.form));
+    if (inputs) inputs->push_back(c.id + (f.form == "free" ? "" : " " + f.form) + " " + spaced_amount(f.dose) + dose_basis_note(basis, f.form));
     if (compound_out) *compound_out = c;
   } else if (!f.dose.empty()) {
     throw InputError(SourceLocation{"--dose", 0, 0}, "--dose needs --compound");

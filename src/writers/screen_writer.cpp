@@ -179,6 +179,11 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
   if (rep.min_capacity_mol_per_L_per_pH > 0) j["min_capacity_mol_per_L_per_pH"] = rep.min_capacity_mol_per_L_per_pH;
   if (rep.max_drift_pH) j["max_drift_pH"] = *rep.max_drift_pH;
   j["solubility_at_target_pH_mol_per_L"] = number(rep.solubility_at_target_mol_per_L);
+  if (!rep.dose_soluble_pH_ranges.empty() || rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
+    nlohmann::ordered_json ranges = nlohmann::ordered_json::array();
+    for (const auto& [lo, hi] : rep.dose_soluble_pH_ranges) ranges.push_back({lo, hi});
+    j["dose_soluble_pH_ranges"] = ranges;
+  }
   nlohmann::ordered_json results = nlohmann::ordered_json::array();
   int rank = 0;
   for (const ScreenResult& r : rep.results) results.push_back(result_json(rep, r, ++rank));
@@ -317,7 +322,7 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     out << "\n\n";
     const bool challenge = rep.challenge_mol_per_L > 0 && wide;
     // The default table fits 100 columns; --wide adds the other columns of the screen.
-    std::vector<std::string> head = {"rank", "buffer", "status", "min conc (mM)",
+    std::vector<std::string> head = {"rank", "buffer", "status", wide ? "min conc (mM)" : "min (mM)",
                                      wide ? "recommended (mM)" : "rec. (mM)", "set by",
                                      wide ? "pH after drug" : "pH w/ drug"};
     if (challenge) {

@@ -14,7 +14,7 @@ namespace {
 
 // An invented monoprotic acid, pKa 4.20 (thermodynamic, no temperature dependence), soluble
 // enough that no solid forms in these checks.
-Compound invented_acid() {
+Compound invented_acid(double s0_mol_per_L = 1.0) {
   Compound c;
   c.id = "acid-4.2";
   c.name = "invented acid";
@@ -25,7 +25,7 @@ Compound invented_acid() {
   p.type = GroupType::kAcid;
   c.system.pkas.push_back(p);
   c.has_intrinsic_solubility = true;
-  c.s0_mol_per_L = 1.0;
+  c.s0_mol_per_L = s0_mol_per_L;
   return c;
 }
 
@@ -93,6 +93,34 @@ TEST(ScreenFallback, NoFallbackWhenABufferHoldsTheTargetOrTheScreenIsAdjusted) {
   opt.preparation = ScreenPreparation::kAdjusted;
   const ScreenReport adjusted = screen(lib, acid_job(0.02), opt);
   EXPECT_FALSE(adjusted.fallback);
+}
+
+TEST(ScreenFallback, DoseSolublePhRangeFollowsHendersonHasselbalch) {
+  // A monoprotic acid without salts, activity coefficients 1: S(pH) = S0 (1 + 10^(pH - pKa))
+  // (Henderson-Hasselbalch solubility), so C dissolves from pH = pKa + log10(C/S0 - 1) upwards.
+  const Library lib = builtin_library();
+  ScreenOptions opt;
+  opt.activity = ActivityModel::kIdeal;
+  opt.target_pH = 5.0;
+  const Compound c = invented_acid(1e-4);
+  const double dose = 0.01;
+  const auto ranges = dose_soluble_pH_ranges(lib, c, dose, opt);
+  ASSERT_EQ(ranges.size(), 1u);
+  EXPECT_NEAR(ranges[0].first, 4.20 + std::log10(dose / 1e-4 - 1.0), 2e-4);
+  EXPECT_DOUBLE_EQ(ranges[0].second, 13.0);
+  // A dose that does not dissolve at the target: the screen names the range, and no
+  // adjusted fallback is offered (adjusting the pH to the same target does not dissolve it).
+  opt.buffers = {"acetate", "citrate"};
+  ScreenJob job;
+  job.compound = c;
+  job.dose_mol_per_L = dose;
+  const ScreenReport rep = screen(lib, job, opt);
+  ASSERT_EQ(rep.dose_soluble_pH_ranges.size(), 1u);
+  EXPECT_NEAR(rep.dose_soluble_pH_ranges[0].first, ranges[0].first, 1e-12);
+  EXPECT_FALSE(rep.fallback);
+  bool named = false;
+  for (const std::string& w : rep.warnings) named = named || w.find("6.20 and above") != std::string::npos;
+  EXPECT_TRUE(named);
 }
 
 }  // namespace

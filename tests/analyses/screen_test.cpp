@@ -503,7 +503,7 @@ TEST(ScreenCli, TextAndCsvCarryUnitsAndTheCaution) {
   RunResult r = run("screen --compound compounds/demo-acid.xml --dose 5mg/mL --form sodium --target-ph 7.4 "
                     "--buffers phosphate,tris --route oral");
   ASSERT_EQ(r.code, 0) << r.err;
-  EXPECT_NE(r.out.find("min conc (mM)"), std::string::npos);
+  EXPECT_NE(r.out.find("min (mM)"), std::string::npos);
   EXPECT_NE(r.out.find("Caution"), std::string::npos);
   EXPECT_NE(r.out.find("must be"), std::string::npos);  // osmolality to be measured
   r = run("screen --compound compounds/demo-acid.xml --dose 5mg/mL --form sodium --target-ph 7.4 --format csv");

@@ -634,7 +634,7 @@ TEST(Cli, DoseAsFreeFormEquivalent) {
   EXPECT_NEAR(number_after(free.out, "dose_mol_per_L"), 2.0 / 311.4, 1e-9);
   EXPECT_NEAR(number_after(free.out, "dissolved_mg_per_mL_as_free_form"), 2.0, 1e-9);
   const RunResult text = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --dose-as free");
-  EXPECT_NE(text.out.find("hydrochloride 2mg/mL (as free form)"), std::string::npos) << text.out;
+  EXPECT_NE(text.out.find("hydrochloride 2 mg/mL (as free form)"), std::string::npos) << text.out;
   const RunResult bad = run("mix --compound compounds/demo-base.xml --dose 2mg/mL --form hydrochloride --dose-as base");
   EXPECT_EQ(bad.code, 2);
   EXPECT_NE(bad.err.find("--dose-as"), std::string::npos) << bad.err;

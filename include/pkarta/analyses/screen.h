@@ -36,6 +36,7 @@
 #include <ostream>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "pkarta/chem/equilibrium.h"
@@ -197,6 +198,9 @@ struct ScreenReport {
   double dose_mol_per_L = 0.0;
   double dose_range_fraction = 0.0;
   double solubility_at_target_mol_per_L = 0.0;  ///< in water at the target pH (profile)
+  /// When the dose exceeds that solubility: the pH ranges (within pH 1-13, at the run
+  /// temperature, in water held by HCl or NaOH) in which the dose does dissolve; empty otherwise.
+  std::vector<std::pair<double, double>> dose_soluble_pH_ranges;
   std::string route = "any";
   ScreenPreparation preparation = ScreenPreparation::kPremade;
   double challenge_mol_per_L = 0.0;
@@ -230,6 +234,12 @@ BufferPreparation dose_titration(const Library& library, const Buffer& buffer, c
 /// The drug's solubility in water at the target pH and run temperature (solubility_at_pH).
 double screen_solubility_at_target(const Library& library, const Compound& compound,
                                    const ScreenOptions& options);
+
+/// The pH ranges within pH 1-13 in which `dose_mol_per_L` of the drug dissolves in water (held
+/// by HCl or NaOH) at the run temperature: the profile on a 0.05 pH grid, each end refined by
+/// bisection to 1e-4 pH. An end at 1 or 13 is the end of the scan, not a limit.
+std::vector<std::pair<double, double>> dose_soluble_pH_ranges(const Library& library, const Compound& compound,
+                                                              double dose_mol_per_L, const ScreenOptions& options);
 
 /// The buffers a screen covers: options.buffers (or all), filtered by route, in id order.
 /// Throws InputError for an unknown buffer id or an unknown route.
