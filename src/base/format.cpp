@@ -239,7 +239,7 @@ std::string trim_space(const std::string& s) {
 }
 
 std::string spaced_amount(const std::string& s) {
-  const std::string t = trim_space(s);
+  std::string t = trim_space(s);
   std::size_t i = 0;
   while (i < t.size() && (std::isdigit(static_cast<unsigned char>(t[i])) || t[i] == '.')) ++i;
   if (i == 0) return t;
