@@ -47,9 +47,9 @@ void check_job(const ScreenJob& job) {
   }
 }
 
-bool any_ok(const ScreenReport& rep) {
+bool has_status(const ScreenReport& rep, ScreenStatus status) {
   return std::any_of(rep.results.begin(), rep.results.end(),
-                     [](const ScreenResult& r) { return r.status == ScreenStatus::kOk; });
+                     [status](const ScreenResult& r) { return r.status == status; });
 }
 
 // Runs body(i) for i in [0, n) on `threads` threads.
@@ -103,10 +103,9 @@ void add_fallbacks(const Library& library, const std::vector<ScreenJob>& jobs,
   // Only where a buffer fails to hold the pH (not-achievable): adjusting the pH after the dose
   // does not help a dose that does not dissolve at the target.
   for (std::size_t i = 0; i < reports.size(); ++i) {
-    const bool pH_fails = std::any_of(reports[i].results.begin(), reports[i].results.end(), [](const ScreenResult& r) {
-      return r.status == ScreenStatus::kNotAchievable;
-    });
-    if (!any_ok(reports[i]) && pH_fails) failing.push_back(i);
+    if (!has_status(reports[i], ScreenStatus::kOk) && has_status(reports[i], ScreenStatus::kNotAchievable)) {
+      failing.push_back(i);
+    }
   }
   if (failing.empty()) return;
   ScreenOptions adjusted = options;
@@ -254,10 +253,10 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
   });
   for (ScreenReport& rep : reports) rank_screen_results(rep.results);
   add_fallbacks(library, jobs, buffers, options, threads, reports);
-  for (ScreenReport& rep : reports) {
+  for (std::size_t i = 0; i < reports.size(); ++i) {
+    ScreenReport& rep = reports[i];
     if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
-      const ScreenJob& job = jobs[static_cast<std::size_t>(&rep - reports.data())];
-      rep.dose_soluble_pH_ranges = dose_soluble_pH_ranges(library, job.compound, rep.dose_mol_per_L, options);
+      rep.dose_soluble_pH_ranges = dose_soluble_pH_ranges(library, jobs[i].compound, rep.dose_mol_per_L, options);
       std::string where;
       for (const auto& [lo, hi] : rep.dose_soluble_pH_ranges) {
         if (!where.empty()) where += " or ";

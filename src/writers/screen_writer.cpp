@@ -179,7 +179,7 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
   if (rep.min_capacity_mol_per_L_per_pH > 0) j["min_capacity_mol_per_L_per_pH"] = rep.min_capacity_mol_per_L_per_pH;
   if (rep.max_drift_pH) j["max_drift_pH"] = *rep.max_drift_pH;
   j["solubility_at_target_pH_mol_per_L"] = number(rep.solubility_at_target_mol_per_L);
-  if (!rep.dose_soluble_pH_ranges.empty() || rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {
+  if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {  // the ranges are computed then
     nlohmann::ordered_json ranges = nlohmann::ordered_json::array();
     for (const auto& [lo, hi] : rep.dose_soluble_pH_ranges) ranges.push_back({lo, hi});
     j["dose_soluble_pH_ranges"] = ranges;

@@ -16,6 +16,7 @@
 
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/io/xml_input.h"
+#include "test_compounds.h"
 
 namespace pkarta {
 namespace {
@@ -30,17 +31,8 @@ constexpr double kBalanceTolerance = 1e-10;  // every returned state (docs/model
 
 // Invented weak base for these checks: pKa 8.0, log10 S0 -5.5 mol/L, molar mass 300, no salts.
 Compound invented_base() {
-  Compound c;
-  c.id = "test-base";
+  Compound c = pkarta_test::one_pka_compound("test-base", 8.0, GroupType::kBase, std::pow(10.0, -5.5), 300.0);
   c.name = "test base";
-  c.molar_mass_g_per_mol = 300.0;
-  c.system.id = c.id;
-  Pka p;
-  p.value = 8.0;
-  p.type = GroupType::kBase;
-  c.system.pkas.push_back(p);
-  c.has_intrinsic_solubility = true;
-  c.s0_mol_per_L = std::pow(10.0, -5.5);
   return c;
 }
 

@@ -8,6 +8,7 @@
 #include "pkarta/analyses/screen.h"
 #include "pkarta/chem/water.h"
 #include "pkarta/io/xml_input.h"
+#include "test_compounds.h"
 
 namespace pkarta {
 namespace {
@@ -15,18 +16,7 @@ namespace {
 // An invented monoprotic acid, pKa 4.20 (thermodynamic, no temperature dependence), soluble
 // enough that no solid forms in these checks.
 Compound invented_acid(double s0_mol_per_L = 1.0) {
-  Compound c;
-  c.id = "acid-4.2";
-  c.name = "invented acid";
-  c.molar_mass_g_per_mol = 250.0;
-  c.system.id = c.id;
-  Pka p;
-  p.value = 4.20;
-  p.type = GroupType::kAcid;
-  c.system.pkas.push_back(p);
-  c.has_intrinsic_solubility = true;
-  c.s0_mol_per_L = s0_mol_per_L;
-  return c;
+  return pkarta_test::one_pka_compound("acid-4.2", 4.20, GroupType::kAcid, s0_mol_per_L, 250.0);
 }
 
 ScreenJob acid_job(double dose_mol_per_L) {

@@ -64,6 +64,19 @@ double fraction(const AcidBaseSystem& s, double pH, int j) {
   return (j == 0 ? 1.0 : bj) / sum;
 }
 
+// The drug alone (dose in mol/L, of the form named) with activity coefficients 1; ions are
+// added by each check.
+Mixture ideal_with_drug(const Compound& c, double dose_mol_per_L, const std::string& form) {
+  Mixture m;
+  m.activity = ActivityModel::kIdeal;
+  DrugAmount d;
+  d.compound = c;
+  d.dose_mol_per_L = dose_mol_per_L;
+  d.form = form;
+  m.drug = d;
+  return m;
+}
+
 // Dihydrochloride B.2HCl, Ksp = [BH2++][Cl-]^2 (activity coefficients 1). Held at a fixed pH
 // (the partition at that pH), an excess dose D of the salt dissolves to S mol/L of drug, of
 // which the fraction f = alpha_0 is BH2++. Chloride comes only from the salt: the mass
@@ -74,13 +87,7 @@ TEST(Stoichiometry, DihydrochlorideSolubilityAtFixedPhIsTheCubeRoot) {
   Compound c = dibasic_base();
   c.salts.push_back(salt("dihydrochloride", "Cl-", 1, 2, 1e-6));
   for (double pH : {2.0, 3.0, 4.0, 5.0}) {
-    Mixture m;
-    m.activity = ActivityModel::kIdeal;
-    DrugAmount d;
-    d.compound = c;
-    d.dose_mol_per_L = 0.2;
-    d.form = "dihydrochloride";
-    m.drug = d;
+    Mixture m = ideal_with_drug(c, 0.2, "dihydrochloride");
     m.add_ion("Cl-", -1, 0.4);
     EquilibriumModel model(m);
     const EquilibriumModel::Evaluation ev = model.evaluate(pH);
@@ -100,13 +107,7 @@ TEST(Stoichiometry, TwoToOneSulfateSolubilityAtFixedPh) {
   Compound c = monobasic_base(8.0, 1e-2);
   c.salts.push_back(salt("sulfate", "SO4--", 2, 1, 1e-9));
   for (double pH : {3.0, 5.0, 6.5}) {
-    Mixture m;
-    m.activity = ActivityModel::kIdeal;
-    DrugAmount d;
-    d.compound = c;
-    d.dose_mol_per_L = 0.1;
-    d.form = "sulfate";
-    m.drug = d;
+    Mixture m = ideal_with_drug(c, 0.1, "sulfate");
     m.add_ion("SO4--", -2, 0.05);
     EquilibriumModel model(m);
     const EquilibriumModel::Evaluation ev = model.evaluate(pH);
@@ -143,13 +144,7 @@ TEST(Stoichiometry, DihydrochlorideOffStoichiometryAtFixedPhSolvesTheCubic) {
   const double ksp = 1e-6, dose = 0.05;
   c.salts.push_back(salt("dihydrochloride", "Cl-", 1, 2, ksp));
   for (double chloride : {0.15, 0.3, 0.06, 0.02}) {
-    Mixture m;
-    m.activity = ActivityModel::kIdeal;
-    DrugAmount d;
-    d.compound = c;
-    d.dose_mol_per_L = dose;
-    d.form = "free";
-    m.drug = d;
+    Mixture m = ideal_with_drug(c, dose, "free");
     m.add_ion("Cl-", -1, chloride);
     const EquilibriumModel sequence(m);
     for (double pH : {2.0, 2.5, 3.0, 4.0, 5.0, 5.5}) {
@@ -182,13 +177,7 @@ TEST(Stoichiometry, TwoToOneSulfateWithExcessSulfateAtFixedPh) {
   c.has_intrinsic_solubility = false;
   const double ksp = 1e-9, dose = 0.1, sulfate = 0.2;
   c.salts.push_back(salt("sulfate", "SO4--", 2, 1, ksp));
-  Mixture m;
-  m.activity = ActivityModel::kIdeal;
-  DrugAmount d;
-  d.compound = c;
-  d.dose_mol_per_L = dose;
-  d.form = "free";
-  m.drug = d;
+  Mixture m = ideal_with_drug(c, dose, "free");
   m.add_ion("SO4--", -2, sulfate);
   const EquilibriumModel model(m);
   for (double pH : {3.0, 5.0, 6.5, 7.5}) {

@@ -562,6 +562,14 @@ TEST(Schema, CheckAgreesWithTheXsdOnNamesValuesAndCounts) {
   }
 }
 
+// A refused command: exit 2, exactly `expected` on standard error, nothing on standard output.
+void expect_refused(const std::string& command, const std::string& expected) {
+  const RunResult r = run(command);
+  EXPECT_EQ(r.code, 2) << command;
+  EXPECT_EQ(r.err, expected) << command;
+  EXPECT_TRUE(r.out.empty()) << command << ": " << r.out;
+}
+
 // Names the schema does not have are errors like any other: every one in line order, each with
 // its place and the names allowed there, exit 2, nothing on stdout; `mix` refuses the file alike.
 TEST(Schema, UnknownNamesAreAllReportedInLineOrder) {
@@ -579,14 +587,8 @@ TEST(Schema, UnknownNamesAreAllReportedInLineOrder) {
       "intrinsic-solubility, salt, measured-solubility\n" +
       "pkarta: " + f + ":5:2: <measured-solubility> has no <point>\n" +
       "pkarta: " + f + ":5:23: unknown element <pointt> in <measured-solubility>; allowed here: point\n";
-  const RunResult r = run("check " + f);
-  EXPECT_EQ(r.code, 2);
-  EXPECT_EQ(r.err, expected);
-  EXPECT_TRUE(r.out.empty()) << r.out;
-  const RunResult mix = run("mix --compound " + f + " --dose 1mg/mL");
-  EXPECT_EQ(mix.code, 2);
-  EXPECT_EQ(mix.err, expected);
-  EXPECT_TRUE(mix.out.empty()) << mix.out;
+  expect_refused("check " + f, expected);
+  expect_refused("mix --compound " + f + " --dose 1mg/mL", expected);
 }
 
 // `check` names every error of a file in line order, and prints nothing on standard output;
@@ -602,19 +604,13 @@ TEST(Cli, CheckReportsEveryErrorOfAFileInLineOrder) {
   const std::string expected = "pkarta: " + f + ":2:2: attribute 'sd' of <pka> is 9, expected 0 to 5\n" +
                                "pkarta: " + f + ":4:2: salt id 'free' is reserved\n" +
                                "pkarta: " + f + ":5:2: ksp must be > 0, got 0\n";
-  const RunResult r = run("check " + f);
-  EXPECT_EQ(r.code, 2);
-  EXPECT_EQ(r.err, expected);
-  EXPECT_TRUE(r.out.empty()) << r.out;
+  expect_refused("check " + f, expected);
   // Two files: the errors of each, in the order of the files.
   const RunResult two = run("check " + f + " compounds/demo-base.xml " + f);
   EXPECT_EQ(two.code, 2);
   EXPECT_EQ(two.err, expected + expected);
   EXPECT_TRUE(two.out.empty()) << two.out;
-  const RunResult mix = run("mix --compound " + f + " --dose 1mg/mL");
-  EXPECT_EQ(mix.code, 2);
-  EXPECT_EQ(mix.err, expected);
-  EXPECT_TRUE(mix.out.empty()) << mix.out;
+  expect_refused("mix --compound " + f + " --dose 1mg/mL", expected);
 }
 
 // A label claim "equivalent to 2 mg/mL of the base" (common practice for salts): with
