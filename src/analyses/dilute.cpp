@@ -1,6 +1,7 @@
 #include "pkarta/analyses/dilute.h"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <limits>
 
@@ -141,6 +142,29 @@ AcidBaseSystem blood_buffer_system(double ionic_strength_mol_per_L, double tempe
 
 double blood_buffer_total(double beta_mol_per_L_per_pH) { return beta_mol_per_L_per_pH * 1.5 / std::log(10.0); }
 
+double explicit_medium_buffer_value(const Mixture& medium, double ionic_strength_mol_per_L) {
+  double beta = 0.0;
+  for (const SystemAmount& s : medium.systems) {
+    if (s.system.id == "carbonate" || !(s.total_mol_per_L > 0)) continue;
+    Mixture one;
+    one.temperature_C = medium.temperature_C;
+    one.activity = medium.activity;
+    one.systems.push_back(s);
+    EquilibriumModel model(one);
+    model.set_ionic_strength(ionic_strength_mol_per_L);
+    std::array<double, kMaxPka + 1> alpha{};
+    model.fractions(0, kBloodBufferPk, alpha.data());
+    double zbar = 0.0, z2bar = 0.0;
+    for (int j = 0; j <= static_cast<int>(s.system.pkas.size()); ++j) {
+      const double z = s.system.charge_of(j);
+      zbar += z * alpha[j];
+      z2bar += z * z * alpha[j];
+    }
+    beta += std::log(10.0) * s.total_mol_per_L * (z2bar - zbar * zbar);
+  }
+  return beta;
+}
+
 bool DilutionOptions::is_valid(std::string* error) const {
   if (medium_id.empty()) {
     if (error) *error = "DilutionOptions::medium_id is empty";
@@ -182,6 +206,14 @@ Mixture diluted_mixture(const Mixture& formulation, const Library& library, cons
   if (m.drug) m.drug->dose_mol_per_L *= f;
   if (ratio > 1.0) add_medium(m, library, medium_id, 1.0 - f);
   return m;
+}
+
+std::string dilution_medium_label(const DilutionResult& r, bool brief) {
+  if (r.blood.empty()) return r.medium_name;
+  const std::string what = r.blood == "whole" ? "whole blood" : "plasma";
+  const std::string co2 = r.blood_model == "open" ? "open CO2" : "closed CO2";
+  if (brief) return what + ", " + co2;
+  return what + " (" + r.blood_description + "; electrolytes of " + r.medium_id + ")";
 }
 
 DilutionResult analyse_dilution(const Mixture& formulation, const Library& library,
@@ -230,8 +262,19 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
     }
     r.non_bicarbonate_buffer_mM_per_pH = options.non_bicarbonate_buffer_mM_per_pH();
     r.blood = options.blood == BloodKind::kWhole ? "whole" : "plasma";
+    // The measured value holds every non-bicarbonate buffer of plasma, its phosphate among
+    // them; the medium's own systems (phosphate) are solved explicitly, so the lumped buffer
+    // carries only the rest.
+    std::string explicit_names;
+    for (const SystemAmount& s : med.systems) {
+      if (s.system.id == "carbonate" || !(s.total_mol_per_L > 0)) continue;
+      explicit_names += (explicit_names.empty() ? "" : ", ") + s.system.id;
+    }
+    if (explicit_names.empty()) explicit_names = "systems";
+    r.medium_explicit_buffer_mM_per_pH = 1e3 * explicit_medium_buffer_value(med, me.ionic_strength_mol_per_L);
+    r.lumped_buffer_mM_per_pH = std::max(0.0, r.non_bicarbonate_buffer_mM_per_pH - r.medium_explicit_buffer_mM_per_pH);
     blood_buffer = blood_buffer_system(me.ionic_strength_mol_per_L, form.temperature_C);
-    blood_buffer_mol = blood_buffer_total(r.non_bicarbonate_buffer_mM_per_pH * 1e-3);
+    blood_buffer_mol = blood_buffer_total(r.lumped_buffer_mM_per_pH * 1e-3);
     const std::string kind = options.blood == BloodKind::kWhole
                                  ? "whole-blood non-bicarbonate buffer (plasma 7.7 + haemoglobin " +
                                        sig(options.haemoglobin_buffer_per_mmol, 3) + " x " +
@@ -239,7 +282,8 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
                                  : "plasma non-bicarbonate buffer ";
     r.blood_description = (open ? "open CO2 at pCO2 " + sig(options.pco2_mmHg, 3) + " mmHg"
                                 : std::string("closed CO2 (carbonate total kept)")) +
-                          " with " + kind + sig(r.non_bicarbonate_buffer_mM_per_pH, 3) + " mmol/L/pH";
+                          " with " + kind + sig(r.non_bicarbonate_buffer_mM_per_pH, 3) + " mmol/L/pH, " +
+                          sig(r.medium_explicit_buffer_mM_per_pH, 2) + " of it the medium's own " + explicit_names;
   }
 
   for (double ratio : options.ratios) {
@@ -331,8 +375,10 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
         " mmol/L per pH of undiluted " + medium.id + " (Van Slyke equation, Siggaard-Andersen 1977, Scand. J. Clin. Lab. "
         "Invest. 37 Suppl 146: plasma proteins and phosphate 7.7, whole blood 1.43 cHb + 7.7 with cHb in mmol/L; "
         "recalled, to be verified), diluted with the medium; modelled as a lumped ampholyte with both pK' 7.4 "
-        "(net charge zero at pH 7.4), " + sig(blood_buffer_mol * 1e3, 4) + " mmol/L, left out of the osmolarity; the "
-        "medium's own phosphate is counted again in it (about 0.4 mmol/L per pH at 1 mmol/L)");
+        "(net charge zero at pH 7.4), " + sig(blood_buffer_mol * 1e3, 4) + " mmol/L, left out of the osmolarity; it "
+        "carries " + sig(r.lumped_buffer_mM_per_pH, 3) + " mmol/L per pH, the rest (" +
+        sig(r.medium_explicit_buffer_mM_per_pH, 2) + " mmol/L per pH at pH 7.4) being the medium's own " +
+        "non-carbonate systems, solved explicitly");
   }
   for (const IonAmount& i : med.ions) {
     if (i.charge == 0 && i.conc_mol_per_L > 0) {

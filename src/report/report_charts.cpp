@@ -223,7 +223,7 @@ svg::Chart drift_chart(const ReportData& d) {
 svg::Chart dilution_chart(const DilutionResult& dl) {
   svg::Chart ch;
   ch.id = "chart-dilution";
-  ch.title = "Supersaturation on dilution into " + dl.medium_name;
+  ch.title = "Supersaturation on dilution into " + dilution_medium_label(dl, true);
   double lo = 1.0, hi = 1.0, rmax = 1.0;
   svg::Series ss{"supersaturation ratio", {}, {}, svg::SeriesKind::kLineAndMarkers, 0, 2.5};
   for (const DilutionPoint& p : dl.points) {
@@ -243,7 +243,7 @@ svg::Chart dilution_chart(const DilutionResult& dl) {
   ch.plot_height = 240;
   ch.bands.push_back(svg::Band{svg::Band::Orientation::kHorizontal, 1.0, ch.y.max, "precipitation possible", 2, 0.25});
   ch.lines.push_back(svg::RefLine{svg::RefLine::Orientation::kHorizontal, 1.0, "saturation (ratio 1)", 7, true, false});
-  ch.description = "Supersaturation ratio of the drug against the dilution ratio into " + dl.medium_name +
+  ch.description = "Supersaturation ratio of the drug against the dilution ratio into " + dilution_medium_label(dl, true) +
                    "; above 1 the drug may precipitate.";
   return ch;
 }

@@ -189,7 +189,7 @@ void write_summary(const Page& pg) {
       if (p.risk && first.empty()) first = ratio_text(p.ratio);
       worst = std::max(worst, p.supersaturation_ratio);
     }
-    key(out, first.empty() ? "" : "lead", "Dilution into " + dl.medium_name, first.empty() ? "no precipitation risk" : first == "1:1" ? "risk undiluted" : "risk from " + first,
+    key(out, first.empty() ? "" : "lead", "Dilution into " + dilution_medium_label(dl, true), first.empty() ? "no precipitation risk" : first == "1:1" ? "risk undiluted" : "risk from " + first,
         "Highest supersaturation ratio " + sig(worst, 3) + " (above 1: may precipitate)", "Dilution (" + pg.number("dilution") + ").");
   }
   if (d.classification) {
@@ -455,7 +455,7 @@ void write_dilution(const Page& pg) {
   out << "<p class=\"lead-statement\"><strong>"
       << (risky.empty() ? "No precipitation risk" : "Precipitation risk at " + esc(risky.front()) +
                                                         (risky.size() > 1 ? " to " + esc(risky.back()) : std::string()))
-      << "</strong> when the formulation (recipe above with the dose) is diluted into " << esc(dl.medium_name)
+      << "</strong> when the formulation (recipe above with the dose) is diluted into " << esc(dilution_medium_label(dl))
       << ": the supersaturation ratio is the drug concentration over the solubility of the least soluble solid, "
          "with the whole dose dissolved.</p>\n";
   out << "<figure>\n";

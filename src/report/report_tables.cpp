@@ -193,7 +193,7 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
   }
   if (d.dilution) {
     const DilutionResult& dl = *d.dilution;
-    ReportTable t{"dilution.csv", "The formulation diluted into " + dl.medium_name + " at " + fixed(dl.temperature_C, 1) + " °C",
+    ReportTable t{"dilution.csv", "The formulation diluted into " + dilution_medium_label(dl, true) + " at " + fixed(dl.temperature_C, 1) + " °C",
                   {"dilution (total/formulation)", "pH", "drug (mg/mL free form)", "solubility (mg/mL free form)", "limiting solid",
                    "supersaturation ratio", "precipitation risk", "pH at equilibrium", "dissolved at equilibrium (mg/mL free form)"}, {}};
     for (const DilutionPoint& p : dl.points) {

@@ -87,6 +87,8 @@ void write_dilute_json(const DilutionResult& result, std::ostream& out) {
     j["blood"] = {{"kind", r.blood},
                   {"co2", r.blood_model},
                   {"non_bicarbonate_buffer_mmol_per_L_per_pH", r.non_bicarbonate_buffer_mM_per_pH},
+                  {"medium_systems_buffer_mmol_per_L_per_pH", r.medium_explicit_buffer_mM_per_pH},
+                  {"lumped_buffer_mmol_per_L_per_pH", r.lumped_buffer_mM_per_pH},
                   {"description", r.blood_description}};
   }
   J pts = J::array();

@@ -51,6 +51,23 @@ double mean_charge(const AcidBaseSystem& s, double pH, double I, double T) {
   return z;
 }
 
+// Buffer value (mol/L per pH) of 1.0 mM phosphate at pH 7.4, 37 °C, ionic strength I: ln(10) C
+// times the variance of the species charge (Van Slyke 1922, J. Biol. Chem. 52, 525), from the
+// mean charge and its finite-difference slope: var z = -dz/dpH / ln 10.
+double phosphate_beta_at_74(const Library& lib, double I) {
+  const AcidBaseSystem& p = lib.system("phosphate");
+  const double dz = mean_charge(p, 7.4005, I, 37.0) - mean_charge(p, 7.3995, I, 37.0);
+  return -1.0e-3 * dz / 0.001;
+}
+
+// The medium's ionic strength (about 0.13 mol/L, the library's note on plasma-7.4); the phosphate
+// part of beta barely moves with it (0.003 mmol/L per pH between I 0.12 and 0.14).
+constexpr double kPlasmaMediumI = 0.13;
+
+// The plasma value 7.7 mmol/L per pH holds phosphate; the medium's 1.0 mM phosphate is in the
+// hand calculation explicitly, so the linear term carries 7.7 less its buffer value at pH 7.4.
+double protein_beta(const Library& lib, double beta_total) { return beta_total - phosphate_beta_at_74(lib, kPlasmaMediumI); }
+
 double formulation_naoh_for_ph4(const Library& lib) {
   double lo = 0.0, hi = 0.15;
   for (int i = 0; i < 80; ++i) {
@@ -119,7 +136,7 @@ TEST(DiluteBlood, CitratePh4IntoPlasmaMatchesTheOpenSystemHandCalculation) {
   EXPECT_EQ(r.blood_model, "open");
   EXPECT_DOUBLE_EQ(r.temperature_C, 37.0);
 
-  const double pH = hand_ph(lib, 0.9 * (103 + 24 + 1.6) * 1e-3 + 0.1 * naoh, 0.0, 0.005, 0.9 * 7.7e-3);
+  const double pH = hand_ph(lib, 0.9 * (103 + 24 + 1.6) * 1e-3 + 0.1 * naoh, 0.0, 0.005, 0.9 * protein_beta(lib, 7.7e-3));
   std::printf("  1:10 citrate pH 4 into plasma, open, 37 C: pkarta %.4f  hand %.4f  \n", r.points[0].pH, pH);
   EXPECT_NEAR(r.points[0].pH, pH, 0.05);
   EXPECT_GT(pH, 6.9);
@@ -191,8 +208,8 @@ TEST(DiluteBlood, CitricAcidHclIntoPlasmaAndWholeBlood) {
   EXPECT_NE(plasma.blood_description.find("plasma non-bicarbonate buffer 7.7"), std::string::npos);
 
   const double na = 0.9 * (103 + 24 + 1.6) * 1e-3;
-  const double hand_plasma = hand_ph(lib, na, 0.001, 0.005, 0.9 * 7.7e-3);
-  const double hand_whole = hand_ph(lib, na, 0.001, 0.005, 0.9 * (1.43 * 9.3 + 7.7) * 1e-3);
+  const double hand_plasma = hand_ph(lib, na, 0.001, 0.005, 0.9 * protein_beta(lib, 7.7e-3));
+  const double hand_whole = hand_ph(lib, na, 0.001, 0.005, 0.9 * protein_beta(lib, (1.43 * 9.3 + 7.7) * 1e-3));
   const double hand_none = hand_ph(lib, na, 0.001, 0.005, 0.0);
   std::printf("  1:10 citric acid 50 mM + HCl 10 mM into plasma, 37 C: plasma pkarta %.4f hand %.4f; "
               "whole blood pkarta %.4f hand %.4f; no protein buffer (hand) %.4f\n",
@@ -207,6 +224,27 @@ TEST(DiluteBlood, CitricAcidHclIntoPlasmaAndWholeBlood) {
   // The whole-blood option needs a plasma or blood medium.
   o.medium_id = "saline-0.9";
   EXPECT_THROW(analyse_dilution(form, lib, o), InputError);
+}
+
+// Plasma's 7.7 mmol/L per pH includes its inorganic phosphate (Siggaard-Andersen 1977, as above);
+// the medium's 1.0 mM phosphate is solved explicitly, so the lumped buffer carries the rest and
+// the total at pH 7.4 stays 7.7. Hand value: about 0.3 mmol/L per pH (1 mM, pK2' near 6.8 at
+// 37 °C and I 0.13, so HPO4 2- about 0.8: ln 10 x 0.8 x 0.2 = 0.37 before the conditional shift).
+TEST(DiluteBlood, MediumPhosphateIsNotCountedTwice) {
+  const Library lib = builtin_library();
+  Mixture form;
+  add_reagent(form, lib, "NaCl", 0.154);
+  DilutionOptions o;
+  o.medium_id = "plasma-7.4";
+  o.ratios = {10};
+  const DilutionResult r = analyse_dilution(form, lib, o);
+  ASSERT_TRUE(r.usable()) << r.message;
+  const double hand = 1e3 * phosphate_beta_at_74(lib, kPlasmaMediumI);
+  EXPECT_NEAR(r.medium_explicit_buffer_mM_per_pH, hand, 0.01);
+  EXPECT_GT(hand, 0.2);
+  EXPECT_LT(hand, 0.45);
+  EXPECT_NEAR(r.lumped_buffer_mM_per_pH + r.medium_explicit_buffer_mM_per_pH, 7.7, 1e-12);
+  EXPECT_NE(r.blood_description.find("of it the medium's own phosphate"), std::string::npos) << r.blood_description;
 }
 
 // The lumped buffer's own value at pH 7.4 and I 0.15: beta = ln(10) C x variance of the proton

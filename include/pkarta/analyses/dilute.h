@@ -100,6 +100,10 @@ struct DilutionResult {
   std::string blood;                      ///< "plasma", "whole" or "" (no physiological medium)
   /// Non-bicarbonate buffer value of the undiluted medium (0 without a physiological medium).
   double non_bicarbonate_buffer_mM_per_pH = 0.0;
+  /// Of it, the buffer value at pH 7.4 of the medium's own non-carbonate systems (phosphate),
+  /// which the solver carries explicitly, and the rest, carried by the lumped buffer.
+  double medium_explicit_buffer_mM_per_pH = 0.0;
+  double lumped_buffer_mM_per_pH = 0.0;
   /// One line naming the model, e.g. "open CO2 at pCO2 40 mmHg with plasma non-bicarbonate
   /// buffer 7.7 mmol/L/pH"; empty without a physiological medium.
   std::string blood_description;
@@ -132,6 +136,16 @@ AcidBaseSystem blood_buffer_system(double ionic_strength_mol_per_L, double tempe
 
 /// Total (mol/L) of blood_buffer_system() giving the buffer value `beta_mol_per_L_per_pH` at pH 7.4.
 double blood_buffer_total(double beta_mol_per_L_per_pH);
+
+/// Buffer value (mol/L per pH) at pH 7.4 of a medium's acid-base systems other than carbonate
+/// (phosphate in plasma), at the medium's ionic strength under its activity model:
+/// ln(10) C (mean z^2 - (mean z)^2) per system, van Slyke 1922 with conditional constants.
+double explicit_medium_buffer_value(const Mixture& medium, double ionic_strength_mol_per_L);
+
+/// What the formulation was diluted into, in words: the medium's name, or for a plasma or blood
+/// medium the model used, e.g. "plasma (open CO2 at pCO2 40.0 mmHg with plasma non-bicarbonate
+/// buffer 7.70 mmol/L/pH, ...; electrolytes of plasma-7.4)"; `brief`: "plasma, open CO2" only.
+std::string dilution_medium_label(const DilutionResult& result, bool brief = false);
 
 /// Analyses every ratio of `options`. Throws InputError for invalid options or medium.
 DilutionResult analyse_dilution(const Mixture& formulation, const Library& library,
