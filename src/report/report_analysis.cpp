@@ -129,15 +129,33 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
       }
     }
   }
-  if (lead && lead->recommended_conc_mol_per_L) {
+  // The formulation diluted into the route's medium (or the one asked).
+  auto dilute_formulation = [&](const Mixture& formulation, std::vector<std::string> inputs) {
+    std::string medium = request.dilution_medium;
+    if (medium.empty()) {
+      medium = request.route == "parenteral" ? "plasma-7.4" : request.route == "oral" ? "sif-6.8" : "saline-0.9";
+      if (!library.media.count(medium)) medium = "none";
+    }
+    if (medium == "none") return;
+    DilutionOptions dl;
+    dl.medium_id = medium;
+    DilutionResult r = analyse_dilution(formulation, library, dl, std::move(inputs));
+    if (r.usable()) d.dilution = std::move(r);
+    else d.warnings.push_back("dilution: " + r.message);
+  };
+  auto recipe_options = [&](const ScreenResult& r) {
     RecipeOptions ro;
-    ro.buffer = lead->buffer;
+    ro.buffer = r.buffer;
     ro.pH = *request.target_pH;
-    ro.conc_mol_per_L = *lead->recommended_conc_mol_per_L;  // the screen's one recommended strength
+    ro.conc_mol_per_L = *r.recommended_conc_mol_per_L;  // the screen's one recommended strength
     ro.volume_L = request.recipe_volume_L;
     ro.temperature_C = request.temperature_C;
     ro.isotonic = request.route == "parenteral" || request.route == "ophthalmic";
     ro.activity = request.activity;
+    return ro;
+  };
+  if (lead && lead->recommended_conc_mol_per_L) {
+    RecipeOptions ro = recipe_options(*lead);
     // Sodium chloride would bring the counterion of a Cl- or Na+ salt (common-ion effect):
     // make such a recipe isotonic with dextrose when the library has it.
     if (ro.isotonic && library.reagents.count("dextrose")) {
@@ -154,21 +172,24 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
       }
     }
     d.recipe = make_recipe(library, ro);
-    std::string medium = request.dilution_medium;
-    if (medium.empty()) {
-      medium = request.route == "parenteral" ? "plasma-7.4" : request.route == "oral" ? "sif-6.8" : "saline-0.9";
-      if (!library.media.count(medium)) medium = "none";
-    }
-    if (medium != "none") {
-      Mixture formulation = recipe_mixture(library, *d.recipe, request.activity);
-      add_drug(formulation, library, compound, request.dose_mol_per_L, request.form);
-      DilutionOptions dl;
-      dl.medium_id = medium;
-      DilutionResult r = analyse_dilution(formulation, library, dl,
-                                          {d.recipe->buffer_name + " " + sig(d.recipe->conc_mol_per_L * 1e3, 3) + " mM",
-                                           compound.id + " " + request.dose_text});
-      if (r.usable()) d.dilution = std::move(r);
-      else d.warnings.push_back("dilution: " + r.message);
+    Mixture formulation = recipe_mixture(library, *d.recipe, request.activity);
+    add_drug(formulation, library, compound, request.dose_mol_per_L, request.form);
+    dilute_formulation(formulation, {d.recipe->buffer_name + " " + sig(d.recipe->conc_mol_per_L * 1e3, 3) + " mM",
+                                     compound.id + " " + request.dose_text});
+  } else if (d.screen && d.screen->fallback && !d.screen->fallback->adjusted.empty() &&
+             d.screen->fallback->adjusted.front().recommended_conc_mol_per_L) {
+    // No buffer holds the target made first; the first that does with the pH adjusted after the
+    // dose gets the recipe of the whole formulation (make_formulation chooses the tonicity reagent).
+    const ScreenResult& alt = d.screen->fallback->adjusted.front();
+    try {
+      d.adjusted_formulation = make_formulation(library, recipe_options(alt), compound, request.dose_mol_per_L,
+                                                request.form, ScreenPreparation::kAdjusted);
+      const Formulation& f = *d.adjusted_formulation;
+      dilute_formulation(formulation_mixture(library, f, compound, request.activity),
+                         {f.recipe.buffer_name + " " + sig(f.recipe.conc_mol_per_L * 1e3, 3) + " mM, pH adjusted after the dose",
+                          compound.id + " " + request.dose_text});
+    } catch (const std::exception& e) {
+      d.warnings.push_back(std::string("recipe of the adjusted formulation: ") + e.what());
     }
   }
 

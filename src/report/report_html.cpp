@@ -88,6 +88,7 @@ std::vector<Section> page_sections(const ReportData& d) {
   if (d.classification) sections.push_back({"classification", "Solubility classification (ICH M9)"});
   if (d.screen) sections.push_back({"screen", "Buffer screen"});
   if (d.recipe) sections.push_back({"recipe", "Recipe of the leading buffer"});
+  if (d.adjusted_formulation) sections.push_back({"recipe", "Recipe of the formulation, pH adjusted after the dose"});
   if (d.dilution) sections.push_back({"dilution", "Dilution"});
   if (d.uncertainty) sections.push_back({"uncertainty", "Uncertainty"});
   if (d.fit) sections.push_back({"fit", "Fit to the measured solubilities"});
@@ -410,10 +411,50 @@ void write_screen(const Page& pg) {
   out << "</section>\n";
 }
 
+// Recipe of the formulation made with the pH adjusted after the dose (no buffer holds the
+// target made first).
+void write_adjusted_formulation(const Page& pg) {
+  const ReportData& d = pg.d;
+  std::ostream& out = pg.out;
+  const Formulation& f = *d.adjusted_formulation;
+  const Recipe& r = f.recipe;
+  out << "<section id=\"recipe\">\n";
+  pg.heading("recipe");
+  out << "<p class=\"lead-statement\"><strong>" << esc(r.buffer_name) << " " << esc(sig(r.conc_mol_per_L * 1e3, 3))
+      << " mM with the dose, pH adjusted to " << fixed(r.target_pH, 2) << " after the drug is in</strong>"
+      << (r.titrant ? " (" + sig(r.titrant->volume_mL, 4) + " mL of " + sig(r.titrant->conc_mol_per_L, 3) + " mol/L " +
+                          r.titrant->id + " for " + sig(r.volume_L * 1e3, 4) + " mL)"
+                    : std::string())
+      << ": no buffer of the screen made first at the target holds it once the dose is in, so the buffer reagent, "
+         "the drug and the tonicity reagent are dissolved together and the titrant brings the pH to the target. "
+         "Predicted pH "
+      << fixed(f.pH_low, 2) << " at " << fixed(f.low_temperature_C, 0) << " °C and " << fixed(f.pH_high, 2) << " at "
+      << fixed(f.high_temperature_C, 0) << " °C with the same totals.</p>\n";
+  if (!f.steps.empty()) {
+    out << "<ol class=\"steps\">";
+    for (const std::string& step : f.steps) out << "<li>" << esc(step) << "</li>";
+    out << "</ol>\n";
+  }
+  for (const char* name : {"formulation.csv", "formulation-solution.csv"}) {
+    if (const ReportTable* t = find_table(pg.tables, name)) write_table_html(*t, out, pg.csv_folder);
+  }
+  out << "<ul class=\"notes\">";
+  if (!f.tonicity_note.empty()) out << "<li>" << esc(f.tonicity_note) << "</li>";
+  out << "<li>The titrant volume is a prediction: add most of it, then finish the adjustment with a calibrated pH "
+         "meter at the stated temperature.</li>";
+  for (const std::string& n : f.warnings) out << "<li class=\"warning\">" << esc(n) << "</li>";
+  for (const std::string& n : r.warnings) out << "<li class=\"warning\">" << esc(n) << "</li>";
+  out << "</ul>\n</section>\n";
+}
+
 // Recipe of the leading buffer.
 void write_recipe(const Page& pg) {
   const ReportData& d = pg.d;
   std::ostream& out = pg.out;
+  if (d.adjusted_formulation) {
+    write_adjusted_formulation(pg);
+    return;
+  }
   if (!d.recipe) return;
   const Recipe& r = *d.recipe;
   out << "<section id=\"recipe\">\n";

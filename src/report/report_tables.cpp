@@ -191,6 +191,39 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
     rs.rows.push_back({"osmolality estimate (to be measured)", fixed(r.osmolality_estimate_mOsm_per_kg, 1), "mOsm/kg"});
     tables.push_back(rs);
   }
+  if (d.adjusted_formulation) {
+    const Formulation& f = *d.adjusted_formulation;
+    const Recipe& r = f.recipe;
+    const std::string form_words = f.drug.form == "free" ? "free form" : f.drug.form;
+    ReportTable rt{"formulation.csv",
+                   "Formulation: " + r.buffer_name + " " + sig(r.conc_mol_per_L * 1e3, 3) + " mM with " + d.compound.id + " " +
+                       sig(f.drug.mass_g / r.volume_L, 4) + " mg/mL as " + form_words + ", pH adjusted to " +
+                       fixed(r.target_pH, 2) + " after the dose, " + sig(r.volume_L * 1e3, 4) + " mL at " +
+                       fixed(r.temperature_C, 1) + " °C",
+                   {"reagent", "role", "formula", "conc (mM)", "amount (mmol)", "mass (g)", "volume (mL)"}, {}};
+    for (const RecipeReagent& g : r.reagents) {
+      rt.rows.push_back({g.id, g.role, g.formula, sig(g.conc_mol_per_L * 1e3, 4), sig(g.amount_mol * 1e3, 4), fixed(g.mass_g, 4), ""});
+    }
+    rt.rows.push_back({d.compound.id, "drug, weighed as " + form_words, "", sig(f.drug.dose_mol_per_L * 1e3, 4),
+                       sig(f.drug.amount_mol * 1e3, 4), fixed(f.drug.mass_g, 4), ""});
+    if (r.titrant) {
+      rt.rows.push_back({r.titrant->id, "titrant " + sig(r.titrant->conc_mol_per_L, 3) + " mol/L, added after the drug", "", "",
+                         sig(r.titrant->amount_mol * 1e3, 4), "", fixed(r.titrant->volume_mL, 3)});
+    }
+    rt.rows.push_back({"water", "to volume", "H2O", "", "", "", sig(r.volume_L * 1e3, 4)});
+    tables.push_back(rt);
+    ReportTable rs{"formulation-solution.csv", "The formulation as made, with the drug in (computed)", {"quantity", "value", "unit"}, {}};
+    rs.rows.push_back({"pH at " + fixed(r.temperature_C, 0) + " °C", fixed(f.pH, 2), ""});
+    rs.rows.push_back({"pH at " + fixed(f.low_temperature_C, 0) + " °C (same totals)", fixed(f.pH_low, 2), ""});
+    rs.rows.push_back({"pH at " + fixed(f.high_temperature_C, 0) + " °C (same totals)", fixed(f.pH_high, 2), ""});
+    rs.rows.push_back({"ionic strength", sig(f.ionic_strength_mol_per_L, 4), "mol/L"});
+    rs.rows.push_back({"buffer capacity", sig(f.capacity_mol_per_L_per_pH * 1e3, 4), "mM per pH"});
+    rs.rows.push_back({"osmolarity, ideal", fixed(f.osmolarity_mOsm_per_L, 1), "mOsm/L"});
+    rs.rows.push_back({"osmolality estimate (to be measured)", fixed(f.osmolality_estimate_mOsm_per_kg, 1), "mOsm/kg"});
+    rs.rows.push_back({"dose / solubility in water at that pH", sig(f.solubility_margin, 3), ""});
+    rs.rows.push_back({"solid expected", f.solid, ""});
+    tables.push_back(rs);
+  }
   if (d.dilution) {
     const DilutionResult& dl = *d.dilution;
     ReportTable t{"dilution.csv", "The formulation diluted into " + dilution_medium_label(dl, true) + " at " + fixed(dl.temperature_C, 1) + " °C",

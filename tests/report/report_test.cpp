@@ -292,6 +292,55 @@ TEST(Report, RecipeDilutionUncertaintyAndFitSections) {
   EXPECT_EQ(html.select_nodes("//table[@data-csv='fit-residuals.csv']/tbody/tr").size(), fixture().compound.measured.size());
 }
 
+// A free acid whose dose itself moves the pH (demo-acid, 5 mg/mL at pH 7.4): no buffer made first
+// at the target holds it, one made with the pH adjusted after the dose does, and the report then
+// gives that formulation's recipe (the drug, the titrant after it) instead of a buffer recipe. The
+// recipe is checked against the equilibrium of its own contents (charge balance solved afresh) and
+// against the tonicity target (290 mOsm/kg, common practice).
+TEST(Report, AdjustedFormulationGetsItsRecipe) {
+  setenv("SOURCE_DATE_EPOCH", kExampleEpoch, 1);
+  const Library library = builtin_library();
+  const Compound compound = load_compound_file(source("compounds/demo-acid.xml"), library, nullptr);
+  ReportRequest req;
+  req.dose_text = "5mg/mL";
+  req.dose_mol_per_L = dose_conc_mol_per_L(library, compound, "free", parse_amount("5mg/mL"), 25.0);
+  req.target_pH = 7.4;
+  req.route = "parenteral";
+  req.uncertainty_samples = 0;
+  RunRecord run;
+  run.date_utc = report_date_utc();
+  const ReportData d = analyse_report(compound, library, req, run);
+  ASSERT_TRUE(d.screen && d.screen->fallback);
+  ASSERT_FALSE(d.screen->fallback->adjusted.empty());
+  EXPECT_FALSE(d.recipe);
+  ASSERT_TRUE(d.adjusted_formulation);
+  const Formulation& f = *d.adjusted_formulation;
+  const ScreenResult& alt = d.screen->fallback->adjusted.front();
+  EXPECT_EQ(f.recipe.buffer, alt.buffer);
+  EXPECT_DOUBLE_EQ(f.recipe.conc_mol_per_L, *alt.recommended_conc_mol_per_L);
+  EXPECT_EQ(f.preparation, ScreenPreparation::kAdjusted);
+  // 5 mg/mL of the free form in 1 L: 5 g weighed.
+  EXPECT_NEAR(f.drug.mass_g, 5.0 * f.recipe.volume_L, 1e-9);
+  const Equilibrium e = solve(formulation_mixture(library, f, compound, req.activity));
+  ASSERT_TRUE(e.usable());
+  EXPECT_NEAR(e.pH, 7.4, 0.005);
+  EXPECT_NEAR(f.osmolality_estimate_mOsm_per_kg, 290.0, 1.0);
+  // The dilution is of this formulation (parenteral: into plasma).
+  ASSERT_TRUE(d.dilution);
+  EXPECT_EQ(d.dilution->medium_id, "plasma-7.4");
+
+  std::ostringstream out;
+  write_report_html(d, "acid-7.4", out);
+  pugi::xml_document doc;
+  const pugi::xml_node html = parse_html(out.str(), doc);
+  const pugi::xml_node table = html.select_node("//section[@id='recipe']//table[@data-csv='formulation.csv']").node();
+  ASSERT_TRUE(table);
+  EXPECT_EQ(table.select_nodes("tbody/tr").size(), f.recipe.reagents.size() + 1 + (f.recipe.titrant ? 1 : 0) + 1);
+  EXPECT_EQ(html.select_nodes("//section[@id='recipe']//ol/li").size(), f.steps.size());
+  EXPECT_TRUE(html.select_node("//section[@id='recipe']//table[@data-csv='formulation-solution.csv']"));
+  EXPECT_NE(out.str().find("Recipe of the formulation, pH adjusted after the dose"), std::string::npos);
+}
+
 TEST(Report, RoundUp125) {
   EXPECT_DOUBLE_EQ(round_up_125(0.000656), 0.001);
   EXPECT_DOUBLE_EQ(round_up_125(0.00415), 0.005);

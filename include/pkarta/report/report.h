@@ -29,6 +29,7 @@
 #include "pkarta/chem/model.h"
 #include "pkarta/analyses/profile.h"
 #include "pkarta/analyses/recipe.h"
+#include "pkarta/analyses/recipe_formulation.h"
 #include "pkarta/analyses/screen.h"
 #include "pkarta/analyses/uncertainty.h"
 
@@ -121,6 +122,10 @@ struct ReportData {
   /// to the 1-2-5 series (isotonic with NaCl for parenteral and ophthalmic routes).
   std::optional<Recipe> recipe;
   std::string recipe_tonicity_note;       ///< why the tonicity reagent was chosen ("" = NaCl, default)
+  /// When no buffer holds the target made first (premade) but one does with the pH adjusted
+  /// after the dose: the bench recipe of that formulation (buffer reagent, tonicity reagent,
+  /// drug, titrant after the drug), at the strength the adjusted screen recommends.
+  std::optional<Formulation> adjusted_formulation;
   /// The formulation (recipe + dose) diluted into a medium.
   std::optional<DilutionResult> dilution;
   /// Monte Carlo band of the profile from the compound's pKa and S0 uncertainties.
