@@ -121,8 +121,9 @@ Formulation build(const Library& library, RecipeOptions o, const Compound& compo
       r.capacity_mol_per_L_per_pH = buffer_capacity(alone);
     }
     r.warnings.clear();
-    r.notes.push_back("adjusted preparation: the solution table is the reagents without the drug; the titrant "
-                      "is sized to bring the pH to the target with the drug in (below)");
+    r.notes.push_back("adjusted preparation: the recipe's own pH, ionic strength, osmolarity and capacity are of "
+                      "the reagents without the drug; the titrant is sized to bring the pH to the target with the "
+                      "drug in, and the formulation's values are those with the drug");
   }
   f.recipe = r;
   return f;
@@ -183,7 +184,8 @@ Formulation make_formulation(const Library& library, const RecipeOptions& option
     }
   } else if (o.isotonic) {
     note = o.tonicity_reagent + " is used" +
-           (salt ? std::string(": the ") + form + "'s counterion " + salt->counterion + " is not chloride." : std::string("."));
+           (salt ? std::string(": the ") + form + "'s counterion " + salt->counterion + " is not chloride."
+                 : std::string(": the free form brings no counterion."));
   }
   f.tonicity_note = note;
 

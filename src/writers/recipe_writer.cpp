@@ -77,7 +77,12 @@ std::string tonicity_id(const Recipe& r) {
 
 }  // namespace
 
-void write_recipe_text(const Recipe& r, std::ostream& out) {
+namespace {
+
+// The recipe's text; `buffer_alone` false (a formulation made with the pH adjusted after the
+// dose): the reagents and titrant only, without the buffer's own procedure and computed
+// solution, which the formulation's order of addition and values replace.
+void write_recipe_text_body(const Recipe& r, std::ostream& out, bool buffer_alone) {
   out << "Recipe: " << r.buffer_name << " buffer, pH " << fixed(r.target_pH, 2) << ", "
       << sig(1000.0 * r.conc_mol_per_L, 4) << " mM " << r.system << ", " << volume_text(r.volume_L) << " at "
       << fixed(r.temperature_C, 1) << " °C" << (r.isotonic ? ", made isotonic with " + tonicity_id(r) : std::string()) << "\n\n";
@@ -90,6 +95,16 @@ void write_recipe_text(const Recipe& r, std::ostream& out) {
   if (r.titrant) {
     out << "\n  titrant: " << sig(r.titrant->volume_mL, 4) << " mL of " << sig(r.titrant->conc_mol_per_L, 3)
         << " M " << r.titrant->id << " (" << sig(1000.0 * r.titrant->amount_mol, 5) << " mmol)\n";
+  }
+  if (!buffer_alone) {
+    out << "\n";
+    if (r.isotonic) write_wrapped(out, "  tonicity: " + r.tonicity_method, 4);
+    for (const std::string& w : r.warnings) write_wrapped(out, "  warning: " + w, 4);
+    out << "\n";
+    write_wrapped(out, model_note(r.activity));
+    out << "\n";
+    write_wrapped(out, caution_text());
+    return;
   }
   out << "\nProcedure\n";
   int step = 0;
@@ -120,6 +135,10 @@ void write_recipe_text(const Recipe& r, std::ostream& out) {
   out << "\n";
   write_wrapped(out, caution_text());
 }
+
+}  // namespace
+
+void write_recipe_text(const Recipe& r, std::ostream& out) { write_recipe_text_body(r, out, true); }
 
 void write_recipe_csv(const Recipe& r, std::ostream& out) {
   write_csv_row(out, {"item", "formula", "role", "molar mass (g/mol)", "conc (mol/L)", "amount (mol)", "mass (g)",
@@ -196,7 +215,7 @@ void write_recipe_json(const Recipe& r, std::ostream& out) {
 
 void write_formulation_text(const Formulation& f, std::ostream& out) {
   std::ostringstream rec;
-  write_recipe_text(f.recipe, rec);
+  write_recipe_text_body(f.recipe, rec, f.preparation != ScreenPreparation::kAdjusted);
   std::string text = rec.str();
   // The buffer recipe first (without its closing caution), then the formulation.
   const std::size_t caution = text.rfind("\nCaution:");
