@@ -197,5 +197,50 @@ TEST(LibrarySystems, HistidineImidazoliumFollowsBhattacharyaAndLecomte) {
   EXPECT_LT(k.at(37.0), k.at(25.0) - 0.15);  // an amine-like step: pK falls about 0.2 by 37 °C
 }
 
+// Amino acids without their own dH read: the class values of Bretti, Giuffrè, Lando and
+// Sammartano 2016, SpringerPlus 5, 928, abstract (protonation dH of the amino group -44.5 +/- 0.4
+// kJ/mol, of the carboxylate -2.5 +/- 1.6 kJ/mol, I = 0, 25 °C, mean of six alpha-amino acids),
+// with the sign of ionization. Checks: glycine's own values (Goldberg, Kishore and Lennen 2002,
+// recalled, to be verified) lie within the class ranges; each amino step of glutamate, arginine
+// and histidine moves with 44.5 kJ/mol (the pK falls by 0.56 from 5 to 25 °C, worked out with
+// van 't Hoff by hand); carboxyl steps barely move (Nagai, Kuwabara and Carta 2008, J. Chem. Eng.
+// Data 53, 619, abstract: glutamic acid's two carboxyl pK "almost independent of temperature").
+TEST(LibrarySystems, AminoAcidStepsMoveWithTheClassEnthalpies) {
+  const Library lib = builtin_library();
+  const AcidBaseSystem& gly = lib.system("glycine");
+  EXPECT_NEAR(gly.pkas.at(1).dH_kJ_per_mol, 44.5, 0.4 + 0.5);   // class sd + Goldberg's +/-0.5
+  EXPECT_NEAR(gly.pkas.at(0).dH_kJ_per_mol, 2.5, 1.6);
+  struct Step {
+    const char* system;
+    std::size_t index;
+    double dH_kJ;
+  };
+  for (const Step& st : {Step{"glutamate", 2, 44.5}, Step{"arginine", 1, 44.5}, Step{"histidine", 2, 44.5},
+                         Step{"glutamate", 0, 2.5}, Step{"glutamate", 1, 2.5}, Step{"arginine", 0, 2.5},
+                         Step{"histidine", 0, 2.5}}) {
+    const Pka& k = lib.system(st.system).pkas.at(st.index);
+    const double pk25 = k.at(25.0);
+    for (double t : {5.0, 40.0})
+      EXPECT_NEAR(k.at(t), vant_hoff_by_hand(pk25, st.dH_kJ * 1e3, 0.0, t), 0.002) << st.system << " step " << st.index << " " << t << " °C";
+    if (st.dH_kJ > 40) {
+      EXPECT_NEAR(k.at(5.0) - pk25, 0.56, 0.01) << st.system;  // 44.5e3/(R ln10) (1/278.15 - 1/298.15) = 0.5606
+    } else {
+      EXPECT_LT(std::fabs(k.at(40.0) - k.at(5.0)), 0.06) << st.system;
+    }
+  }
+}
+
+// Meglumine: no measured dH read; diethanolamine's (the analogous secondary amino alcohol,
+// Goldberg et al. 2002, recalled, to be verified) is used, so the amine's pK falls with
+// temperature as an aliphatic amine's does (diethanolamine itself: 8.883 at 25 °C).
+TEST(LibrarySystems, MeglumineTakesTheDiethanolamineEnthalpy) {
+  const Library lib = builtin_library();
+  const Pka& meg = lib.system("meglumine").pkas.at(0);
+  const Pka& dea = lib.system("diethanolamine").pkas.at(0);
+  EXPECT_NEAR(meg.dH_kJ_per_mol, dea.dH_kJ_per_mol, 0.1);
+  EXPECT_GT(meg.at(5.0) - meg.at(25.0), 0.45);
+  EXPECT_LT(meg.at(40.0) - meg.at(25.0), -0.3);
+}
+
 }  // namespace
 }  // namespace pkarta
