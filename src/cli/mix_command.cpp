@@ -41,7 +41,7 @@ int run_mix_temperatures(FormulationOptions f, const Library& lib, const std::ve
   std::vector<std::string> head = {"temperature (°C)", "pH", "ionic strength (mol/L)",
                                    "capacity (mol/L per pH)", "osmolarity (mOsm/L)"};
   if (drug) {
-    head.push_back("drug dissolved (mg/mL)");
+    head.push_back("drug dissolved (mg/mL as free form)");
     head.push_back("solid");
   }
   TextTable t(head);
