@@ -277,7 +277,7 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
         if (r.status != ScreenStatus::kOk) continue;
         const double osm = kOsmoticCoefficient * r.osmolarity_mOsm_per_L / water_density_kg_per_L(rep.temperature_C);
         if (osm < 250.0) {
-          rep.warnings.push_back("the leading buffer's osmolality estimate, " + fixed(osm, 0) +
+          rep.warnings.push_back(kLowOsmolalityWarningStart + fixed(osm, 0) +
                                  " mOsm/kg, is below the 250 mOsm/kg usual for " + rep.route +
                                  " products (common practice, not a rule): add a tonicity reagent "
                                  "(pkarta recipe --isotonic)");

@@ -238,7 +238,14 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     for (const std::string& w : d.classification->warnings) d.warnings.push_back("classification: " + w);
   }
   if (d.screen) {
-    for (const std::string& w : d.screen->warnings) d.warnings.push_back(w);
+    // The recipe of the report is made isotonic for these routes: the warning that the buffer
+    // alone is hypotonic is answered there.
+    const bool isotonic_recipe = (d.recipe && d.recipe->isotonic) ||
+                                 (d.adjusted_formulation && d.adjusted_formulation->recipe.isotonic);
+    for (const std::string& w : d.screen->warnings) {
+      if (isotonic_recipe && w.rfind(kLowOsmolalityWarningStart, 0) == 0) continue;
+      d.warnings.push_back(w);
+    }
   }
   return d;
 }

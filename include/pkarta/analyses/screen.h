@@ -182,6 +182,10 @@ struct ScreenFallback {
   std::vector<ScreenResult> adjusted;    ///< ok results of the screen made "adjusted", ranked
 };
 
+/// How the screen's warning that the leading buffer is below the usual osmolality of its route
+/// begins (a report whose recipe is made isotonic leaves it out: the recipe answers it).
+inline constexpr const char* kLowOsmolalityWarningStart = "the leading buffer's osmolality estimate, ";
+
 /// A screen of one compound: ranked results (achievable first by concentration needed, then
 /// by |pH drift over 5-40 °C|; then not-achievable, dose-not-soluble, outside-range).
 struct ScreenReport {
