@@ -15,6 +15,29 @@ namespace fs = std::filesystem;
 using report_internal::esc;
 using report_internal::form_label;
 
+namespace {
+
+const std::vector<std::string> kRecipeColumns = {"reagent", "role", "formula", "conc (mM)", "amount (mmol)", "mass (g)",
+                                                 "volume (mL)"};
+
+// The rows of a recipe table: its reagents, then the drug (a formulation made with the pH
+// adjusted after the dose: `drug_row` given, and the titrant goes in after it), the titrant and
+// the water to volume.
+void add_recipe_rows(const Recipe& r, const std::vector<std::string>* drug_row, ReportTable& t) {
+  for (const RecipeReagent& g : r.reagents) {
+    t.rows.push_back({g.id, g.role, g.formula, sig(g.conc_mol_per_L * 1e3, 4), sig(g.amount_mol * 1e3, 4), fixed(g.mass_g, 4), ""});
+  }
+  if (drug_row) t.rows.push_back(*drug_row);
+  if (r.titrant) {
+    t.rows.push_back({r.titrant->id,
+                      "titrant " + sig(r.titrant->conc_mol_per_L, 3) + " mol/L" + (drug_row ? ", added after the drug" : ""),
+                      "", "", sig(r.titrant->amount_mol * 1e3, 4), "", fixed(r.titrant->volume_mL, 3)});
+  }
+  t.rows.push_back({"water", "to volume", "H2O", "", "", "", sig(r.volume_L * 1e3, 4)});
+}
+
+}  // namespace
+
 std::vector<ReportTable> report_tables(const ReportData& d) {
   std::vector<ReportTable> tables;
   const Compound& c = d.compound;
@@ -173,15 +196,8 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
     ReportTable rt{"recipe.csv",
                    "Recipe: " + r.buffer_name + " " + sig(r.conc_mol_per_L * 1e3, 3) + " mM, pH " + fixed(r.target_pH, 2) + ", " +
                        sig(r.volume_L * 1e3, 4) + " mL at " + fixed(r.temperature_C, 1) + " °C",
-                   {"reagent", "role", "formula", "conc (mM)", "amount (mmol)", "mass (g)", "volume (mL)"}, {}};
-    for (const RecipeReagent& g : r.reagents) {
-      rt.rows.push_back({g.id, g.role, g.formula, sig(g.conc_mol_per_L * 1e3, 4), sig(g.amount_mol * 1e3, 4), fixed(g.mass_g, 4), ""});
-    }
-    if (r.titrant) {
-      rt.rows.push_back({r.titrant->id, "titrant " + sig(r.titrant->conc_mol_per_L, 3) + " mol/L", "", "",
-                         sig(r.titrant->amount_mol * 1e3, 4), "", fixed(r.titrant->volume_mL, 3)});
-    }
-    rt.rows.push_back({"water", "to volume", "H2O", "", "", "", sig(r.volume_L * 1e3, 4)});
+                   kRecipeColumns, {}};
+    add_recipe_rows(r, nullptr, rt);
     tables.push_back(rt);
     ReportTable rs{"recipe-solution.csv", "The buffer as made (computed)", {"quantity", "value", "unit"}, {}};
     rs.rows.push_back({"pH", fixed(r.pH, 3), ""});
@@ -200,17 +216,11 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                        sig(f.drug.mass_g / r.volume_L, 4) + " mg/mL as " + form_words + ", pH adjusted to " +
                        fixed(r.target_pH, 2) + " after the dose, " + sig(r.volume_L * 1e3, 4) + " mL at " +
                        fixed(r.temperature_C, 1) + " °C",
-                   {"reagent", "role", "formula", "conc (mM)", "amount (mmol)", "mass (g)", "volume (mL)"}, {}};
-    for (const RecipeReagent& g : r.reagents) {
-      rt.rows.push_back({g.id, g.role, g.formula, sig(g.conc_mol_per_L * 1e3, 4), sig(g.amount_mol * 1e3, 4), fixed(g.mass_g, 4), ""});
-    }
-    rt.rows.push_back({d.compound.id, "drug, weighed as " + form_words, "", sig(f.drug.dose_mol_per_L * 1e3, 4),
-                       sig(f.drug.amount_mol * 1e3, 4), fixed(f.drug.mass_g, 4), ""});
-    if (r.titrant) {
-      rt.rows.push_back({r.titrant->id, "titrant " + sig(r.titrant->conc_mol_per_L, 3) + " mol/L, added after the drug", "", "",
-                         sig(r.titrant->amount_mol * 1e3, 4), "", fixed(r.titrant->volume_mL, 3)});
-    }
-    rt.rows.push_back({"water", "to volume", "H2O", "", "", "", sig(r.volume_L * 1e3, 4)});
+                   kRecipeColumns, {}};
+    const std::vector<std::string> drug_row = {d.compound.id, "drug, weighed as " + form_words, "",
+                                               sig(f.drug.dose_mol_per_L * 1e3, 4), sig(f.drug.amount_mol * 1e3, 4),
+                                               fixed(f.drug.mass_g, 4), ""};
+    add_recipe_rows(r, &drug_row, rt);
     tables.push_back(rt);
     ReportTable rs{"formulation-solution.csv", "The formulation as made, with the drug in (computed)", {"quantity", "value", "unit"}, {}};
     rs.rows.push_back({"pH at " + fixed(r.temperature_C, 0) + " °C", fixed(f.pH, 2), ""});
