@@ -109,9 +109,6 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     drug_neutral_ = d.compound.has_intrinsic_solubility ? d.compound.system.neutral_index() : -1;
     s0_ = d.compound.has_intrinsic_solubility ? d.compound.s0_at(temperature_C_)
                                               : std::numeric_limits<double>::infinity();
-    comp_ion_.reserve(1 + d.compound.salts.size());
-    comp_sys_.reserve(1 + d.compound.salts.size());
-    salts_.reserve(d.compound.salts.size());
     comp_ion_.push_back(-1);
     comp_sys_.push_back(-1);
     for (std::size_t idx = 0; idx < d.compound.salts.size(); ++idx) {
@@ -174,44 +171,47 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     const bool free_possible = drug_neutral_ >= 0 && std::isfinite(s0_);
     const int ns = static_cast<int>(salts_.size());
     const int nc = static_cast<int>(comp_ion_.size());
-    std::vector<std::pair<int, std::uint32_t>> sets;
-    sets.reserve(std::size_t{1} << (ns + 1));
-    for (std::uint32_t mask = 1; mask < (1u << (ns + 1)); ++mask) {
-      if ((mask & 1u) && !free_possible) continue;
-      double a[kMaxComp][kMaxComp];
-      int rows = 0;
-      for (int b = 0; b <= ns; ++b) {
-        if (!((mask >> b) & 1u)) continue;
-        if (rows < kMaxComp) std::fill(a[rows], a[rows] + nc, 0.0);
-        if (b == 0) {
-          a[rows][0] = 1.0;
-        } else {
-          a[rows][0] = salts_[b - 1].m;
-          a[rows][salts_[b - 1].comp] = salts_[b - 1].n;
-        }
-        ++rows;
-      }
-      if (rows > nc) continue;
-      int rank = 0;
-      for (int c = 0; c < nc && rank < rows; ++c) {
-        int piv = -1;
-        for (int r = rank; r < rows; ++r) {
-          if (std::fabs(a[r][c]) > 1e-9 && (piv < 0 || std::fabs(a[r][c]) > std::fabs(a[piv][c]))) piv = r;
-        }
-        if (piv < 0) continue;
-        for (int k = 0; k < nc; ++k) std::swap(a[piv][k], a[rank][k]);
-        for (int r = rank + 1; r < rows; ++r) {
-          const double f = a[r][c] / a[rank][c];
-          for (int k = 0; k < nc; ++k) a[r][k] -= f * a[rank][k];
-        }
-        ++rank;
-      }
-      if (rank == rows) sets.push_back({rows, mask});
+    comp_total_[0] = drug_.total;
+    for (int c = 1; c < nc; ++c) {
+      comp_total_[c] = comp_sys_[c] >= 0 ? systems_[comp_sys_[c]].total : ions_[comp_ion_[c]].conc;
     }
-    std::stable_sort(sets.begin(), sets.end(),
-                     [](const auto& x, const auto& y) { return x.first < y.first; });
-    subsets_.reserve(sets.size());
-    for (const auto& st : sets) subsets_.push_back(st.second);
+    // Listed by number of solids, each count in increasing mask order.
+    for (int want = 1; want <= std::min(ns + 1, nc); ++want) {
+      for (std::uint32_t mask = 1; mask < (1u << (ns + 1)); ++mask) {
+        if ((mask & 1u) && !free_possible) continue;
+        int bits = 0;
+        for (std::uint32_t b = mask; b; b &= b - 1) ++bits;
+        if (bits != want) continue;
+        double a[kMaxComp][kMaxComp];
+        int rows = 0;
+        for (int b = 0; b <= ns; ++b) {
+          if (!((mask >> b) & 1u)) continue;
+          std::fill(a[rows], a[rows] + nc, 0.0);
+          if (b == 0) {
+            a[rows][0] = 1.0;
+          } else {
+            a[rows][0] = salts_[b - 1].m;
+            a[rows][salts_[b - 1].comp] = salts_[b - 1].n;
+          }
+          ++rows;
+        }
+        int rank = 0;
+        for (int c = 0; c < nc && rank < rows; ++c) {
+          int piv = -1;
+          for (int r = rank; r < rows; ++r) {
+            if (std::fabs(a[r][c]) > 1e-9 && (piv < 0 || std::fabs(a[r][c]) > std::fabs(a[piv][c]))) piv = r;
+          }
+          if (piv < 0) continue;
+          for (int k = 0; k < nc; ++k) std::swap(a[piv][k], a[rank][k]);
+          for (int r = rank + 1; r < rows; ++r) {
+            const double f = a[r][c] / a[rank][c];
+            for (int k = 0; k < nc; ++k) a[r][k] -= f * a[rank][k];
+          }
+          ++rank;
+        }
+        if (rank == rows) subsets_.push_back(mask);
+      }
+    }
   }
   per_species_ = m.activity == ActivityModel::kSit || m.activity == ActivityModel::kTruesdellJones;
   if (per_species_) prepare_activity_terms(m);

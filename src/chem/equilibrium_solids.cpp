@@ -35,10 +35,6 @@ double EquilibriumModel::system_removed(const Partition& p, int system) const {
   return removed;
 }
 
-double EquilibriumModel::component_total(int c) const {
-  return comp_sys_[c] >= 0 ? systems_[comp_sys_[c]].total : ions_[comp_ion_[c]].conc;
-}
-
 void EquilibriumModel::salt_products(double h, double* kq) const {
   for (std::size_t k = 0; k < salts_.size(); ++k) {
     const SaltPhase& s = salts_[k];
@@ -340,9 +336,13 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     const double a = drug_excess ? n : m, b = drug_excess ? m : n;
     const double e0 = drug_excess ? excess : -excess, q = a;
     const double c = b;
-    double w = (big_l - b * std::log(c / q)) / (a + b);  // the root with e0 dropped: above
-    if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);  // ... with c e^w dropped
-    if (!std::isnan(lone_warm_[single])) w = lone_warm_[single];
+    // Warm start from this salt's last solution, else the root with e0 dropped (above the
+    // root), or with c e^w dropped where that is lower.
+    double w = lone_warm_[single];
+    if (std::isnan(w)) {
+      w = (big_l - b * std::log(c / q)) / (a + b);
+      if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);
+    }
     // Newton's error after a step of length t is at most psi''/(2 psi') t^2 <= b/(8a) t^2
     // (psi'' <= b/4, psi' >= a): a step below `tiny` leaves an error below 1e-17 in w.
     const double tiny = std::sqrt(8e-17 * a / b);
