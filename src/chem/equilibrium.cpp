@@ -15,6 +15,7 @@ namespace pkarta {
 using equilibrium_detail::kGammaOffset;
 using equilibrium_detail::kMaxComp;
 using equilibrium_detail::ipow;
+using equilibrium_detail::h_of_ph;
 
 int SolidSet::count() const {
   int k = free ? 1 : 0;
@@ -175,25 +176,27 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     for (int c = 1; c < nc; ++c) {
       comp_total_[c] = comp_sys_[c] >= 0 ? systems_[comp_sys_[c]].total : ions_[comp_ion_[c]].conc;
     }
-    // Listed by number of solids, each count in increasing mask order.
-    for (int want = 1; want <= std::min(ns + 1, nc); ++want) {
-      for (std::uint32_t mask = 1; mask < (1u << (ns + 1)); ++mask) {
-        if ((mask & 1u) && !free_possible) continue;
-        int bits = 0;
-        for (std::uint32_t b = mask; b; b &= b - 1) ++bits;
-        if (bits != want) continue;
+    // Listed by number of solids, each count in increasing mask order. A lone solid is always
+    // independent; larger sets by elimination on their rows.
+    double row[kMaxComp][kMaxComp] = {};
+    row[0][0] = 1.0;
+    for (int k = 0; k < ns; ++k) {
+      row[k + 1][0] = salts_[k].m;
+      row[k + 1][salts_[k].comp] = salts_[k].n;
+    }
+    std::uint32_t valid[std::size_t{1} << (kMaxSalts + 1)];
+    int valid_count[std::size_t{1} << (kMaxSalts + 1)];
+    int nvalid = 0;
+    for (std::uint32_t mask = 1; mask < (1u << (ns + 1)); ++mask) {
+      if ((mask & 1u) && !free_possible) continue;
+      int rows = 0;
+      for (std::uint32_t b = mask; b; b &= b - 1) ++rows;
+      if (rows > nc) continue;
+      if (rows > 1) {
         double a[kMaxComp][kMaxComp];
-        int rows = 0;
+        int r0 = 0;
         for (int b = 0; b <= ns; ++b) {
-          if (!((mask >> b) & 1u)) continue;
-          std::fill(a[rows], a[rows] + nc, 0.0);
-          if (b == 0) {
-            a[rows][0] = 1.0;
-          } else {
-            a[rows][0] = salts_[b - 1].m;
-            a[rows][salts_[b - 1].comp] = salts_[b - 1].n;
-          }
-          ++rows;
+          if ((mask >> b) & 1u) std::copy_n(row[b], nc, a[r0++]);
         }
         int rank = 0;
         for (int c = 0; c < nc && rank < rows; ++c) {
@@ -209,7 +212,14 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
           }
           ++rank;
         }
-        if (rank == rows) subsets_.push_back(mask);
+        if (rank < rows) continue;
+      }
+      valid[nvalid] = mask;
+      valid_count[nvalid++] = rows;
+    }
+    for (int want = 1; want <= nc; ++want) {
+      for (int v = 0; v < nvalid; ++v) {
+        if (valid_count[v] == want) subsets_.push_back(valid[v]);
       }
     }
   }
@@ -270,7 +280,7 @@ void EquilibriumModel::prepare_activity_terms(const Mixture& m) {
 double EquilibriumModel::hydroxo_paired(int ion, double pH) const {
   for (const HydroxoPair& q : pairs_) {
     if (q.ion != ion) continue;
-    const double kx = q.k_eff * kw_ / (std::pow(10.0, -pH) * gamma_oh_);
+    const double kx = q.k_eff * kw_ / (h_of_ph(pH) * gamma_oh_);
     return ions_[ion].conc * kx / (1.0 + kx);
   }
   return 0.0;
@@ -397,7 +407,7 @@ double EquilibriumModel::moments(const Sys& s, double h, double* alpha, double* 
 
 void EquilibriumModel::fractions(int system, double pH, double* alpha) const {
   double zb, z2;
-  moments(system < 0 ? drug_ : systems_[system], std::pow(10.0, -pH), alpha, &zb, &z2);
+  moments(system < 0 ? drug_ : systems_[system], h_of_ph(pH), alpha, &zb, &z2);
 }
 
 

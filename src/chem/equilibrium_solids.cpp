@@ -16,6 +16,7 @@ namespace pkarta {
 using equilibrium_detail::kEps;
 using equilibrium_detail::kMaxComp;
 using equilibrium_detail::ipow;
+using equilibrium_detail::h_of_ph;
 using equilibrium_detail::solve_dense;
 using equilibrium_detail::zero_augmented;
 
@@ -80,7 +81,7 @@ double EquilibriumModel::solubility_limit(double pH, int* limiting) const {
   double best = std::numeric_limits<double>::infinity();
   int which = -2;
   if (has_drug_) {
-    const double h = std::pow(10.0, -pH);
+    const double h = h_of_ph(pH);
     double alpha[kMaxPka + 1], zb, z2, kq[kMaxSalts] = {};
     moments(drug_, h, alpha, &zb, &z2);
     if (drug_neutral_ >= 0 && std::isfinite(s0_) && alpha[drug_neutral_] > 0) {
@@ -276,10 +277,12 @@ bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double*
 bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, const double* kq,
                                   double dose, Partition* out) const {
   const int nc = static_cast<int>(comp_ion_.size());
+  // Totals (the dose, then each counterion's) and the dissolved amounts, copied whole (a fixed
+  // size: no call to copy two or three numbers).
   double total[kMaxComp], x[kMaxComp];
+  std::copy_n(comp_total_.data(), kMaxComp, total);
   total[0] = dose;
-  for (int c = 1; c < nc; ++c) total[c] = component_total(c);
-  for (int c = 0; c < nc; ++c) x[c] = total[c];
+  std::copy_n(total, kMaxComp, x);
   Partition p;
   const bool with_free = subset & 1u;
   const std::uint32_t salt_bits = subset >> 1;
@@ -422,6 +425,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     // the potentials, nu mu = logk, and the mass balances the solid amounts, nu^T lam = T - c.
     const int dim = ncl + ns;
     bool converged = false;
+    double direct_c[kMaxComp];  // e^mu of the direct solve, kept
     if (ns == ncl) {
       double a[2 * kMaxComp][2 * kMaxComp + 1];
       zero_augmented(ncl, a);
@@ -431,14 +435,13 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
         a[r][ncl] = logk[r];
       }
       if (!solve_dense(ncl, a, sol)) return false;
-      double c[kMaxComp];
       for (int l = 0; l < ncl; ++l) {
         mu[l] = sol[l];
-        c[l] = std::exp(mu[l]);
+        direct_c[l] = std::exp(mu[l]);
       }
       for (int l = 0; l < ncl; ++l) {
         for (int r = 0; r < ns; ++r) a[l][r] = nu[r][l];
-        a[l][ns] = tot[l] - c[l];
+        a[l][ns] = tot[l] - direct_c[l];
       }
       if (!solve_dense(ns, a, lam)) return false;
       converged = true;
@@ -492,8 +495,13 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
         p.salt_drug += salts_[solid_of[r]].m * lam[r];
       }
     }
-    d = std::exp(mu[0]);
-    for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
+    if (ns == ncl) {
+      d = direct_c[0];
+      for (int l = 1; l < ncl; ++l) x[comps[l]] = direct_c[l];
+    } else {
+      d = std::exp(mu[0]);
+      for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
+    }
     if (ns != ncl && undersaturated_except(subset, alpha, kq, d, x, kEps)) {
       warm_subset_ = subset;
       for (int l = 0; l < ncl; ++l) warm_mu_[l] = mu[l];
@@ -515,8 +523,8 @@ EquilibriumModel::Partition EquilibriumModel::partition(const double* alpha, dou
   p.dissolved = dose;
   if (!drug_solids_ || !(dose > 0)) return p;
   double x[kMaxComp], kq[kMaxSalts] = {};
+  std::copy_n(comp_total_.data(), kMaxComp, x);
   x[0] = dose;
-  for (int c = 1; c < static_cast<int>(comp_ion_.size()); ++c) x[c] = component_total(c);
   salt_products(h, kq);
   if (undersaturated_except(0, alpha, kq, dose, x, 0.0)) return p;
   if (last_subset_ && try_subset(last_subset_, alpha, kq, dose, &p)) return p;

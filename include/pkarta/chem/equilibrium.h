@@ -301,10 +301,11 @@ class EquilibriumModel {
   int drug_neutral_ = -1;
   double s0_ = 0.0;
   /// At most N elements held in the model itself: constructing a model allocates nothing for
-  /// its salts, components and active sets.
+  /// its salts, components and active sets (only the first `count` items are ever read, and
+  /// the rest are left unset).
   template <typename T, std::size_t N>
   struct Bounded {
-    std::array<T, N> items{};
+    std::array<T, N> items;
     std::size_t count = 0;
     std::size_t size() const { return count; }
     void push_back(const T& v) { items[count++] = v; }
