@@ -101,7 +101,13 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
   systems_.reserve(m.systems.size());
   for (const SystemAmount& s : m.systems) systems_.push_back(make_sys(s.system, s.total_mol_per_L));
   ions_.reserve(m.ions.size());
-  for (const IonAmount& i : m.ions) ions_.push_back({i.charge, i.conc_mol_per_L});
+  for (const IonAmount& i : m.ions) {
+    ions_.push_back({i.charge, i.conc_mol_per_L});
+    ions_charge_ += i.charge * i.conc_mol_per_L;
+    ions_abs_ += std::abs(i.charge) * i.conc_mol_per_L;
+    ions_z2_ += i.charge * i.charge * i.conc_mol_per_L;
+    ions_n_ += i.conc_mol_per_L;
+  }
   if (m.drug) {
     const DrugAmount& d = *m.drug;
     has_drug_ = true;

@@ -333,36 +333,56 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     // The salt precipitates (s > 0) only from a supersaturated fully dissolved state.
     const double k_drug = kq[single] / ipow(alpha[s.species], s.m);  // K = d^m x^n
     if (!(ipow(dose, s.m) * ipow(xt, s.n) > k_drug)) return false;
-    const double big_l = std::log(k_drug);
     const double excess = n * dose - m * xt;
     const bool drug_excess = excess > 0;
     const double a = drug_excess ? n : m, b = drug_excess ? m : n;
+    const int ai = drug_excess ? s.n : s.m, bi = drug_excess ? s.m : s.n;
     const double e0 = drug_excess ? excess : -excess, q = a;
     const double c = b;
-    // Warm start from this salt's last solution, else the root with e0 dropped (above the
-    // root), or with c e^w dropped where that is lower.
-    double w = lone_warm_[single];
-    if (std::isnan(w)) {
-      w = (big_l - b * std::log(c / q)) / (a + b);
-      if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);
-    }
     // Newton's error after a step of length t is at most psi''/(2 psi') t^2 <= b/(8a) t^2
     // (psi'' <= b/4, psi' >= a): a step below `tiny` leaves an error below 1e-17 in w.
     const double tiny = std::sqrt(8e-17 * a / b);
+    // Warm start from this salt's last solution: Newton on the product itself, P^a y^b = K in
+    // P = e^w (increasing and convex in P as well), which needs no logarithm or exponential;
+    // the step test is the same on the relative step. Cold, or where that fails: in w.
+    double primary = lone_warm_[single];
     bool converged = false;
-    for (int it = 0; it < 100; ++it) {
-      const double ce = c * std::exp(w);
-      const double f = a * w + b * std::log((ce + e0) / q) - big_l;
-      const double step = -f / (a + b * ce / (ce + e0));
-      if (!std::isfinite(step)) return false;
-      w += step;
-      if (std::fabs(step) <= tiny) {
+    for (int it = 0; it < 20 && primary > 0; ++it) {
+      const double cp = c * primary;
+      const double g = ipow(primary, ai) * ipow((cp + e0) / q, bi);
+      const double rel = -(1.0 - k_drug / g) / (a + b * cp / (cp + e0));
+      if (!std::isfinite(rel) || !(rel > -1.0)) break;
+      primary *= 1.0 + rel;
+      if (std::fabs(rel) <= tiny) {
         converged = true;
         break;
       }
     }
-    if (!converged) return false;
-    const double primary = std::exp(w), other = (c * primary + e0) / q;
+    if (!converged) {
+      const double big_l = std::log(k_drug);
+      double w;
+      if (lone_warm_[single] > 0) {
+        w = std::log(lone_warm_[single]);
+      } else {
+        // The root with e0 dropped (above the root), or with c e^w dropped where that is lower.
+        w = (big_l - b * std::log(c / q)) / (a + b);
+        if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);
+      }
+      for (int it = 0; it < 100; ++it) {
+        const double ce = c * std::exp(w);
+        const double f = a * w + b * std::log((ce + e0) / q) - big_l;
+        const double step = -f / (a + b * ce / (ce + e0));
+        if (!std::isfinite(step)) return false;
+        w += step;
+        if (std::fabs(step) <= tiny) {
+          converged = true;
+          break;
+        }
+      }
+      if (!converged) return false;
+      primary = std::exp(w);
+    }
+    const double other = (c * primary + e0) / q;
     const double dd = drug_excess ? other : primary, xx = drug_excess ? primary : other;
     // The precipitate from the balance that cancels less.
     const double precip = dd / dose <= xx / xt ? (dose - dd) / m : (xt - xx) / n;
@@ -371,7 +391,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     p.salt_solid[single] = precip;
     p.salt_drug = m * precip;
     x[s.comp] = xx;
-    lone_warm_[single] = w;  // E, and so the unknown's kind, is fixed per model
+    lone_warm_[single] = primary;  // E, and so the unknown's kind, is fixed per model
   } else if (single >= 0 && with_free) {
     const SaltPhase& s = salts_[single];
     d = s0_ / an;

@@ -35,7 +35,8 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   Evaluation ev;
   const double h = h_of_ph(pH);
   double alpha[kMaxPka + 1];
-  double charge = 0.0, dsum = 0.0, abs_sum = 0.0, i2 = 0.0, osm = 0.0;
+  // The strong ions' sums are fixed with the model.
+  double charge = ions_charge_, dsum = 0.0, abs_sum = ions_abs_, i2 = ions_z2_, osm = ions_n_;
   for (const Sys& s : systems_) {
     double zb, z2;
     const double za = moments(s, h, alpha, &zb, &z2);
@@ -44,12 +45,6 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
     abs_sum += s.total * za;
     i2 += s.total * z2;
     osm += s.total;
-  }
-  for (const IonC& i : ions_) {
-    charge += i.charge * i.conc;
-    abs_sum += std::abs(i.charge) * i.conc;
-    i2 += i.charge * i.charge * i.conc;
-    osm += i.conc;
   }
   if (has_drug_) {
     double zb, z2;

@@ -277,6 +277,8 @@ class EquilibriumModel {
   double a_davies_ = 0.5108;
   double kw_ = 1e-14;
   double ionic_strength_ = 0.0;
+  // Sums over the strong ions: charge, |charge|, z^2 and particles (mol/L).
+  double ions_charge_ = 0.0, ions_abs_ = 0.0, ions_z2_ = 0.0, ions_n_ = 0.0;
   std::array<double, 33> gamma_{};  // index z + 16, charges -16..16
   LogGammaTerms generic_act_[33];   // per-species models: terms of a species without parameters
   struct HydroxoPair {
@@ -326,7 +328,7 @@ class EquilibriumModel {
   mutable std::uint32_t last_subset_ = 0;    // the active set found last (tried first)
   mutable std::uint32_t warm_subset_ = 0;    // active set of warm_mu_ (general solve)
   mutable std::array<double, kMaxSolidComponents> warm_mu_{};
-  // Per model salt, the unknown of its last lone-salt partition (NaN: none yet).
+  // Per model salt, the amount solved for in its last lone-salt partition (NaN: none yet).
   mutable std::array<double, kMaxSalts> lone_warm_ = filled_nan();
   static constexpr std::array<double, kMaxSalts> filled_nan() {
     std::array<double, kMaxSalts> a{};
