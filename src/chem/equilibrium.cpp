@@ -15,7 +15,6 @@ namespace pkarta {
 using equilibrium_detail::kGammaOffset;
 using equilibrium_detail::kMaxComp;
 using equilibrium_detail::ipow;
-using equilibrium_detail::h_of_ph;
 
 int SolidSet::count() const {
   int k = free ? 1 : 0;
@@ -286,7 +285,7 @@ void EquilibriumModel::prepare_activity_terms(const Mixture& m) {
 double EquilibriumModel::hydroxo_paired(int ion, double pH) const {
   for (const HydroxoPair& q : pairs_) {
     if (q.ion != ion) continue;
-    const double kx = q.k_eff * kw_ / (h_of_ph(pH) * gamma_oh_);
+    const double kx = q.k_eff * kw_ / (std::pow(10.0, -pH) * gamma_oh_);
     return ions_[ion].conc * kx / (1.0 + kx);
   }
   return 0.0;
@@ -413,7 +412,7 @@ double EquilibriumModel::moments(const Sys& s, double h, double* alpha, double* 
 
 void EquilibriumModel::fractions(int system, double pH, double* alpha) const {
   double zb, z2;
-  moments(system < 0 ? drug_ : systems_[system], h_of_ph(pH), alpha, &zb, &z2);
+  moments(system < 0 ? drug_ : systems_[system], std::pow(10.0, -pH), alpha, &zb, &z2);
 }
 
 

@@ -7,7 +7,6 @@
 #include <cmath>
 
 #include "pkarta/chem/equilibrium.h"
-#include "pkarta/chem/water.h"
 
 namespace pkarta {
 namespace equilibrium_detail {
@@ -19,10 +18,6 @@ inline constexpr double kEps = 1e-12;    // relative slack of the phase-consiste
 inline constexpr double kMaxChargeResidual = 1e-10;
 inline constexpr double kMaxMassResidual = 1e-10;
 inline constexpr int kMaxComp = 1 + kMaxSalts;  // partition components: the drug and each counterion
-
-/// [H+] activity 10^-pH, by one exponential (a third of the work of pow; within a few units
-/// of the last place of it).
-inline double h_of_ph(double pH) { return std::exp(-kLn10 * pH); }
 
 /// x^k for a small positive integer k, by multiplication (x^1 is x itself).
 inline double ipow(double x, int k) {

@@ -16,7 +16,6 @@ namespace pkarta {
 using equilibrium_detail::kEps;
 using equilibrium_detail::kMaxComp;
 using equilibrium_detail::ipow;
-using equilibrium_detail::h_of_ph;
 using equilibrium_detail::solve_dense;
 using equilibrium_detail::zero_augmented;
 
@@ -81,7 +80,7 @@ double EquilibriumModel::solubility_limit(double pH, int* limiting) const {
   double best = std::numeric_limits<double>::infinity();
   int which = -2;
   if (has_drug_) {
-    const double h = h_of_ph(pH);
+    const double h = std::pow(10.0, -pH);
     double alpha[kMaxPka + 1], zb, z2, kq[kMaxSalts] = {};
     moments(drug_, h, alpha, &zb, &z2);
     if (drug_neutral_ >= 0 && std::isfinite(s0_) && alpha[drug_neutral_] > 0) {

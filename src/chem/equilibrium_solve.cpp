@@ -19,7 +19,6 @@ using equilibrium_detail::kPhHigh;
 using equilibrium_detail::kMaxChargeResidual;
 using equilibrium_detail::kMaxMassResidual;
 using equilibrium_detail::ipow;
-using equilibrium_detail::h_of_ph;
 
 namespace {
 // With activity corrections, the pH solved at the strong ions' I only starts the iteration on
@@ -33,7 +32,7 @@ constexpr double kStepShare = 1e-3;
 
 EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   Evaluation ev;
-  const double h = h_of_ph(pH);
+  const double h = std::pow(10.0, -pH);
   double alpha[kMaxPka + 1];
   // The strong ions' sums are fixed with the model.
   double charge = ions_charge_, dsum = 0.0, abs_sum = ions_abs_, i2 = ions_z2_, osm = ions_n_;
@@ -70,7 +69,7 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
       const double step = 1e-6;
       auto drug_charge = [&](double x) {
         double a2[kMaxPka + 1], zb2, z22;
-        const double h2 = h_of_ph(x);
+        const double h2 = std::pow(10.0, -x);
         moments(drug_, h2, a2, &zb2, &z22);
         const Partition q = partition(a2, h2, drug_.total);
         double removed = 0.0, r_abs, r_z2, r_n;
@@ -347,7 +346,7 @@ double add_solution_species(const Mixture& mixture, const EquilibriumModel& mode
                             model.gamma(i.charge - 1)});
     }
   }
-  const double h = h_of_ph(pH);
+  const double h = std::pow(10.0, -pH);
   r->species.push_back({"H+", "", 1, h / model.h_gamma(), model.h_gamma()});
   r->species.push_back({"OH-", "", -1, model.kw() / (h * model.oh_gamma()), model.oh_gamma()});
   return mass_res;
@@ -544,7 +543,7 @@ double van_slyke_capacity(const Mixture& mixture, double pH) {
   Mixture ideal = mixture;
   ideal.activity = ActivityModel::kIdeal;
   EquilibriumModel m(ideal);
-  const double h = h_of_ph(pH);
+  const double h = std::pow(10.0, -pH);
   double beta = h + m.kw() / h;
   double alpha[kMaxPka + 1];
   for (int k = 0; k < m.num_systems(); ++k) {
