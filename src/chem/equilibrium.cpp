@@ -100,7 +100,13 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
   systems_.reserve(m.systems.size());
   for (const SystemAmount& s : m.systems) systems_.push_back(make_sys(s.system, s.total_mol_per_L));
   ions_.reserve(m.ions.size());
-  for (const IonAmount& i : m.ions) ions_.push_back({i.charge, i.conc_mol_per_L});
+  for (const IonAmount& i : m.ions) {
+    ions_.push_back({i.charge, i.conc_mol_per_L});
+    ions_charge_ += i.charge * i.conc_mol_per_L;
+    ions_abs_ += std::abs(i.charge) * i.conc_mol_per_L;
+    ions_z2_ += i.charge * i.charge * i.conc_mol_per_L;
+    ions_n_ += i.conc_mol_per_L;
+  }
   if (m.drug) {
     const DrugAmount& d = *m.drug;
     has_drug_ = true;
@@ -109,9 +115,6 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     drug_neutral_ = d.compound.has_intrinsic_solubility ? d.compound.system.neutral_index() : -1;
     s0_ = d.compound.has_intrinsic_solubility ? d.compound.s0_at(temperature_C_)
                                               : std::numeric_limits<double>::infinity();
-    comp_ion_.reserve(1 + d.compound.salts.size());
-    comp_sys_.reserve(1 + d.compound.salts.size());
-    salts_.reserve(d.compound.salts.size());
     comp_ion_.push_back(-1);
     comp_sys_.push_back(-1);
     for (std::size_t idx = 0; idx < d.compound.salts.size(); ++idx) {
@@ -174,44 +177,56 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
     const bool free_possible = drug_neutral_ >= 0 && std::isfinite(s0_);
     const int ns = static_cast<int>(salts_.size());
     const int nc = static_cast<int>(comp_ion_.size());
-    std::vector<std::pair<int, std::uint32_t>> sets;
-    sets.reserve(std::size_t{1} << (ns + 1));
+    comp_total_[0] = drug_.total;
+    for (int c = 1; c < nc; ++c) {
+      comp_total_[c] = comp_sys_[c] >= 0 ? systems_[comp_sys_[c]].total : ions_[comp_ion_[c]].conc;
+    }
+    // Listed by number of solids, each count in increasing mask order. A lone solid is always
+    // independent; larger sets by elimination on their rows.
+    double row[kMaxComp][kMaxComp] = {};
+    row[0][0] = 1.0;
+    for (int k = 0; k < ns; ++k) {
+      row[k + 1][0] = salts_[k].m;
+      row[k + 1][salts_[k].comp] = salts_[k].n;
+    }
+    std::uint32_t valid[std::size_t{1} << (kMaxSalts + 1)];
+    int valid_count[std::size_t{1} << (kMaxSalts + 1)];
+    int nvalid = 0;
     for (std::uint32_t mask = 1; mask < (1u << (ns + 1)); ++mask) {
       if ((mask & 1u) && !free_possible) continue;
-      double a[kMaxComp][kMaxComp];
       int rows = 0;
-      for (int b = 0; b <= ns; ++b) {
-        if (!((mask >> b) & 1u)) continue;
-        if (rows < kMaxComp) std::fill(a[rows], a[rows] + nc, 0.0);
-        if (b == 0) {
-          a[rows][0] = 1.0;
-        } else {
-          a[rows][0] = salts_[b - 1].m;
-          a[rows][salts_[b - 1].comp] = salts_[b - 1].n;
-        }
-        ++rows;
-      }
+      for (std::uint32_t b = mask; b; b &= b - 1) ++rows;
       if (rows > nc) continue;
-      int rank = 0;
-      for (int c = 0; c < nc && rank < rows; ++c) {
-        int piv = -1;
-        for (int r = rank; r < rows; ++r) {
-          if (std::fabs(a[r][c]) > 1e-9 && (piv < 0 || std::fabs(a[r][c]) > std::fabs(a[piv][c]))) piv = r;
+      if (rows > 1) {
+        double a[kMaxComp][kMaxComp];
+        int r0 = 0;
+        for (int b = 0; b <= ns; ++b) {
+          if ((mask >> b) & 1u) std::copy_n(row[b], nc, a[r0++]);
         }
-        if (piv < 0) continue;
-        for (int k = 0; k < nc; ++k) std::swap(a[piv][k], a[rank][k]);
-        for (int r = rank + 1; r < rows; ++r) {
-          const double f = a[r][c] / a[rank][c];
-          for (int k = 0; k < nc; ++k) a[r][k] -= f * a[rank][k];
+        int rank = 0;
+        for (int c = 0; c < nc && rank < rows; ++c) {
+          int piv = -1;
+          for (int r = rank; r < rows; ++r) {
+            if (std::fabs(a[r][c]) > 1e-9 && (piv < 0 || std::fabs(a[r][c]) > std::fabs(a[piv][c]))) piv = r;
+          }
+          if (piv < 0) continue;
+          for (int k = 0; k < nc; ++k) std::swap(a[piv][k], a[rank][k]);
+          for (int r = rank + 1; r < rows; ++r) {
+            const double f = a[r][c] / a[rank][c];
+            for (int k = 0; k < nc; ++k) a[r][k] -= f * a[rank][k];
+          }
+          ++rank;
         }
-        ++rank;
+        if (rank < rows) continue;
       }
-      if (rank == rows) sets.push_back({rows, mask});
+      valid[nvalid] = mask;
+      valid_count[nvalid++] = rows;
     }
-    std::stable_sort(sets.begin(), sets.end(),
-                     [](const auto& x, const auto& y) { return x.first < y.first; });
-    subsets_.reserve(sets.size());
-    for (const auto& st : sets) subsets_.push_back(st.second);
+    for (int want = 1; want <= nc; ++want) {
+      for (int v = 0; v < nvalid; ++v) {
+        if (valid_count[v] == want) subsets_.push_back(valid[v]);
+      }
+    }
   }
   per_species_ = m.activity == ActivityModel::kSit || m.activity == ActivityModel::kTruesdellJones;
   if (per_species_) prepare_activity_terms(m);

@@ -35,10 +35,6 @@ double EquilibriumModel::system_removed(const Partition& p, int system) const {
   return removed;
 }
 
-double EquilibriumModel::component_total(int c) const {
-  return comp_sys_[c] >= 0 ? systems_[comp_sys_[c]].total : ions_[comp_ion_[c]].conc;
-}
-
 void EquilibriumModel::salt_products(double h, double* kq) const {
   for (std::size_t k = 0; k < salts_.size(); ++k) {
     const SaltPhase& s = salts_[k];
@@ -280,10 +276,12 @@ bool EquilibriumModel::undersaturated_except(std::uint32_t subset, const double*
 bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, const double* kq,
                                   double dose, Partition* out) const {
   const int nc = static_cast<int>(comp_ion_.size());
+  // Totals (the dose, then each counterion's) and the dissolved amounts, copied whole (a fixed
+  // size: no call to copy two or three numbers).
   double total[kMaxComp], x[kMaxComp];
+  std::copy_n(comp_total_.data(), kMaxComp, total);
   total[0] = dose;
-  for (int c = 1; c < nc; ++c) total[c] = component_total(c);
-  for (int c = 0; c < nc; ++c) x[c] = total[c];
+  std::copy_n(total, kMaxComp, x);
   Partition p;
   const bool with_free = subset & 1u;
   const std::uint32_t salt_bits = subset >> 1;
@@ -334,32 +332,56 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     // The salt precipitates (s > 0) only from a supersaturated fully dissolved state.
     const double k_drug = kq[single] / ipow(alpha[s.species], s.m);  // K = d^m x^n
     if (!(ipow(dose, s.m) * ipow(xt, s.n) > k_drug)) return false;
-    const double big_l = std::log(k_drug);
     const double excess = n * dose - m * xt;
     const bool drug_excess = excess > 0;
     const double a = drug_excess ? n : m, b = drug_excess ? m : n;
+    const int ai = drug_excess ? s.n : s.m, bi = drug_excess ? s.m : s.n;
     const double e0 = drug_excess ? excess : -excess, q = a;
     const double c = b;
-    double w = (big_l - b * std::log(c / q)) / (a + b);  // the root with e0 dropped: above
-    if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);  // ... with c e^w dropped
-    if (!std::isnan(lone_warm_[single])) w = lone_warm_[single];
     // Newton's error after a step of length t is at most psi''/(2 psi') t^2 <= b/(8a) t^2
     // (psi'' <= b/4, psi' >= a): a step below `tiny` leaves an error below 1e-17 in w.
     const double tiny = std::sqrt(8e-17 * a / b);
+    // Warm start from this salt's last solution: Newton on the product itself, P^a y^b = K in
+    // P = e^w (increasing and convex in P as well), which needs no logarithm or exponential;
+    // the step test is the same on the relative step. Cold, or where that fails: in w.
+    double primary = lone_warm_[single];
     bool converged = false;
-    for (int it = 0; it < 100; ++it) {
-      const double ce = c * std::exp(w);
-      const double f = a * w + b * std::log((ce + e0) / q) - big_l;
-      const double step = -f / (a + b * ce / (ce + e0));
-      if (!std::isfinite(step)) return false;
-      w += step;
-      if (std::fabs(step) <= tiny) {
+    for (int it = 0; it < 20 && primary > 0; ++it) {
+      const double cp = c * primary;
+      const double g = ipow(primary, ai) * ipow((cp + e0) / q, bi);
+      const double rel = -(1.0 - k_drug / g) / (a + b * cp / (cp + e0));
+      if (!std::isfinite(rel) || !(rel > -1.0)) break;
+      primary *= 1.0 + rel;
+      if (std::fabs(rel) <= tiny) {
         converged = true;
         break;
       }
     }
-    if (!converged) return false;
-    const double primary = std::exp(w), other = (c * primary + e0) / q;
+    if (!converged) {
+      const double big_l = std::log(k_drug);
+      double w;
+      if (lone_warm_[single] > 0) {
+        w = std::log(lone_warm_[single]);
+      } else {
+        // The root with e0 dropped (above the root), or with c e^w dropped where that is lower.
+        w = (big_l - b * std::log(c / q)) / (a + b);
+        if (e0 > 0) w = std::min(w, (big_l - b * std::log(e0 / q)) / a);
+      }
+      for (int it = 0; it < 100; ++it) {
+        const double ce = c * std::exp(w);
+        const double f = a * w + b * std::log((ce + e0) / q) - big_l;
+        const double step = -f / (a + b * ce / (ce + e0));
+        if (!std::isfinite(step)) return false;
+        w += step;
+        if (std::fabs(step) <= tiny) {
+          converged = true;
+          break;
+        }
+      }
+      if (!converged) return false;
+      primary = std::exp(w);
+    }
+    const double other = (c * primary + e0) / q;
     const double dd = drug_excess ? other : primary, xx = drug_excess ? primary : other;
     // The precipitate from the balance that cancels less.
     const double precip = dd / dose <= xx / xt ? (dose - dd) / m : (xt - xx) / n;
@@ -368,7 +390,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     p.salt_solid[single] = precip;
     p.salt_drug = m * precip;
     x[s.comp] = xx;
-    lone_warm_[single] = w;  // E, and so the unknown's kind, is fixed per model
+    lone_warm_[single] = primary;  // E, and so the unknown's kind, is fixed per model
   } else if (single >= 0 && with_free) {
     const SaltPhase& s = salts_[single];
     d = s0_ / an;
@@ -422,6 +444,7 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
     // the potentials, nu mu = logk, and the mass balances the solid amounts, nu^T lam = T - c.
     const int dim = ncl + ns;
     bool converged = false;
+    double direct_c[kMaxComp];  // e^mu of the direct solve, kept
     if (ns == ncl) {
       double a[2 * kMaxComp][2 * kMaxComp + 1];
       zero_augmented(ncl, a);
@@ -431,14 +454,13 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
         a[r][ncl] = logk[r];
       }
       if (!solve_dense(ncl, a, sol)) return false;
-      double c[kMaxComp];
       for (int l = 0; l < ncl; ++l) {
         mu[l] = sol[l];
-        c[l] = std::exp(mu[l]);
+        direct_c[l] = std::exp(mu[l]);
       }
       for (int l = 0; l < ncl; ++l) {
         for (int r = 0; r < ns; ++r) a[l][r] = nu[r][l];
-        a[l][ns] = tot[l] - c[l];
+        a[l][ns] = tot[l] - direct_c[l];
       }
       if (!solve_dense(ns, a, lam)) return false;
       converged = true;
@@ -492,8 +514,13 @@ bool EquilibriumModel::try_subset(std::uint32_t subset, const double* alpha, con
         p.salt_drug += salts_[solid_of[r]].m * lam[r];
       }
     }
-    d = std::exp(mu[0]);
-    for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
+    if (ns == ncl) {
+      d = direct_c[0];
+      for (int l = 1; l < ncl; ++l) x[comps[l]] = direct_c[l];
+    } else {
+      d = std::exp(mu[0]);
+      for (int l = 1; l < ncl; ++l) x[comps[l]] = std::exp(mu[l]);
+    }
     if (ns != ncl && undersaturated_except(subset, alpha, kq, d, x, kEps)) {
       warm_subset_ = subset;
       for (int l = 0; l < ncl; ++l) warm_mu_[l] = mu[l];
@@ -515,8 +542,8 @@ EquilibriumModel::Partition EquilibriumModel::partition(const double* alpha, dou
   p.dissolved = dose;
   if (!drug_solids_ || !(dose > 0)) return p;
   double x[kMaxComp], kq[kMaxSalts] = {};
+  std::copy_n(comp_total_.data(), kMaxComp, x);
   x[0] = dose;
-  for (int c = 1; c < static_cast<int>(comp_ion_.size()); ++c) x[c] = component_total(c);
   salt_products(h, kq);
   if (undersaturated_except(0, alpha, kq, dose, x, 0.0)) return p;
   if (last_subset_ && try_subset(last_subset_, alpha, kq, dose, &p)) return p;

@@ -20,11 +20,22 @@ using equilibrium_detail::kMaxChargeResidual;
 using equilibrium_detail::kMaxMassResidual;
 using equilibrium_detail::ipow;
 
+namespace {
+// With activity corrections, the pH solved at the strong ions' I only starts the iteration on
+// I: it is solved to this relative step. Each pH solved at an intermediate I ends at a Newton
+// step below kStepShare times the distance moved at that I (quadratic convergence puts the pH
+// then far closer than the next change of I moves it); the last I is always solved to the
+// full tolerance.
+constexpr double kFirstPhTolerance = 1e-4;
+constexpr double kStepShare = 1e-3;
+}  // namespace
+
 EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   Evaluation ev;
   const double h = std::pow(10.0, -pH);
   double alpha[kMaxPka + 1];
-  double charge = 0.0, dsum = 0.0, abs_sum = 0.0, i2 = 0.0, osm = 0.0;
+  // The strong ions' sums are fixed with the model.
+  double charge = ions_charge_, dsum = 0.0, abs_sum = ions_abs_, i2 = ions_z2_, osm = ions_n_;
   for (const Sys& s : systems_) {
     double zb, z2;
     const double za = moments(s, h, alpha, &zb, &z2);
@@ -33,12 +44,6 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
     abs_sum += s.total * za;
     i2 += s.total * z2;
     osm += s.total;
-  }
-  for (const IonC& i : ions_) {
-    charge += i.charge * i.conc;
-    abs_sum += std::abs(i.charge) * i.conc;
-    i2 += i.charge * i.charge * i.conc;
-    osm += i.conc;
   }
   if (has_drug_) {
     double zb, z2;
@@ -117,11 +122,14 @@ std::string model_words(ActivityModel a) {
 // Safeguarded Newton on the charge balance, which is decreasing in pH, inside [kPhLow, kPhHigh].
 // On return, *last holds the evaluation at the returned pH when it was the last evaluated
 // point (*have_last true); otherwise the caller evaluates again.
+// `stop_tol` (>= tol) ends the iteration at an evaluated point whose Newton step is below it,
+// and so does a step below `stop_share` times the distance moved from the start.
 template <typename F, typename E>
-double solve_charge_balance(F&& eval, double x0, double tol, int max_iter, int* count, bool* ok,
-                            E* last, bool* have_last) {
+double solve_charge_balance(F&& eval, double x0, double tol, double stop_tol, double stop_share,
+                            int max_iter, int* count, bool* ok, E* last, bool* have_last) {
   double lo = kPhLow, hi = kPhHigh;
   double x = std::min(std::max(x0, lo + 1e-9), hi - 1e-9);
+  const double start = x;
   double last_step = hi - lo;
   *ok = false;
   *have_last = false;
@@ -138,7 +146,8 @@ double solve_charge_balance(F&& eval, double x0, double tol, int max_iter, int* 
     double xn;
     const double df = last->dcharge_dpH;
     const double step = (df < 0) ? -f / df : std::numeric_limits<double>::infinity();
-    if (std::fabs(step) <= tol * (1.0 + std::fabs(x))) {  // converged (step below rounding)
+    if (std::fabs(step) <= stop_tol * (1.0 + std::fabs(x)) ||
+        std::fabs(step) <= stop_share * std::fabs(x - start)) {  // converged, or close enough
       *ok = true;
       *have_last = true;
       return x;
@@ -163,16 +172,17 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
   auto eval = [this](double x) { return evaluate(x); };
   bool ok = false, have = false;
   Evaluation ev;
-  auto inner = [&](double x0) {
-    const double x1 = solve_charge_balance(eval, x0, options.ph_tolerance, options.max_ph_iterations,
-                                           &out.evaluations, &ok, &ev, &have);
+  auto inner = [&](double x0, double stop_tol, double stop_share) {
+    const double x1 = solve_charge_balance(eval, x0, options.ph_tolerance, stop_tol, stop_share,
+                                           options.max_ph_iterations, &out.evaluations, &ok, &ev, &have);
     if (!have) {
       ev = evaluate(x1);
       ++out.evaluations;
     }
     return x1;
   };
-  double x = inner(pH_guess);
+  const double first_tol = ideal_ ? options.ph_tolerance : std::max(options.ph_tolerance, kFirstPhTolerance);
+  double x = inner(pH_guess, first_tol, 0.0);
   bool converged = ok;
   bool diverged = false;
   if (!ideal_ && ok) {
@@ -184,10 +194,21 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
     // after 100 steps, bisect it.
     double i_lo = 0.0, i_hi = std::numeric_limits<double>::infinity(), g_lo = g_prev;
     double up_step = 0.0;
+    // Each solve starts where the line through the last two solved (I, pH) points puts the pH
+    // at the new I (from the second step on), which saves about one Newton step per I.
+    double i_solved = i_prev, x_solved = x, x_at_prev = x, i_at_prev = i_prev;
+    bool have_line = false;
+    bool exact = false;
     converged = false;
     for (int k = 0; k < options.max_ionic_strength_iterations; ++k) {
       set_ionic_strength(i_cur);
-      x = inner(x);
+      double x_start = x;
+      if (have_line && i_solved != i_at_prev) {
+        const double shift = (x_solved - x_at_prev) / (i_solved - i_at_prev) * (i_cur - i_solved);
+        if (std::fabs(shift) < 0.1) x_start = x + shift;
+      }
+      const bool last_try = k + 1 >= options.max_ionic_strength_iterations;
+      x = inner(x_start, options.ph_tolerance, exact || last_try ? 0.0 : kStepShare);
       if (!std::isfinite(ev.ionic_strength) || !std::isfinite(ev.charge)) {
         // The activity coefficients overflow at this I: step back towards i_lo.
         diverged = true;
@@ -195,16 +216,27 @@ StateSummary EquilibriumModel::solve(const SolverOptions& options, double pH_gue
         if (!(i_hi - i_lo > 1e-12 * i_hi)) break;
         i_cur = 0.5 * (i_lo + i_hi);
         x = pH_guess;
+        have_line = false;
         continue;
       }
       diverged = false;
+      x_at_prev = x_solved;
+      i_at_prev = i_solved;
+      x_solved = x;
+      i_solved = i_cur;
+      have_line = true;
       if (!ok) break;
       const double g = ev.ionic_strength - i_cur;
       // Where solids pin the pH (free form and salt together), I(pH) is as uncertain as the
       // charge balance itself: accept a change of I within a few times the charge residual.
       if (std::fabs(g) <= options.ionic_strength_rel_tolerance * i_cur + 4.0 * std::fabs(ev.charge) + 1e-300) {
-        converged = true;
-        break;
+        if (exact || ev.charge == 0.0 ||
+            std::fabs(ev.charge / ev.dcharge_dpH) <= options.ph_tolerance * (1.0 + std::fabs(x))) {
+          converged = true;
+          break;
+        }
+        exact = true;  // the pH was not solved to the tolerance: again at this I, to the end
+        continue;
       }
       double i_next = ev.ionic_strength;
       if (g != g_prev) {

@@ -247,7 +247,7 @@ class EquilibriumModel {
   bool undersaturated_except(std::uint32_t subset, const double* alpha, const double* kq, double d,
                              const double* x, double slack) const;
   /// Total of component c (c >= 1): the counterion ion's concentration or the system's total.
-  double component_total(int c) const;
+  double component_total(int c) const { return comp_total_[c]; }
   struct IonC {
     IonC(int z, double c) : charge(z), conc(c) {}
     int charge = 0;
@@ -277,6 +277,8 @@ class EquilibriumModel {
   double a_davies_ = 0.5108;
   double kw_ = 1e-14;
   double ionic_strength_ = 0.0;
+  // Sums over the strong ions: charge, |charge|, z^2 and particles (mol/L).
+  double ions_charge_ = 0.0, ions_abs_ = 0.0, ions_z2_ = 0.0, ions_n_ = 0.0;
   std::array<double, 33> gamma_{};  // index z + 16, charges -16..16
   LogGammaTerms generic_act_[33];   // per-species models: terms of a species without parameters
   struct HydroxoPair {
@@ -300,14 +302,33 @@ class EquilibriumModel {
   Sys drug_;
   int drug_neutral_ = -1;
   double s0_ = 0.0;
-  std::vector<SaltPhase> salts_;
-  std::vector<int> comp_ion_;                // ion index of component c >= 1 (comp_ion_[0] = -1)
-  std::vector<int> comp_sys_;                // system index of component c, or -1 (an ion)
-  std::vector<std::uint32_t> subsets_;       // candidate active sets (bit 0 free, bit k+1 salt k)
+  /// At most N elements held in the model itself: constructing a model allocates nothing for
+  /// its salts, components and active sets (only the first `count` items are ever read, and
+  /// the rest are left unset).
+  template <typename T, std::size_t N>
+  struct Bounded {
+    std::array<T, N> items;
+    std::size_t count = 0;
+    std::size_t size() const { return count; }
+    void push_back(const T& v) { items[count++] = v; }
+    T& operator[](std::size_t i) { return items[i]; }
+    const T& operator[](std::size_t i) const { return items[i]; }
+    T* begin() { return items.data(); }
+    T* end() { return items.data() + count; }
+    const T* begin() const { return items.data(); }
+    const T* end() const { return items.data() + count; }
+  };
+  Bounded<SaltPhase, kMaxSalts> salts_;
+  Bounded<int, kMaxSolidComponents> comp_ion_;  // ion index of component c >= 1 (comp_ion_[0] = -1)
+  Bounded<int, kMaxSolidComponents> comp_sys_;  // system index of component c, or -1 (an ion)
+  // Total of each component (the drug's dose at 0), fixed with the model.
+  std::array<double, kMaxSolidComponents> comp_total_{};
+  // Candidate active sets (bit 0 free, bit k+1 salt k), fewest solids first.
+  Bounded<std::uint32_t, std::size_t{1} << (kMaxSalts + 1)> subsets_;
   mutable std::uint32_t last_subset_ = 0;    // the active set found last (tried first)
   mutable std::uint32_t warm_subset_ = 0;    // active set of warm_mu_ (general solve)
   mutable std::array<double, kMaxSolidComponents> warm_mu_{};
-  // Per model salt, the unknown of its last lone-salt partition (NaN: none yet).
+  // Per model salt, the amount solved for in its last lone-salt partition (NaN: none yet).
   mutable std::array<double, kMaxSalts> lone_warm_ = filled_nan();
   static constexpr std::array<double, kMaxSalts> filled_nan() {
     std::array<double, kMaxSalts> a{};
