@@ -32,6 +32,24 @@ std::string ratio_text(double ratio) {
   return "1:" + sig(ratio, 3);
 }
 
+// The titrant of the formulation made with the pH adjusted after the dose, in words: from its
+// recipe when the report has one (reagents as weighed, e.g. NaH2PO4.2H2O with 59.9 mM NaOH),
+// else the screen's (the buffer's net-neutral form with its titrant).
+std::string adjusted_titrant_words(const ReportData& d, const ScreenResult& alt) {
+  if (d.adjusted_formulation) {
+    const Recipe& r = d.adjusted_formulation->recipe;
+    std::string reagents;
+    for (const RecipeReagent& g : r.reagents) {
+      if (g.role == "tonicity") continue;
+      reagents += (reagents.empty() ? "" : ", ") + g.id;
+    }
+    return reagents + (r.titrant ? " with " + sig(r.titrant->amount_mol / r.volume_L * 1e3, 3) + " mM " + r.titrant->id +
+                                       " added after the drug"
+                                 : std::string(", no titrant"));
+  }
+  return alt.titrant.empty() ? std::string("no titrant") : sig(alt.titrant_mol_per_L * 1e3, 3) + " mM " + alt.titrant;
+}
+
 // The caution text without its leading "Caution: ", first letter capitalised (the box has
 // its own heading).
 std::string caution_sentences() {
@@ -174,8 +192,9 @@ void write_summary(const Page& pg) {
               : std::string("none"),
           "No screened buffer made first at the target holds pH " + fixed(sr.target_pH, 2) + " ± " +
               fixed(sr.tolerance_pH, 2) + " with this dose" +
-              (alt ? "; made with the pH adjusted after the dose (" + (alt->titrant.empty() ? std::string("no titrant") : sig(alt->titrant_mol_per_L * 1e3, 3) + " mM " + alt->titrant) + "), it holds it (set by " + alt->binding + ")." : std::string(".")),
-          "Buffer screen (" + pg.number("screen") + ").");
+              (alt ? "; made with the pH adjusted after the dose (" + adjusted_titrant_words(d, *alt) + "), it holds it (set by " + alt->binding + ")." : std::string(".")),
+          d.adjusted_formulation ? "Buffer screen (" + pg.number("screen") + "); recipe (" + pg.number("recipe") + ")."
+                                 : "Buffer screen (" + pg.number("screen") + ").");
     }
     key(out, "", "Solubility at target pH", sig(sr.solubility_at_target_mol_per_L * mm, 3) + " mg/mL",
         sig(sr.solubility_at_target_mol_per_L, 3) + " mol/L in water at pH " + fixed(sr.target_pH, 2) +
