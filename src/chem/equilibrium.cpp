@@ -215,6 +215,8 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
   }
   per_species_ = m.activity == ActivityModel::kSit || m.activity == ActivityModel::kTruesdellJones;
   if (per_species_) prepare_activity_terms(m);
+  ion_pair_model_ = m.activity == ActivityModel::kIonPairs;
+  if (ion_pair_model_) prepare_ion_pairs(m);
   double i0 = 0.0;
   for (const IonC& i : ions_) i0 += 0.5 * i.charge * i.charge * i.conc;
   set_ionic_strength(i0);
@@ -267,7 +269,210 @@ void EquilibriumModel::prepare_activity_terms(const Mixture& m) {
   }
 }
 
+// The ion-pair model (docs/model.md, "Activities"): every strong cation of the mixture with a
+// hydroxo complex or a pair with a species of a system present becomes a metal of the pair
+// mass balances; every system with a pair gets its terms.
+void EquilibriumModel::prepare_ion_pairs(const Mixture& m) {
+  auto metal_index = [&](int t) {
+    for (std::size_t a = 0; a < pair_metals_.size(); ++a) {
+      if (pair_metals_[a].ion == t) return static_cast<int>(a);
+    }
+    if (static_cast<int>(pair_metals_.size()) >= kMaxPairMetals) {
+      throw InputError("more than " + std::to_string(kMaxPairMetals) +
+                       " metal ions form ion pairs; the ion-pair model supports that many");
+    }
+    PairMetal pm;
+    pm.ion = t;
+    pm.z = ions_[t].charge;
+    pair_metals_.push_back(pm);
+    return static_cast<int>(pair_metals_.size()) - 1;
+  };
+  for (std::size_t t = 0; t < ions_.size(); ++t) {
+    if (ions_[t].charge <= 0 || !(ions_[t].conc > 0)) continue;
+    const std::optional<HydroxoComplex> hc = hydroxo_complex(m.ions[t].id, ions_[t].charge);
+    if (hc) pair_metals_[metal_index(static_cast<int>(t))].k_oh = hc->k_at(temperature_C_);
+  }
+  sys_pair_.assign(systems_.size(), -1);
+  for (std::size_t k = 0; k < systems_.size(); ++k) {
+    if (!(systems_[k].total > 0)) continue;
+    PairSystem ps;
+    ps.sys = static_cast<int>(k);
+    for (int j = 0; j <= systems_[k].n; ++j) {
+      const int zl = systems_[k].z0 - j;
+      if (zl >= 0) continue;
+      for (std::size_t t = 0; t < ions_.size(); ++t) {
+        if (ions_[t].charge <= 0 || !(ions_[t].conc > 0)) continue;
+        const std::optional<AssociationConstant> c =
+            ion_pair_constant(m.ions[t].id, ions_[t].charge, m.systems[k].system.id, zl);
+        if (!c) continue;
+        PairTerm term;
+        term.metal = metal_index(static_cast<int>(t));
+        term.j = j;
+        term.zl = zl;
+        term.k = c->k_at(temperature_C_);
+        ps.terms.push_back(term);
+      }
+    }
+    if (ps.terms.empty()) continue;
+    if (static_cast<int>(pair_systems_.size()) >= kMaxPairSystems) {
+      throw InputError("more than " + std::to_string(kMaxPairSystems) +
+                       " acid-base systems form ion pairs; the ion-pair model supports that many");
+    }
+    sys_pair_[k] = static_cast<int>(pair_systems_.size());
+    pair_systems_.push_back(std::move(ps));
+  }
+  for (std::size_t a = 0; a < pair_metals_.size(); ++a) free_metal_[a] = ions_[pair_metals_[a].ion].conc;
+}
+
+void EquilibriumModel::update_pair_constants() {
+  for (PairMetal& a : pair_metals_) a.k_oh_eff = a.k_oh * gamma(a.z) * gamma(-1) / gamma(a.z - 1);
+  for (PairSystem& ps : pair_systems_) {
+    for (PairTerm& t : ps.terms) {
+      const int z = pair_metals_[t.metal].z;
+      t.k_eff = t.k * gamma(z) * gamma(t.zl) / gamma(z + t.zl);
+    }
+  }
+}
+
+// Free metals m_a from the mass balances F_a = m_a (1 + K_OH' [OH-] + sum_p T_p G_ap) - M_a = 0,
+// G_ap = sum_j K'_aj beta_j / S_p, S_p = sum_j beta_j P_j, P_j = 1 + sum_a K'_aj m_a, by Newton
+// with J_ab = delta_ab (1 + K_OH' [OH-] + sum_p T_p G_ap) - m_a sum_p T_p G_ap G_bp.
+void EquilibriumModel::solve_pairs(double pH, double h, PairWork* w) const {
+  const int na = static_cast<int>(pair_metals_.size());
+  const int np = static_cast<int>(pair_systems_.size());
+  w->oh = kw_ / (h * gamma_oh_);
+  const double inv_h = 1.0 / h;
+  double beta[kMaxPairSystems][kMaxPka + 1];
+  for (int p = 0; p < np; ++p) {
+    const Sys& s = systems_[pair_systems_[p].sys];
+    double b = 1.0;
+    beta[p][0] = 1.0;
+    for (int i = 0; i < s.n; ++i) {
+      b *= s.ka_eff[i] * inv_h;
+      beta[p][i + 1] = b;
+    }
+  }
+  double* m = w->m;
+  for (int a = 0; a < na; ++a) {
+    const double total = ions_[pair_metals_[a].ion].conc;
+    const double guess = free_metal_[a] + free_metal_slope_[a] * (pH - free_metal_pH_);
+    m[a] = guess > 0 && guess <= total ? guess
+           : free_metal_[a] > 0 && free_metal_[a] <= total ? free_metal_[a] : total;
+  }
+  free_metal_pH_ = pH;
+  // The weights at m: per system the fractions w and free shares beta_s, and G_ap.
+  double G[kMaxPairMetals][kMaxPairSystems];
+  auto weights = [&]() {
+    for (int p = 0; p < np; ++p) {
+      const PairSystem& ps = pair_systems_[p];
+      const int n = systems_[ps.sys].n;
+      double P[kMaxPka + 1];
+      std::fill(P, P + n + 1, 1.0);
+      for (const PairTerm& t : ps.terms) P[t.j] += t.k_eff * m[t.metal];
+      double sum = 0.0;
+      for (int j = 0; j <= n; ++j) sum += beta[p][j] * P[j];
+      const double inv = 1.0 / sum;
+      for (int j = 0; j <= n; ++j) {
+        w->beta_s[p][j] = beta[p][j] * inv;
+        w->w[p][j] = beta[p][j] * P[j] * inv;
+      }
+      for (int a = 0; a < na; ++a) G[a][p] = 0.0;
+      for (const PairTerm& t : ps.terms) G[t.metal][p] += t.k_eff * w->beta_s[p][t.j];
+    }
+  };
+  // Converged when a step is below 1e-9 of the total: the error left after it is of the order
+  // of its square (quadratic convergence), below rounding.
+  constexpr double kStepTol = 1e-9;
+  bool current = false;  // the weights are those of m
+  if (na == 1) {  // one metal (the common case): scalar Newton
+    const double total = ions_[pair_metals_[0].ion].conc;
+    const double koh = 1.0 + pair_metals_[0].k_oh_eff * w->oh;
+    for (int it = 0; it < 100; ++it) {
+      weights();
+      double diag = koh, off = 0.0;
+      for (int p = 0; p < np; ++p) {
+        const double tg = systems_[pair_systems_[p].sys].total * G[0][p];
+        diag += tg;
+        off += tg * G[0][p];
+      }
+      double next = m[0] + (total - m[0] * diag) / (diag - m[0] * off);
+      if (!(next > 0)) next = 0.1 * m[0];
+      if (next > total) next = total;
+      const bool done = std::fabs(next - m[0]) <= kStepTol * total;
+      m[0] = next;
+      if (done) break;
+    }
+  } else {
+    for (int it = 0; it < 100; ++it) {
+      weights();
+      double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1];
+      for (int r = 0; r < na; ++r) {
+        const PairMetal& pm = pair_metals_[r];
+        double diag = 1.0 + pm.k_oh_eff * w->oh;
+        for (int p = 0; p < np; ++p) diag += systems_[pair_systems_[p].sys].total * G[r][p];
+        for (int c = 0; c < na; ++c) {
+          double off = 0.0;
+          for (int p = 0; p < np; ++p) off += systems_[pair_systems_[p].sys].total * G[r][p] * G[c][p];
+          a[r][c] = (r == c ? diag : 0.0) - m[r] * off;
+        }
+        a[r][na] = ions_[pm.ion].conc - m[r] * diag;  // -F
+      }
+      double dm[kMaxPairMetals];
+      if (!equilibrium_detail::solve_dense(na, a, dm)) {
+        current = true;
+        break;
+      }
+      double next[kMaxPairMetals];
+      bool small = true;
+      for (int r = 0; r < na; ++r) {
+        const double total = ions_[pair_metals_[r].ion].conc;
+        next[r] = m[r] + dm[r];
+        if (!(next[r] > 0)) next[r] = 0.1 * m[r];
+        if (next[r] > total) next[r] = total;
+        if (std::fabs(next[r] - m[r]) > kStepTol * total) small = false;
+      }
+      std::copy(next, next + na, m);
+      if (small) break;
+    }
+  }
+  if (!current) weights();
+  for (int a = 0; a < na; ++a) free_metal_[a] = m[a];
+}
+
+void EquilibriumModel::ion_pair_state(double pH, std::vector<IonPairSpecies>* pairs,
+                                      std::vector<double>* free_ion) const {
+  pairs->clear();
+  free_ion->resize(ions_.size());
+  for (std::size_t t = 0; t < ions_.size(); ++t) (*free_ion)[t] = ions_[t].conc;
+  if (pair_metals_.empty()) return;
+  PairWork w;
+  solve_pairs(pH, std::pow(10.0, -pH), &w);
+  for (std::size_t a = 0; a < pair_metals_.size(); ++a) {
+    const PairMetal& pm = pair_metals_[a];
+    (*free_ion)[pm.ion] = w.m[a];
+    if (pm.k_oh > 0) pairs->push_back({pm.ion, -1, -1, pm.z - 1, w.m[a] * pm.k_oh_eff * w.oh});
+  }
+  for (std::size_t p = 0; p < pair_systems_.size(); ++p) {
+    const PairSystem& ps = pair_systems_[p];
+    const double total = systems_[ps.sys].total;
+    for (const PairTerm& t : ps.terms) {
+      const PairMetal& pm = pair_metals_[t.metal];
+      pairs->push_back({pm.ion, ps.sys, t.j, pm.z + t.zl,
+                        total * t.k_eff * w.beta_s[p][t.j] * w.m[t.metal]});
+    }
+  }
+}
+
 double EquilibriumModel::hydroxo_paired(int ion, double pH) const {
+  if (ion_pair_model_) {
+    std::vector<IonPairSpecies> pairs;
+    std::vector<double> free_ion;
+    ion_pair_state(pH, &pairs, &free_ion);
+    for (const IonPairSpecies& q : pairs) {
+      if (q.ion == ion && q.system < 0) return q.conc_mol_per_L;
+    }
+    return 0.0;
+  }
   for (const HydroxoPair& q : pairs_) {
     if (q.ion != ion) continue;
     const double kx = q.k_eff * kw_ / (std::pow(10.0, -pH) * gamma_oh_);
@@ -324,6 +529,7 @@ void EquilibriumModel::set_ionic_strength(double I) {
   gamma_h_ = gamma_oh_ = gamma_[kGammaOffset + 1];
   for (IonC& i : ions_) i.gamma = gamma(i.charge);
   update_effective_constants();
+  if (ion_pair_model_) update_pair_constants();
 }
 
 double EquilibriumModel::species_gamma(int system, int j) const {
@@ -396,6 +602,14 @@ double EquilibriumModel::moments(const Sys& s, double h, double* alpha, double* 
 }
 
 void EquilibriumModel::fractions(int system, double pH, double* alpha) const {
+  if (system >= 0 && !sys_pair_.empty() && sys_pair_[system] >= 0) {
+    // Ion pairs: the fractions of each protonation state, free and paired together.
+    PairWork w;
+    solve_pairs(pH, std::pow(10.0, -pH), &w);
+    const int p = sys_pair_[system];
+    for (int j = 0; j <= systems_[system].n; ++j) alpha[j] = w.w[p][j];
+    return;
+  }
   double zb, z2;
   moments(system < 0 ? drug_ : systems_[system], std::pow(10.0, -pH), alpha, &zb, &z2);
 }
