@@ -119,7 +119,11 @@ constexpr Hydroxo kHydroxo[] = {{"Ca2+", 2, 1.30, 0.0}, {"Mg2+", 2, 2.58, 0.0}};
 //          Plenum 1977, citric acid, I = 0.1 mol/L; recalled, to be verified; put at I = 0
 //          with the Davies equation as for [MF88] (A br = 0.1074 at I = 0.1).
 // Not carried (no constant read or recalled): K+ with the phosphate species ([MF88] take its
-// pairing as negligible), Na+ and K+ with PO4 3- and with HCit 2-, K+ with carbonate.
+// pairing as negligible), Na+ and K+ with PO4 3- and with HCit 2-, K+ with carbonate. Nor
+// Na+ with carbonate: [N90]'s NaCO3- (log K 1.27, dH 37.3 kJ/mol) and NaHCO3 (-0.25), used
+// with Davies coefficients, put the carbonate primary standard (Buck et al. 2002) 0.152 pH
+// low at 25 °C and 0.337 low at 50 °C, where Davies alone is within 0.009: Davies' 0.3 I term
+// already stands for them (docs/model.md, "Activities").
 struct PairConstant {
   std::string_view metal;
   int zm;
