@@ -297,6 +297,8 @@ void EquilibriumModel::prepare_ion_pairs(const Mixture& m) {
     if (!(systems_[k].total > 0)) continue;
     PairSystem ps;
     ps.sys = static_cast<int>(k);
+    ps.n = systems_[k].n;
+    ps.total = systems_[k].total;
     for (int j = 0; j <= systems_[k].n; ++j) {
       const int zl = systems_[k].z0 - j;
       if (zl >= 0) continue;
@@ -330,6 +332,7 @@ void EquilibriumModel::update_pair_constants() {
     for (PairTerm& t : ps.terms) {
       const int z = pair_metals_[t.metal].z;
       t.k_eff = t.k * gamma(z) * gamma(t.zl) / gamma(z + t.zl);
+      ps.k_eff[t.metal][t.j] = t.k_eff;
     }
   }
 }
@@ -337,10 +340,11 @@ void EquilibriumModel::update_pair_constants() {
 // Free metals m_a from the mass balances F_a = m_a (1 + K_OH' [OH-] + sum_p T_p G_ap) - M_a = 0,
 // G_ap = sum_j K'_aj beta_j / S_p, S_p = sum_j beta_j P_j, P_j = 1 + sum_a K'_aj m_a, by Newton
 // with J_ab = delta_ab (1 + K_OH' [OH-] + sum_p T_p G_ap) - m_a sum_p T_p G_ap G_bp.
-void EquilibriumModel::solve_pairs(double pH, double h, PairWork* w) const {
+void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out) const {
   const int na = static_cast<int>(pair_metals_.size());
   const int np = static_cast<int>(pair_systems_.size());
-  w->oh = kw_ / (h * gamma_oh_);
+  out->oh = oh;
+  out->inv_jacobian = 0.0;
   const double inv_h = 1.0 / h;
   double beta[kMaxPairSystems][kMaxPka + 1];
   for (int p = 0; p < np; ++p) {
@@ -352,91 +356,133 @@ void EquilibriumModel::solve_pairs(double pH, double h, PairWork* w) const {
       beta[p][i + 1] = b;
     }
   }
-  double* m = w->m;
+  double m[kMaxPairMetals], total[kMaxPairMetals], diag0[kMaxPairMetals];
   for (int a = 0; a < na; ++a) {
-    const double total = ions_[pair_metals_[a].ion].conc;
+    total[a] = ions_[pair_metals_[a].ion].conc;
+    diag0[a] = 1.0 + pair_metals_[a].k_oh_eff * oh;
     const double guess = free_metal_[a] + free_metal_slope_[a] * (pH - free_metal_pH_);
-    m[a] = guess > 0 && guess <= total ? guess
-           : free_metal_[a] > 0 && free_metal_[a] <= total ? free_metal_[a] : total;
+    m[a] = guess > 0 && guess <= total[a] ? guess
+           : free_metal_[a] > 0 && free_metal_[a] <= total[a] ? free_metal_[a] : total[a];
   }
   free_metal_pH_ = pH;
-  // The weights at m: per system the fractions w and free shares beta_s, and G_ap.
+  // The weights at m: per system the fractions w and free shares bs, and G_ap.
+  double w[kMaxPairSystems][kMaxPka + 1], bs[kMaxPairSystems][kMaxPka + 1];
   double G[kMaxPairMetals][kMaxPairSystems];
   auto weights = [&]() {
     for (int p = 0; p < np; ++p) {
       const PairSystem& ps = pair_systems_[p];
-      const int n = systems_[ps.sys].n;
+      const int n = ps.n;
       double P[kMaxPka + 1];
-      std::fill(P, P + n + 1, 1.0);
-      for (const PairTerm& t : ps.terms) P[t.j] += t.k_eff * m[t.metal];
       double sum = 0.0;
-      for (int j = 0; j <= n; ++j) sum += beta[p][j] * P[j];
+      if (na == 1) {  // one metal: P_j = 1 + K'_j m, G = sum_j K'_j bs_j
+        const double* k = ps.k_eff[0].data();
+        for (int j = 0; j <= n; ++j) {
+          P[j] = 1.0 + k[j] * m[0];
+          sum += beta[p][j] * P[j];
+        }
+        const double inv = 1.0 / sum;
+        double g = 0.0;
+        for (int j = 0; j <= n; ++j) {
+          bs[p][j] = beta[p][j] * inv;
+          w[p][j] = bs[p][j] * P[j];
+          g += k[j] * bs[p][j];
+        }
+        G[0][p] = g;
+        continue;
+      }
+      for (int j = 0; j <= n; ++j) {
+        double pj = 1.0;
+        for (int a = 0; a < na; ++a) pj += ps.k_eff[a][j] * m[a];
+        P[j] = pj;
+        sum += beta[p][j] * pj;
+      }
       const double inv = 1.0 / sum;
       for (int j = 0; j <= n; ++j) {
-        w->beta_s[p][j] = beta[p][j] * inv;
-        w->w[p][j] = beta[p][j] * P[j] * inv;
+        bs[p][j] = beta[p][j] * inv;
+        w[p][j] = bs[p][j] * P[j];
       }
-      for (int a = 0; a < na; ++a) G[a][p] = 0.0;
-      for (const PairTerm& t : ps.terms) G[t.metal][p] += t.k_eff * w->beta_s[p][t.j];
+      for (int a = 0; a < na; ++a) {
+        double g = 0.0;
+        for (int j = 0; j <= n; ++j) g += ps.k_eff[a][j] * bs[p][j];
+        G[a][p] = g;
+      }
     }
   };
-  // Converged when a step is below 1e-9 of the total: the error left after it is of the order
-  // of its square (quadratic convergence), below rounding.
-  constexpr double kStepTol = 1e-9;
+  // The last step, when it is below kStepTol of the total, is carried into the weights to first
+  // order (dw_j/dm_a = K'_aj bs_j - w_j G_a, dbs_j/dm_a = -bs_j G_a) instead of a new pass: what
+  // is left after it, of both the metal balance (quadratic convergence) and the weights, is of
+  // the order of its square, below rounding.
+  constexpr double kStepTol = 1e-8;
+  auto carry = [&](const double* dm) {
+    for (int p = 0; p < np; ++p) {
+      const PairSystem& ps = pair_systems_[p];
+      double gd = 0.0;
+      for (int a = 0; a < na; ++a) gd += G[a][p] * dm[a];
+      for (int j = 0; j <= ps.n; ++j) {
+        double kd = 0.0;
+        for (int a = 0; a < na; ++a) kd += ps.k_eff[a][j] * dm[a];
+        w[p][j] += bs[p][j] * kd - w[p][j] * gd;
+        bs[p][j] -= bs[p][j] * gd;
+      }
+    }
+    for (int a = 0; a < na; ++a) m[a] += dm[a];
+  };
   bool current = false;  // the weights are those of m
-  if (na == 1) {  // one metal (the common case): scalar Newton
-    const double total = ions_[pair_metals_[0].ion].conc;
-    const double koh = 1.0 + pair_metals_[0].k_oh_eff * w->oh;
-    for (int it = 0; it < 100; ++it) {
-      weights();
-      double diag = koh, off = 0.0;
+  for (int it = 0; it < 100; ++it) {
+    weights();
+    double dm[kMaxPairMetals];
+    if (na == 1) {  // one metal (the common case): scalar Newton
+      double diag = diag0[0], off = 0.0;
       for (int p = 0; p < np; ++p) {
-        const double tg = systems_[pair_systems_[p].sys].total * G[0][p];
+        const double tg = pair_systems_[p].total * G[0][p];
         diag += tg;
         off += tg * G[0][p];
       }
-      double next = m[0] + (total - m[0] * diag) / (diag - m[0] * off);
-      if (!(next > 0)) next = 0.1 * m[0];
-      if (next > total) next = total;
-      const bool done = std::fabs(next - m[0]) <= kStepTol * total;
-      m[0] = next;
-      if (done) break;
-    }
-  } else {
-    for (int it = 0; it < 100; ++it) {
-      weights();
+      out->inv_jacobian = 1.0 / (diag - m[0] * off);
+      dm[0] = (total[0] - m[0] * diag) * out->inv_jacobian;
+    } else {
       double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1];
       for (int r = 0; r < na; ++r) {
-        const PairMetal& pm = pair_metals_[r];
-        double diag = 1.0 + pm.k_oh_eff * w->oh;
-        for (int p = 0; p < np; ++p) diag += systems_[pair_systems_[p].sys].total * G[r][p];
+        double diag = diag0[r];
+        for (int p = 0; p < np; ++p) diag += pair_systems_[p].total * G[r][p];
         for (int c = 0; c < na; ++c) {
           double off = 0.0;
-          for (int p = 0; p < np; ++p) off += systems_[pair_systems_[p].sys].total * G[r][p] * G[c][p];
+          for (int p = 0; p < np; ++p) off += pair_systems_[p].total * G[r][p] * G[c][p];
           a[r][c] = (r == c ? diag : 0.0) - m[r] * off;
         }
-        a[r][na] = ions_[pm.ion].conc - m[r] * diag;  // -F
+        a[r][na] = total[r] - m[r] * diag;  // -F
       }
-      double dm[kMaxPairMetals];
       if (!equilibrium_detail::solve_dense(na, a, dm)) {
         current = true;
         break;
       }
-      double next[kMaxPairMetals];
-      bool small = true;
-      for (int r = 0; r < na; ++r) {
-        const double total = ions_[pair_metals_[r].ion].conc;
-        next[r] = m[r] + dm[r];
-        if (!(next[r] > 0)) next[r] = 0.1 * m[r];
-        if (next[r] > total) next[r] = total;
-        if (std::fabs(next[r] - m[r]) > kStepTol * total) small = false;
-      }
-      std::copy(next, next + na, m);
-      if (small) break;
     }
+    bool small = true;
+    for (int r = 0; r < na; ++r) {
+      double next = m[r] + dm[r];
+      if (!(next > 0)) next = 0.1 * m[r];
+      if (next > total[r]) next = total[r];
+      dm[r] = next - m[r];
+      if (std::fabs(dm[r]) > kStepTol * total[r]) small = false;
+    }
+    if (small) {
+      carry(dm);
+      current = true;
+      break;
+    }
+    for (int r = 0; r < na; ++r) m[r] += dm[r];
   }
   if (!current) weights();
-  for (int a = 0; a < na; ++a) free_metal_[a] = m[a];
+  for (int a = 0; a < na; ++a) {
+    free_metal_[a] = m[a];
+    out->m[a] = m[a];
+  }
+  for (int p = 0; p < np; ++p) {
+    for (int j = 0; j <= pair_systems_[p].n; ++j) {
+      out->w[p][j] = w[p][j];
+      out->beta_s[p][j] = bs[p][j];
+    }
+  }
 }
 
 void EquilibriumModel::ion_pair_state(double pH, std::vector<IonPairSpecies>* pairs,
@@ -446,7 +492,8 @@ void EquilibriumModel::ion_pair_state(double pH, std::vector<IonPairSpecies>* pa
   for (std::size_t t = 0; t < ions_.size(); ++t) (*free_ion)[t] = ions_[t].conc;
   if (pair_metals_.empty()) return;
   PairWork w;
-  solve_pairs(pH, std::pow(10.0, -pH), &w);
+  const double h = std::pow(10.0, -pH);
+  solve_pairs(pH, h, kw_ / (h * gamma_oh_), &w);
   for (std::size_t a = 0; a < pair_metals_.size(); ++a) {
     const PairMetal& pm = pair_metals_[a];
     (*free_ion)[pm.ion] = w.m[a];
@@ -605,7 +652,8 @@ void EquilibriumModel::fractions(int system, double pH, double* alpha) const {
   if (system >= 0 && !sys_pair_.empty() && sys_pair_[system] >= 0) {
     // Ion pairs: the fractions of each protonation state, free and paired together.
     PairWork w;
-    solve_pairs(pH, std::pow(10.0, -pH), &w);
+    const double h = std::pow(10.0, -pH);
+  solve_pairs(pH, h, kw_ / (h * gamma_oh_), &w);
     const int p = sys_pair_[system];
     for (int j = 0; j <= systems_[system].n; ++j) alpha[j] = w.w[p][j];
     return;

@@ -80,7 +80,7 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   const double hc = h / gamma_h_;
   const double oh = kw_ / (h * gamma_oh_);
   if (!pair_metals_.empty()) {
-    evaluate_pairs(pH, h, &charge, &dsum, &abs_sum, &i2, &osm);
+    evaluate_pairs(pH, h, oh, &charge, &dsum, &abs_sum, &i2, &osm);
     charge += hc - oh;
     dsum += hc + oh;
     abs_sum += hc + oh;
@@ -122,14 +122,18 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
 // takes one particle. The slope is that at fixed free metals plus E . dm/dln h, where
 // E_a = d(charge)/dm_a = sum_p T_p sum_j K'_aj beta_j/S_p (z_j - zbar_p) - K_OH' [OH-] is also
 // dF_a/dln h over m_a, so dm/dln h = -J^-1 (m E).
-void EquilibriumModel::evaluate_pairs(double pH, double h, double* charge, double* dsum,
+void EquilibriumModel::evaluate_pairs(double pH, double h, double oh, double* charge, double* dsum,
                                       double* abs_sum, double* i2, double* osm) const {
   PairWork w;
-  solve_pairs(pH, h, &w);
+  solve_pairs(pH, h, oh, &w);
   const int na = static_cast<int>(pair_metals_.size());
   const int np = static_cast<int>(pair_systems_.size());
-  double e[kMaxPairMetals] = {};
-  double g[kMaxPairMetals][kMaxPairSystems] = {};
+  double e[kMaxPairMetals];
+  double g[kMaxPairMetals][kMaxPairSystems];
+  for (int r = 0; r < na; ++r) {
+    e[r] = 0.0;
+    for (int p = 0; p < np; ++p) g[r][p] = 0.0;
+  }
   for (int p = 0; p < np; ++p) {
     const PairSystem& ps = pair_systems_[p];
     const Sys& s = systems_[ps.sys];
@@ -157,7 +161,6 @@ void EquilibriumModel::evaluate_pairs(double pH, double h, double* charge, doubl
       *abs_sum -= (std::abs(zm) + std::abs(t.zl) - std::abs(zm + t.zl)) * c;
     }
   }
-  double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1];
   for (int r = 0; r < na; ++r) {
     const PairMetal& pm = pair_metals_[r];
     const double koh = pm.k_oh_eff * w.oh;
@@ -167,17 +170,28 @@ void EquilibriumModel::evaluate_pairs(double pH, double h, double* charge, doubl
     *abs_sum -= c_oh;
     *i2 += (1.0 - 2.0 * pm.z) * c_oh;
     e[r] -= koh;
-    double diag = 1.0 + koh;
-    for (int p = 0; p < np; ++p) diag += systems_[pair_systems_[p].sys].total * g[r][p];
-    for (int c = 0; c < na; ++c) {
-      double off = 0.0;
-      for (int p = 0; p < np; ++p) off += systems_[pair_systems_[p].sys].total * g[r][p] * g[c][p];
-      a[r][c] = (r == c ? diag : 0.0) - w.m[r] * off;
-    }
-    a[r][na] = w.m[r] * e[r];
   }
   double x[kMaxPairMetals];
-  if (equilibrium_detail::solve_dense(na, a, x)) {
+  bool have_x = false;
+  if (na == 1 && w.inv_jacobian != 0.0) {
+    // One metal: J is the Newton derivative of the last step (at m within 1e-8 of the total).
+    x[0] = w.m[0] * e[0] * w.inv_jacobian;
+    have_x = true;
+  } else {
+    double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1];
+    for (int r = 0; r < na; ++r) {
+      double diag = 1.0 + pair_metals_[r].k_oh_eff * w.oh;
+      for (int p = 0; p < np; ++p) diag += pair_systems_[p].total * g[r][p];
+      for (int c = 0; c < na; ++c) {
+        double off = 0.0;
+        for (int p = 0; p < np; ++p) off += pair_systems_[p].total * g[r][p] * g[c][p];
+        a[r][c] = (r == c ? diag : 0.0) - w.m[r] * off;
+      }
+      a[r][na] = w.m[r] * e[r];
+    }
+    have_x = equilibrium_detail::solve_dense(na, a, x);
+  }
+  if (have_x) {
     for (int r = 0; r < na; ++r) {
       *dsum -= e[r] * x[r];
       free_metal_slope_[r] = kLn10 * x[r];  // dm/dpH = -ln10 dm/dln h = ln10 x

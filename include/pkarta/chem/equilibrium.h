@@ -322,22 +322,27 @@ class EquilibriumModel {
   };
   struct PairSystem {
     int sys = -1;          // index into systems_
+    int n = 0;             // its pKa count
+    double total = 0.0;    // its total, mol/L
     std::vector<PairTerm> terms;
+    /// K'_aj by metal and species (0: no pair), the terms as a dense table for the hot loops.
+    std::array<std::array<double, kMaxPka + 1>, kMaxPairMetals> k_eff{};
   };
   /// Work of one ion-pair state at [H+] = h: free metals, hydroxide and per pair system the
   /// weights beta_j P_j (beta_j = prod ka_eff / h^j, P_j = 1 + sum K_eff m) and their sum.
   struct PairWork {
     double m[kMaxPairMetals];
     double oh = 0.0;
+    double inv_jacobian = 0.0;  // one metal: 1/(dF/dm) of the last Newton step (0: not known)
     double w[kMaxPairSystems][kMaxPka + 1];     // beta_j P_j / S: fractions of species j (free and paired)
     double beta_s[kMaxPairSystems][kMaxPka + 1];  // beta_j / S: the free species' share, per unit total
   };
   /// Solves the metals' mass balances at pH ([H+] = h) by Newton from the last solution,
   /// carried to this pH along its slope dm/dpH, and fills `w`.
-  void solve_pairs(double pH, double h, PairWork* w) const;
+  void solve_pairs(double pH, double h, double oh, PairWork* w) const;
   /// Adds the ion-pair model's systems and pairs to the sums of evaluate() at pH.
-  void evaluate_pairs(double pH, double h, double* charge, double* dsum, double* abs_sum,
-                      double* i2, double* osm) const;
+  void evaluate_pairs(double pH, double h, double oh, double* charge, double* dsum,
+                      double* abs_sum, double* i2, double* osm) const;
   bool ion_pair_model_ = false;
   std::vector<PairMetal> pair_metals_;
   std::vector<PairSystem> pair_systems_;
