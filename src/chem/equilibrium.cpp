@@ -366,7 +366,8 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   }
   free_metal_pH_ = pH;
   // The weights at m: per system the fractions w and free shares bs, and G_ap.
-  double w[kMaxPairSystems][kMaxPka + 1], bs[kMaxPairSystems][kMaxPka + 1];
+  double (&w)[kMaxPairSystems][kMaxPka + 1] = out->w;
+  double (&bs)[kMaxPairSystems][kMaxPka + 1] = out->beta_s;
   double G[kMaxPairMetals][kMaxPairSystems];
   auto weights = [&]() {
     for (int p = 0; p < np; ++p) {
@@ -476,12 +477,6 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   for (int a = 0; a < na; ++a) {
     free_metal_[a] = m[a];
     out->m[a] = m[a];
-  }
-  for (int p = 0; p < np; ++p) {
-    for (int j = 0; j <= pair_systems_[p].n; ++j) {
-      out->w[p][j] = w[p][j];
-      out->beta_s[p][j] = bs[p][j];
-    }
   }
 }
 
