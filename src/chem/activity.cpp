@@ -111,7 +111,8 @@ constexpr Hydroxo kHydroxo[] = {{"Ca2+", 2, 1.30, 0.0}, {"Mg2+", 2, 2.58, 0.0}};
 //          log K0 = log K' - A (z_ML^2 - z_M^2 - z_L^2) (sqrt(I)/(1 + sqrt(I)) - 0.3 I).
 //  [N90]   Nordstrom, Plummer, Langmuir, Busenberg, May, Jones and Parkhurst 1990, Revised
 //          chemical equilibrium data for major water-mineral reactions, ACS Symp. Ser. 416,
-//          398, Table II (carbonate and sulfate pairs; dH from kcal/mol x 4.184); recalled,
+//          398, the table of aqueous association reactions (carbonate and sulfate pairs; dH
+//          from kcal/mol x 4.184; the table number not recalled); recalled,
 //          to be verified.
 //  [SM76]  Smith and Martell, Critical Stability Constants, vol. 4 (Inorganic Complexes),
 //          Plenum 1976, phosphoric acid, I = 0; recalled, to be verified.

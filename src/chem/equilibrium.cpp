@@ -369,6 +369,36 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   double (&w)[kMaxPairSystems][kMaxPka + 1] = out->w;
   double (&bs)[kMaxPairSystems][kMaxPka + 1] = out->beta_s;
   double G[kMaxPairMetals][kMaxPairSystems];
+  if (na == 1 && np == 1) {
+    // One metal and one system (the common case): with S = B0 + B1 m (B0 = sum beta_j,
+    // B1 = sum K'_j beta_j, r = B1/B0) and D = 1 + K'_OH [OH-], the balance m (D + T B1/S) = M
+    // is the quadratic D r m^2 + (D + (T - M) r) m - M = 0: its positive root, no iteration.
+    const PairSystem& ps = pair_systems_[0];
+    const double* k = ps.k_eff[0].data();
+    const int n = ps.n;
+    double b0 = 0.0, b1 = 0.0;
+    for (int j = 0; j <= n; ++j) {
+      b0 += beta[0][j];
+      b1 += k[j] * beta[0][j];
+    }
+    const double T = ps.total, M = total[0], D = diag0[0];
+    const double r = b1 / b0;
+    const double qa = D * r, qb = D + (T - M) * r;
+    const double sq = std::sqrt(qb * qb + 4.0 * qa * M);
+    double mm = qb >= 0 ? 2.0 * M / (qb + sq) : (sq - qb) / (2.0 * qa);
+    mm = std::min(mm, M);
+    const double inv = 1.0 / (b0 + b1 * mm);
+    double g = 0.0;
+    for (int j = 0; j <= n; ++j) {
+      bs[0][j] = beta[0][j] * inv;
+      w[0][j] = bs[0][j] * (1.0 + k[j] * mm);
+      g += k[j] * bs[0][j];
+    }
+    out->inv_jacobian = 1.0 / (D + T * g - mm * T * g * g);
+    free_metal_[0] = mm;
+    out->m[0] = mm;
+    return;
+  }
   auto weights = [&]() {
     for (int p = 0; p < np; ++p) {
       const PairSystem& ps = pair_systems_[p];

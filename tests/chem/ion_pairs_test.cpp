@@ -55,6 +55,11 @@ TEST(IonPairs, DisodiumPhosphateByHand) {
   const double k_cond = std::pow(10.0, 0.62) * davies_gamma(1, I, 25.0) * davies_gamma(-2, I, 25.0) /
                         davies_gamma(-1, I, 25.0);
   EXPECT_NEAR(pair->conc_mol_per_L / (na->conc_mol_per_L * hpo4->conc_mol_per_L), k_cond, 1e-9 * k_cond);
+  // Sodium's mass balance: free and in both pairs.
+  const Species* neutral = find(e, "Na.phosphate H2A");
+  ASSERT_TRUE(neutral);
+  EXPECT_NEAR(na->conc_mol_per_L + pair->conc_mol_per_L + neutral->conc_mol_per_L, 0.2, 1e-12);
+  EXPECT_LT(e.mass_residual_rel, 1e-10);
 }
 
 // The mass balances of the metals and the systems, with several metals (the Newton on the free
@@ -103,18 +108,22 @@ TEST(IonPairs, MassBalancesOfMetalsAndSystems) {
 
 // The slope of the charge balance that the Newton steps use: the derivative at fixed free
 // metals plus their response through the mass balances (implicit differentiation), against a
-// central difference of the charge itself.
+// central difference of the charge itself; for several metals and systems (Newton on the free
+// metals) and for one metal with one system (the free metal as the root of a quadratic).
 TEST(IonPairs, ChargeSlopeMatchesCentralDifference) {
   const Library lib = builtin_library();
-  const Mixture m = ion_pair_mixture(lib, {{"Na2HPO4", 0.12}, {"citric-acid", 0.04}, {"CaCl2.2H2O", 0.002},
-                                           {"MgCl2.6H2O", 0.001}, {"sodium-sulfate", 0.01}});
-  EquilibriumModel model(m);
-  model.set_ionic_strength(0.3);
-  for (double pH : {3.0, 5.0, 6.5, 8.0, 11.0}) {
-    const double step = 1e-5;
-    const double numeric = (model.evaluate(pH + step).charge - model.evaluate(pH - step).charge) / (2 * step);
-    const double analytic = model.evaluate(pH).dcharge_dpH;
-    EXPECT_NEAR(analytic, numeric, 1e-6 * std::fabs(numeric)) << "pH " << pH;
+  const Mixture several = ion_pair_mixture(lib, {{"Na2HPO4", 0.12}, {"citric-acid", 0.04}, {"CaCl2.2H2O", 0.002},
+                                                 {"MgCl2.6H2O", 0.001}, {"sodium-sulfate", 0.01}});
+  const Mixture one = ion_pair_mixture(lib, {{"Na2HPO4", 0.1}, {"NaH2PO4", 0.05}});
+  for (const Mixture& m : {several, one}) {
+    EquilibriumModel model(m);
+    model.set_ionic_strength(0.3);
+    for (double pH : {3.0, 5.0, 6.5, 8.0, 11.0}) {
+      const double step = 1e-5;
+      const double numeric = (model.evaluate(pH + step).charge - model.evaluate(pH - step).charge) / (2 * step);
+      const double analytic = model.evaluate(pH).dcharge_dpH;
+      EXPECT_NEAR(analytic, numeric, 1e-6 * std::fabs(numeric)) << "pH " << pH;
+    }
   }
 }
 
