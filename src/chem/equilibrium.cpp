@@ -371,8 +371,8 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   double G[kMaxPairMetals][kMaxPairSystems];
   if (na == 1 && np == 1) {
     // One metal and one system (the common case): with S = B0 + B1 m (B0 = sum beta_j,
-    // B1 = sum K'_j beta_j, r = B1/B0) and D = 1 + K'_OH [OH-], the balance m (D + T B1/S) = M
-    // is the quadratic D r m^2 + (D + (T - M) r) m - M = 0: its positive root, no iteration.
+    // B1 = sum K'_j beta_j) and D = 1 + K'_OH [OH-], the balance m (D + T B1/S) = M is the
+    // quadratic D B1 m^2 + (D B0 + (T - M) B1) m - M B0 = 0: its positive root, no iteration.
     const PairSystem& ps = pair_systems_[0];
     const double* k = ps.k_eff[0].data();
     const int n = ps.n;
@@ -382,10 +382,11 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
       b1 += k[j] * beta[0][j];
     }
     const double T = ps.total, M = total[0], D = diag0[0];
-    const double r = b1 / b0;
-    const double qa = D * r, qb = D + (T - M) * r;
-    const double sq = std::sqrt(qb * qb + 4.0 * qa * M);
-    double mm = qb >= 0 ? 2.0 * M / (qb + sq) : (sq - qb) / (2.0 * qa);
+    // Multiplied through by B0 (divided by it first where B0 is large, against overflow).
+    const double scale = b0 > 1e100 ? 1.0 / b0 : 1.0;
+    const double qa = D * b1 * scale, qb = (D * b0 + (T - M) * b1) * scale, qc = M * b0 * scale;
+    const double sq = std::sqrt(qb * qb + 4.0 * qa * qc);
+    double mm = qb >= 0 ? 2.0 * qc / (qb + sq) : (sq - qb) / (2.0 * qa);
     mm = std::min(mm, M);
     const double inv = 1.0 / (b0 + b1 * mm);
     double g = 0.0;

@@ -150,15 +150,25 @@ void EquilibriumModel::evaluate_pairs(double pH, double h, double oh, double* ch
     *abs_sum += total * za;
     *i2 += total * z2;
     *osm += total;
-    for (const PairTerm& t : ps.terms) {
-      const int zm = pair_metals_[t.metal].z;
-      const double gj = t.k_eff * w.beta_s[p][t.j];
-      const double c = total * gj * w.m[t.metal];
-      g[t.metal][p] += gj;
-      e[t.metal] += total * gj * (t.zl - zb);
-      *i2 += 2.0 * zm * t.zl * c;
-      *osm -= c;
-      *abs_sum -= (std::abs(zm) + std::abs(t.zl) - std::abs(zm + t.zl)) * c;
+    // The pairs of each metal with this system, from the dense table of K' (0: no pair):
+    // c_aj = T K'_aj bs_j m_a.
+    for (int a = 0; a < na; ++a) {
+      const int zm = pair_metals_[a].z;
+      const double* k = ps.k_eff[a].data();
+      double gsum = 0.0, hsum = 0.0, asum = 0.0;
+      for (int j = 0; j <= s.n; ++j) {
+        const double kb = k[j] * w.beta_s[p][j];
+        const int zl = s.z0 - j;
+        gsum += kb;
+        hsum += kb * zl;
+        asum += kb * (std::abs(zm) + std::abs(zl) - std::abs(zm + zl));
+      }
+      const double tm = total * w.m[a];
+      g[a][p] = gsum;
+      e[a] += total * (hsum - zb * gsum);
+      *i2 += 2.0 * zm * tm * hsum;
+      *osm -= tm * gsum;
+      *abs_sum -= tm * asum;
     }
   }
   for (int r = 0; r < na; ++r) {
