@@ -65,13 +65,20 @@ BENCHMARK(closed_system_solve);
 void closed_system_solve_sit(benchmark::State& state) { solve_states(state, ActivityModel::kSit); }
 BENCHMARK(closed_system_solve_sit);
 
+// The same states with Davies coefficients and explicit ion pairs (NaHPO4-, NaH2PO4: the free
+// Na+ from its mass balance at every charge-balance evaluation).
+void closed_system_solve_ion_pairs(benchmark::State& state) { solve_states(state, ActivityModel::kIonPairs); }
+BENCHMARK(closed_system_solve_ion_pairs);
+
 // A formulation at the top of the SIT range: citrate-phosphate (McIlvaine-like, random share of
 // 0.2 M Na2HPO4 against 0.1 M citric acid) with 0-150 mM NaCl and the weak base above at
-// 0.01-5 mg/mL, 5-40 °C, I 0.05-0.75 mol/L; `model` 0 Davies, 1 SIT.
+// 0.01-5 mg/mL, 5-40 °C, I 0.05-0.75 mol/L; `model` 0 Davies, 1 SIT, 2 Davies with ion pairs.
 void citrate_phosphate_saline(benchmark::State& state) {
   const Library lib = builtin_library();
   const Compound base = bench_base();
-  const ActivityModel activity = state.range(0) == 0 ? ActivityModel::kDavies : ActivityModel::kSit;
+  const ActivityModel activity = state.range(0) == 0   ? ActivityModel::kDavies
+                                 : state.range(0) == 1 ? ActivityModel::kSit
+                                                       : ActivityModel::kIonPairs;
   std::mt19937_64 rng(7);
   std::uniform_real_distribution<double> share(0.0, 1.0), nacl(0.0, 0.150), dose_mg(0.01, 5.0),
       temp(5.0, 40.0);
@@ -99,7 +106,7 @@ void citrate_phosphate_saline(benchmark::State& state) {
   }
   state.counters["evaluations_per_state"] = static_cast<double>(evaluations) / states;
 }
-BENCHMARK(citrate_phosphate_saline)->ArgName("model")->Arg(0)->Arg(1);
+BENCHMARK(citrate_phosphate_saline)->ArgName("model")->Arg(0)->Arg(1)->Arg(2);
 
 // Up to three candidate solids: a dibasic base (pKa 6.0 and 9.0, S0 0.1 mg/mL, molar mass
 // 300) with a hydrochloride (1:1, Ksp 1e-3) and a dihydrochloride (1:2, Ksp 1e-5), at random

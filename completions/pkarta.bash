@@ -20,7 +20,7 @@ _pkarta() {
       COMPREPLY=($(compgen -W "text csv json" -- "$cur"))
       return ;;
     --activity)
-      COMPREPLY=($(compgen -W "davies sit truesdell-jones ideal" -- "$cur"))
+      COMPREPLY=($(compgen -W "davies sit truesdell-jones ion-pairs ideal" -- "$cur"))
       return ;;
     --table)
       words=$("${COMP_WORDS[0]}" "$cmd" --help 2>/dev/null |

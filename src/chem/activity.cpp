@@ -101,6 +101,60 @@ struct Hydroxo {
 };
 constexpr Hydroxo kHydroxo[] = {{"Ca2+", 2, 1.30, 0.0}, {"Mg2+", 2, 2.58, 0.0}};
 
+// Ion pairs of the ion-pair model, M + L = ML: log10 K at 25 °C and I = 0 (L/mol) and dH of
+// association (kJ/mol; 0 where the source gives none: K held at every temperature). A system's
+// species is keyed by the system id and its charge. Sources (docs/data-sources.md, "Activity
+// coefficients"):
+//  [MF88]  Migneault and Forcé 1988, J. Solution Chem. 17, 987 (abstract): K(NaHPO4-) =
+//          1.3 +/- 0.3 and K(NaH2PO4) = 0.49 +/- 0.07 L/mol at I = 0.7 mol/L, 25 °C; put at
+//          I = 0 here with the Davies equation (A = 0.5108, log gamma_1 = -0.1254 at I = 0.7):
+//          log K0 = log K' - A (z_ML^2 - z_M^2 - z_L^2) (sqrt(I)/(1 + sqrt(I)) - 0.3 I).
+//  [N90]   Nordstrom, Plummer, Langmuir, Busenberg, May, Jones and Parkhurst 1990, Revised
+//          chemical equilibrium data for major water-mineral reactions, ACS Symp. Ser. 416,
+//          398, the table of aqueous association reactions (carbonate and sulfate pairs; dH
+//          from kcal/mol x 4.184; the table number not recalled); recalled,
+//          to be verified.
+//  [SM76]  Smith and Martell, Critical Stability Constants, vol. 4 (Inorganic Complexes),
+//          Plenum 1976, phosphoric acid, I = 0; recalled, to be verified.
+//  [SM77]  Smith and Martell, Critical Stability Constants, vol. 3 (Other Organic Ligands),
+//          Plenum 1977, citric acid, I = 0.1 mol/L; recalled, to be verified; put at I = 0
+//          with the Davies equation as for [MF88] (A br = 0.1074 at I = 0.1).
+// Not carried (no constant read or recalled): K+ with the phosphate species ([MF88] take its
+// pairing as negligible), Na+ and K+ with PO4 3- and with HCit 2-, K+ with carbonate. Nor
+// Na+ with carbonate: [N90]'s NaCO3- (log K 1.27, dH 37.3 kJ/mol) and NaHCO3 (-0.25), used
+// with Davies coefficients, put the carbonate primary standard (Buck et al. 2002) 0.152 pH
+// low at 25 °C and 0.337 low at 50 °C, where Davies alone is within 0.009: Davies' 0.3 I term
+// already stands for them (docs/model.md, "Activities").
+struct PairConstant {
+  std::string_view metal;
+  int zm;
+  std::string_view system;
+  int zl;
+  double log10_k;
+  double dH;
+};
+constexpr PairConstant kIonPairs[] = {
+    {"Na+", 1, "phosphate", -2, 0.62, 0.0},   // [MF88] 1.3 L/mol at I = 0.7: 0.114 + 4 x 0.1254
+    {"Na+", 1, "phosphate", -1, -0.06, 0.0},  // [MF88] 0.49 L/mol at I = 0.7: -0.310 + 2 x 0.1254
+    {"Na+", 1, "citrate", -3, 1.34, 0.0},     // [SM77] 0.70 at I = 0.1: + 6 x 0.1074
+    {"K+", 1, "citrate", -3, 1.24, 0.0},      // [SM77] 0.60 at I = 0.1: + 6 x 0.1074
+    {"Na+", 1, "sulfate", -2, 0.70, 4.69},    // [N90] dH 1.12 kcal/mol
+    {"K+", 1, "sulfate", -2, 0.85, 9.41},     // [N90] dH 2.25 kcal/mol
+    {"Ca2+", 2, "carbonate", -2, 3.224, 14.83},  // [N90] dH 3.545 kcal/mol
+    {"Ca2+", 2, "carbonate", -1, 1.106, 11.26},  // [N90] dH 2.69 kcal/mol
+    {"Mg2+", 2, "carbonate", -2, 2.98, 11.35},   // [N90] dH 2.713 kcal/mol
+    {"Mg2+", 2, "carbonate", -1, 1.07, 3.31},    // [N90] dH 0.79 kcal/mol
+    {"Ca2+", 2, "sulfate", -2, 2.30, 6.90},      // [N90] dH 1.65 kcal/mol
+    {"Mg2+", 2, "sulfate", -2, 2.37, 19.04},     // [N90] dH 4.55 kcal/mol
+    {"Ca2+", 2, "phosphate", -3, 6.46, 0.0},     // [SM76]
+    {"Ca2+", 2, "phosphate", -2, 2.74, 0.0},     // [SM76]
+    {"Ca2+", 2, "phosphate", -1, 1.41, 0.0},     // [SM76]
+    {"Mg2+", 2, "phosphate", -2, 2.87, 0.0},     // [SM76]
+    {"Mg2+", 2, "phosphate", -1, 1.51, 0.0},     // [SM76]
+    {"Ca2+", 2, "citrate", -3, 4.79, 0.0},       // [SM77] 3.50 at I = 0.1: + 12 x 0.1074
+    {"Mg2+", 2, "citrate", -3, 4.66, 0.0},       // [SM77] 3.37 at I = 0.1: + 12 x 0.1074
+};
+
 /// SIT's Ba, kg^1/2 mol^-1/2, the same at every temperature.
 constexpr double kSitBa = 1.5;
 
@@ -112,6 +166,7 @@ std::string activity_model_id(ActivityModel model) {
     case ActivityModel::kIdeal: return "ideal";
     case ActivityModel::kSit: return "sit";
     case ActivityModel::kTruesdellJones: return "truesdell-jones";
+    case ActivityModel::kIonPairs: return "ion-pairs";
   }
   return "davies";
 }
@@ -122,6 +177,7 @@ std::string activity_model_label(ActivityModel model) {
     case ActivityModel::kIdeal: return "ideal (activity coefficients 1)";
     case ActivityModel::kSit: return "specific ion interaction (SIT)";
     case ActivityModel::kTruesdellJones: return "extended Debye-Hückel (Truesdell-Jones)";
+    case ActivityModel::kIonPairs: return "Davies with ion pairs";
   }
   return "Davies";
 }
@@ -133,15 +189,16 @@ std::string activity_words(ActivityModel model) {
 
 std::optional<ActivityModel> parse_activity_model(const std::string& name) {
   for (ActivityModel m : {ActivityModel::kDavies, ActivityModel::kSit,
-                          ActivityModel::kTruesdellJones, ActivityModel::kIdeal}) {
+                          ActivityModel::kTruesdellJones, ActivityModel::kIonPairs,
+                          ActivityModel::kIdeal}) {
     if (name == activity_model_id(m)) return m;
   }
   return std::nullopt;
 }
 
-std::string activity_model_names() { return "davies|sit|truesdell-jones|ideal"; }
+std::string activity_model_names() { return "davies|sit|truesdell-jones|ion-pairs|ideal"; }
 
-double HydroxoComplex::k_at(double temperature_C) const {
+double AssociationConstant::k_at(double temperature_C) const {
   const double k = std::pow(10.0, log10_k);
   if (dH_kJ_per_mol == 0.0) return k;
   const double T = kelvin(temperature_C);
@@ -151,6 +208,16 @@ double HydroxoComplex::k_at(double temperature_C) const {
 std::optional<HydroxoComplex> hydroxo_complex(const std::string& ion, int charge) {
   for (const Hydroxo& h : kHydroxo) {
     if (h.z == charge && ion == h.ion) return HydroxoComplex{h.log10_k, h.dH};
+  }
+  return std::nullopt;
+}
+
+std::optional<AssociationConstant> ion_pair_constant(const std::string& metal, int metal_charge,
+                                                     const std::string& system, int ligand_charge) {
+  for (const PairConstant& p : kIonPairs) {
+    if (p.zm == metal_charge && p.zl == ligand_charge && metal == p.metal && system == p.system) {
+      return AssociationConstant{p.log10_k, p.dH};
+    }
   }
   return std::nullopt;
 }
@@ -193,6 +260,7 @@ LogGammaTerms ActivityMedium::terms(const std::string& key, int charge) const {
   switch (model_) {
     case ActivityModel::kIdeal:  // the solver sets every coefficient to 1 and does not ask
     case ActivityModel::kDavies:
+    case ActivityModel::kIonPairs:
       return davies;
     case ActivityModel::kSit:
       t.ba = kSitBa;

@@ -230,6 +230,8 @@ EquilibriumModel::EquilibriumModel(const Mixture& m) {
   }
   per_species_ = m.activity == ActivityModel::kSit || m.activity == ActivityModel::kTruesdellJones;
   if (per_species_) prepare_activity_terms(m);
+  ion_pair_model_ = m.activity == ActivityModel::kIonPairs;
+  if (ion_pair_model_) prepare_ion_pairs(m);
   double i0 = 0.0;
   for (const IonC& i : ions_) i0 += 0.5 * i.charge * i.charge * i.conc;
   set_ionic_strength(i0);
@@ -282,7 +284,283 @@ void EquilibriumModel::prepare_activity_terms(const Mixture& m) {
   }
 }
 
+// The ion-pair model (docs/model.md, "Activities"): every strong cation of the mixture with a
+// hydroxo complex or a pair with a species of a system present becomes a metal of the pair
+// mass balances; every system with a pair gets its terms.
+void EquilibriumModel::prepare_ion_pairs(const Mixture& m) {
+  auto metal_index = [&](int t) {
+    for (std::size_t a = 0; a < pair_metals_.size(); ++a) {
+      if (pair_metals_[a].ion == t) return static_cast<int>(a);
+    }
+    if (static_cast<int>(pair_metals_.size()) >= kMaxPairMetals) {
+      throw InputError("more than " + std::to_string(kMaxPairMetals) +
+                       " metal ions form ion pairs; the ion-pair model supports that many");
+    }
+    PairMetal pm;
+    pm.ion = t;
+    pm.z = ions_[t].charge;
+    pair_metals_.push_back(pm);
+    return static_cast<int>(pair_metals_.size()) - 1;
+  };
+  for (std::size_t t = 0; t < ions_.size(); ++t) {
+    if (ions_[t].charge <= 0 || !(ions_[t].conc > 0)) continue;
+    const std::optional<HydroxoComplex> hc = hydroxo_complex(m.ions[t].id, ions_[t].charge);
+    if (hc) pair_metals_[metal_index(static_cast<int>(t))].k_oh = hc->k_at(temperature_C_);
+  }
+  sys_pair_.assign(systems_.size(), -1);
+  for (std::size_t k = 0; k < systems_.size(); ++k) {
+    if (!(systems_[k].total > 0)) continue;
+    PairSystem ps;
+    ps.sys = static_cast<int>(k);
+    ps.n = systems_[k].n;
+    ps.total = systems_[k].total;
+    for (int j = 0; j <= systems_[k].n; ++j) {
+      const int zl = systems_[k].z0 - j;
+      if (zl >= 0) continue;
+      for (std::size_t t = 0; t < ions_.size(); ++t) {
+        if (ions_[t].charge <= 0 || !(ions_[t].conc > 0)) continue;
+        const std::optional<AssociationConstant> c =
+            ion_pair_constant(m.ions[t].id, ions_[t].charge, m.systems[k].system.id, zl);
+        if (!c) continue;
+        PairTerm term;
+        term.metal = metal_index(static_cast<int>(t));
+        term.j = j;
+        term.zl = zl;
+        term.k = c->k_at(temperature_C_);
+        ps.terms.push_back(term);
+      }
+    }
+    if (ps.terms.empty()) continue;
+    if (static_cast<int>(pair_systems_.size()) >= kMaxPairSystems) {
+      throw InputError("more than " + std::to_string(kMaxPairSystems) +
+                       " acid-base systems form ion pairs; the ion-pair model supports that many");
+    }
+    sys_pair_[k] = static_cast<int>(pair_systems_.size());
+    pair_systems_.push_back(std::move(ps));
+  }
+  for (std::size_t a = 0; a < pair_metals_.size(); ++a) free_metal_[a] = ions_[pair_metals_[a].ion].conc;
+}
+
+void EquilibriumModel::update_pair_constants() {
+  for (PairMetal& a : pair_metals_) a.k_oh_eff = a.k_oh * gamma(a.z) * gamma(-1) / gamma(a.z - 1);
+  for (PairSystem& ps : pair_systems_) {
+    for (PairTerm& t : ps.terms) {
+      const int z = pair_metals_[t.metal].z;
+      t.k_eff = t.k * gamma(z) * gamma(t.zl) / gamma(z + t.zl);
+      ps.k_eff[t.metal][t.j] = t.k_eff;
+    }
+  }
+}
+
+// Free metals m_a from the mass balances F_a = m_a (1 + K_OH' [OH-] + sum_p T_p G_ap) - M_a = 0,
+// G_ap = sum_j K'_aj beta_j / S_p, S_p = sum_j beta_j P_j, P_j = 1 + sum_a K'_aj m_a, by Newton
+// with J_ab = delta_ab (1 + K_OH' [OH-] + sum_p T_p G_ap) - m_a sum_p T_p G_ap G_bp.
+void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out) const {
+  const int na = static_cast<int>(pair_metals_.size());
+  const int np = static_cast<int>(pair_systems_.size());
+  out->oh = oh;
+  out->inv_jacobian = 0.0;
+  const double inv_h = 1.0 / h;
+  double beta[kMaxPairSystems][kMaxPka + 1];
+  for (int p = 0; p < np; ++p) {
+    const Sys& s = systems_[pair_systems_[p].sys];
+    double b = 1.0;
+    beta[p][0] = 1.0;
+    for (int i = 0; i < s.n; ++i) {
+      b *= s.ka_eff[i] * inv_h;
+      beta[p][i + 1] = b;
+    }
+  }
+  double m[kMaxPairMetals], total[kMaxPairMetals], diag0[kMaxPairMetals];
+  for (int a = 0; a < na; ++a) {
+    total[a] = ions_[pair_metals_[a].ion].conc;
+    diag0[a] = 1.0 + pair_metals_[a].k_oh_eff * oh;
+    const double guess = free_metal_[a] + free_metal_slope_[a] * (pH - free_metal_pH_);
+    m[a] = guess > 0 && guess <= total[a] ? guess
+           : free_metal_[a] > 0 && free_metal_[a] <= total[a] ? free_metal_[a] : total[a];
+  }
+  free_metal_pH_ = pH;
+  // The weights at m: per system the fractions w and free shares bs, and G_ap.
+  double (&w)[kMaxPairSystems][kMaxPka + 1] = out->w;
+  double (&bs)[kMaxPairSystems][kMaxPka + 1] = out->beta_s;
+  double G[kMaxPairMetals][kMaxPairSystems];
+  if (na == 1 && np == 1) {
+    // One metal and one system (the common case): with S = B0 + B1 m (B0 = sum beta_j,
+    // B1 = sum K'_j beta_j) and D = 1 + K'_OH [OH-], the balance m (D + T B1/S) = M is the
+    // quadratic D B1 m^2 + (D B0 + (T - M) B1) m - M B0 = 0: its positive root, no iteration.
+    const PairSystem& ps = pair_systems_[0];
+    const double* k = ps.k_eff[0].data();
+    const int n = ps.n;
+    double b0 = 0.0, b1 = 0.0;
+    for (int j = 0; j <= n; ++j) {
+      b0 += beta[0][j];
+      b1 += k[j] * beta[0][j];
+    }
+    const double T = ps.total, M = total[0], D = diag0[0];
+    // Multiplied through by B0 (divided by it first where B0 is large, against overflow).
+    const double scale = b0 > 1e100 ? 1.0 / b0 : 1.0;
+    const double qa = D * b1 * scale, qb = (D * b0 + (T - M) * b1) * scale, qc = M * b0 * scale;
+    const double sq = std::sqrt(qb * qb + 4.0 * qa * qc);
+    double mm = qb >= 0 ? 2.0 * qc / (qb + sq) : (sq - qb) / (2.0 * qa);
+    mm = std::min(mm, M);
+    const double inv = 1.0 / (b0 + b1 * mm);
+    double g = 0.0;
+    for (int j = 0; j <= n; ++j) {
+      bs[0][j] = beta[0][j] * inv;
+      w[0][j] = bs[0][j] * (1.0 + k[j] * mm);
+      g += k[j] * bs[0][j];
+    }
+    out->inv_jacobian = 1.0 / (D + T * g - mm * T * g * g);
+    free_metal_[0] = mm;
+    out->m[0] = mm;
+    return;
+  }
+  auto weights = [&]() {
+    for (int p = 0; p < np; ++p) {
+      const PairSystem& ps = pair_systems_[p];
+      const int n = ps.n;
+      double P[kMaxPka + 1];
+      double sum = 0.0;
+      if (na == 1) {  // one metal: P_j = 1 + K'_j m, G = sum_j K'_j bs_j
+        const double* k = ps.k_eff[0].data();
+        for (int j = 0; j <= n; ++j) {
+          P[j] = 1.0 + k[j] * m[0];
+          sum += beta[p][j] * P[j];
+        }
+        const double inv = 1.0 / sum;
+        double g = 0.0;
+        for (int j = 0; j <= n; ++j) {
+          bs[p][j] = beta[p][j] * inv;
+          w[p][j] = bs[p][j] * P[j];
+          g += k[j] * bs[p][j];
+        }
+        G[0][p] = g;
+        continue;
+      }
+      for (int j = 0; j <= n; ++j) {
+        double pj = 1.0;
+        for (int a = 0; a < na; ++a) pj += ps.k_eff[a][j] * m[a];
+        P[j] = pj;
+        sum += beta[p][j] * pj;
+      }
+      const double inv = 1.0 / sum;
+      for (int j = 0; j <= n; ++j) {
+        bs[p][j] = beta[p][j] * inv;
+        w[p][j] = bs[p][j] * P[j];
+      }
+      for (int a = 0; a < na; ++a) {
+        double g = 0.0;
+        for (int j = 0; j <= n; ++j) g += ps.k_eff[a][j] * bs[p][j];
+        G[a][p] = g;
+      }
+    }
+  };
+  // The last step, when it is below kStepTol of the total, is carried into the weights to first
+  // order (dw_j/dm_a = K'_aj bs_j - w_j G_a, dbs_j/dm_a = -bs_j G_a) instead of a new pass: what
+  // is left after it, of both the metal balance (quadratic convergence) and the weights, is of
+  // the order of its square, below rounding.
+  constexpr double kStepTol = 1e-8;
+  auto carry = [&](const double* dm) {
+    for (int p = 0; p < np; ++p) {
+      const PairSystem& ps = pair_systems_[p];
+      double gd = 0.0;
+      for (int a = 0; a < na; ++a) gd += G[a][p] * dm[a];
+      for (int j = 0; j <= ps.n; ++j) {
+        double kd = 0.0;
+        for (int a = 0; a < na; ++a) kd += ps.k_eff[a][j] * dm[a];
+        w[p][j] += bs[p][j] * kd - w[p][j] * gd;
+        bs[p][j] -= bs[p][j] * gd;
+      }
+    }
+    for (int a = 0; a < na; ++a) m[a] += dm[a];
+  };
+  bool current = false;  // the weights are those of m
+  for (int it = 0; it < 100; ++it) {
+    weights();
+    double dm[kMaxPairMetals];
+    if (na == 1) {  // one metal (the common case): scalar Newton
+      double diag = diag0[0], off = 0.0;
+      for (int p = 0; p < np; ++p) {
+        const double tg = pair_systems_[p].total * G[0][p];
+        diag += tg;
+        off += tg * G[0][p];
+      }
+      out->inv_jacobian = 1.0 / (diag - m[0] * off);
+      dm[0] = (total[0] - m[0] * diag) * out->inv_jacobian;
+    } else {
+      double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1];
+      for (int r = 0; r < na; ++r) {
+        double diag = diag0[r];
+        for (int p = 0; p < np; ++p) diag += pair_systems_[p].total * G[r][p];
+        for (int c = 0; c < na; ++c) {
+          double off = 0.0;
+          for (int p = 0; p < np; ++p) off += pair_systems_[p].total * G[r][p] * G[c][p];
+          a[r][c] = (r == c ? diag : 0.0) - m[r] * off;
+        }
+        a[r][na] = total[r] - m[r] * diag;  // -F
+      }
+      if (!equilibrium_detail::solve_dense(na, a, dm)) {
+        current = true;
+        break;
+      }
+    }
+    bool small = true;
+    for (int r = 0; r < na; ++r) {
+      double next = m[r] + dm[r];
+      if (!(next > 0)) next = 0.1 * m[r];
+      if (next > total[r]) next = total[r];
+      dm[r] = next - m[r];
+      if (std::fabs(dm[r]) > kStepTol * total[r]) small = false;
+    }
+    if (small) {
+      carry(dm);
+      current = true;
+      break;
+    }
+    for (int r = 0; r < na; ++r) m[r] += dm[r];
+  }
+  if (!current) weights();
+  for (int a = 0; a < na; ++a) {
+    free_metal_[a] = m[a];
+    out->m[a] = m[a];
+  }
+}
+
+void EquilibriumModel::ion_pair_state(double pH, std::vector<IonPairSpecies>* pairs,
+                                      std::vector<double>* free_ion) const {
+  pairs->clear();
+  free_ion->resize(ions_.size());
+  for (std::size_t t = 0; t < ions_.size(); ++t) (*free_ion)[t] = ions_[t].conc;
+  if (pair_metals_.empty()) return;
+  PairWork w;
+  const double h = std::pow(10.0, -pH);
+  solve_pairs(pH, h, kw_ / (h * gamma_oh_), &w);
+  for (std::size_t a = 0; a < pair_metals_.size(); ++a) {
+    const PairMetal& pm = pair_metals_[a];
+    (*free_ion)[pm.ion] = w.m[a];
+    if (pm.k_oh > 0) pairs->push_back({pm.ion, -1, -1, pm.z - 1, w.m[a] * pm.k_oh_eff * w.oh});
+  }
+  for (std::size_t p = 0; p < pair_systems_.size(); ++p) {
+    const PairSystem& ps = pair_systems_[p];
+    const double total = systems_[ps.sys].total;
+    for (const PairTerm& t : ps.terms) {
+      const PairMetal& pm = pair_metals_[t.metal];
+      pairs->push_back({pm.ion, ps.sys, t.j, pm.z + t.zl,
+                        total * t.k_eff * w.beta_s[p][t.j] * w.m[t.metal]});
+    }
+  }
+}
+
 double EquilibriumModel::hydroxo_paired(int ion, double pH) const {
+  if (ion_pair_model_) {
+    std::vector<IonPairSpecies> pairs;
+    std::vector<double> free_ion;
+    ion_pair_state(pH, &pairs, &free_ion);
+    for (const IonPairSpecies& q : pairs) {
+      if (q.ion == ion && q.system < 0) return q.conc_mol_per_L;
+    }
+    return 0.0;
+  }
   for (const HydroxoPair& q : pairs_) {
     if (q.ion != ion) continue;
     const double kx = q.k_eff * kw_ / (std::pow(10.0, -pH) * gamma_oh_);
@@ -339,6 +617,7 @@ void EquilibriumModel::set_ionic_strength(double I) {
   gamma_h_ = gamma_oh_ = gamma_[kGammaOffset + 1];
   for (IonC& i : ions_) i.gamma = gamma(i.charge);
   update_effective_constants();
+  if (ion_pair_model_) update_pair_constants();
 }
 
 double EquilibriumModel::species_gamma(int system, int j) const {
@@ -411,6 +690,15 @@ double EquilibriumModel::moments(const Sys& s, double h, double* alpha, double* 
 }
 
 void EquilibriumModel::fractions(int system, double pH, double* alpha) const {
+  if (system >= 0 && !sys_pair_.empty() && sys_pair_[system] >= 0) {
+    // Ion pairs: the fractions of each protonation state, free and paired together.
+    PairWork w;
+    const double h = std::pow(10.0, -pH);
+  solve_pairs(pH, h, kw_ / (h * gamma_oh_), &w);
+    const int p = sys_pair_[system];
+    for (int j = 0; j <= systems_[system].n; ++j) alpha[j] = w.w[p][j];
+    return;
+  }
   double zb, z2;
   moments(system < 0 ? drug_ : systems_[system], std::pow(10.0, -pH), alpha, &zb, &z2);
 }

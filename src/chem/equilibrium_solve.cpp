@@ -36,7 +36,9 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   double alpha[kMaxPka + 1];
   // The strong ions' sums are fixed with the model.
   double charge = ions_charge_, dsum = 0.0, abs_sum = ions_abs_, i2 = ions_z2_, osm = ions_n_;
-  for (const Sys& s : systems_) {
+  for (std::size_t k = 0; k < systems_.size(); ++k) {
+    if (!sys_pair_.empty() && sys_pair_[k] >= 0) continue;  // below, with its ion pairs
+    const Sys& s = systems_[k];
     double zb, z2;
     const double za = moments(s, h, alpha, &zb, &z2);
     charge += s.total * zb;
@@ -82,7 +84,13 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   }
   const double hc = h / gamma_h_;
   const double oh = kw_ / (h * gamma_oh_);
-  if (pairs_.empty()) {
+  if (!pair_metals_.empty()) {
+    evaluate_pairs(pH, h, oh, &charge, &dsum, &abs_sum, &i2, &osm);
+    charge += hc - oh;
+    dsum += hc + oh;
+    abs_sum += hc + oh;
+    i2 += hc + oh;
+  } else if (pairs_.empty()) {
     charge += hc - oh;
     dsum += hc + oh;
     abs_sum += hc + oh;
@@ -110,6 +118,100 @@ EquilibriumModel::Evaluation EquilibriumModel::evaluate(double pH) const {
   ev.ionic_strength = 0.5 * i2;
   ev.osmolarity = osm;
   return ev;
+}
+
+// The ion-pair model's share of the charge balance (docs/model.md, "Activities"): the systems
+// with pairs, at the free metals of their mass balances at h, and the hydroxo complexes. Each
+// system counts at its ligand charges (a pair's metal is in the metal's total), so a pair
+// changes the charge balance only through the distribution; it changes I by 2 z_M z_L c and
+// takes one particle. The slope is that at fixed free metals plus E . dm/dln h, where
+// E_a = d(charge)/dm_a = sum_p T_p sum_j K'_aj beta_j/S_p (z_j - zbar_p) - K_OH' [OH-] is also
+// dF_a/dln h over m_a, so dm/dln h = -J^-1 (m E).
+void EquilibriumModel::evaluate_pairs(double pH, double h, double oh, double* charge, double* dsum,
+                                      double* abs_sum, double* i2, double* osm) const {
+  PairWork w;
+  solve_pairs(pH, h, oh, &w);
+  const int na = static_cast<int>(pair_metals_.size());
+  const int np = static_cast<int>(pair_systems_.size());
+  double e[kMaxPairMetals];
+  double g[kMaxPairMetals][kMaxPairSystems];
+  for (int r = 0; r < na; ++r) {
+    e[r] = 0.0;
+    for (int p = 0; p < np; ++p) g[r][p] = 0.0;
+  }
+  for (int p = 0; p < np; ++p) {
+    const PairSystem& ps = pair_systems_[p];
+    const Sys& s = systems_[ps.sys];
+    const double total = s.total;
+    double zb = 0.0, z2 = 0.0, za = 0.0;
+    for (int j = 0; j <= s.n; ++j) {
+      const double z = s.z0 - j;
+      zb += z * w.w[p][j];
+      z2 += z * z * w.w[p][j];
+      za += std::fabs(z) * w.w[p][j];
+    }
+    *charge += total * zb;
+    *dsum += total * (z2 - zb * zb);
+    *abs_sum += total * za;
+    *i2 += total * z2;
+    *osm += total;
+    // The pairs of each metal with this system, from the dense table of K' (0: no pair):
+    // c_aj = T K'_aj bs_j m_a.
+    for (int a = 0; a < na; ++a) {
+      const int zm = pair_metals_[a].z;
+      const double* k = ps.k_eff[a].data();
+      double gsum = 0.0, hsum = 0.0, asum = 0.0;
+      for (int j = 0; j <= s.n; ++j) {
+        const double kb = k[j] * w.beta_s[p][j];
+        const int zl = s.z0 - j;
+        gsum += kb;
+        hsum += kb * zl;
+        asum += kb * (std::abs(zm) + std::abs(zl) - std::abs(zm + zl));
+      }
+      const double tm = total * w.m[a];
+      g[a][p] = gsum;
+      e[a] += total * (hsum - zb * gsum);
+      *i2 += 2.0 * zm * tm * hsum;
+      *osm -= tm * gsum;
+      *abs_sum -= tm * asum;
+    }
+  }
+  for (int r = 0; r < na; ++r) {
+    const PairMetal& pm = pair_metals_[r];
+    const double koh = pm.k_oh_eff * w.oh;
+    const double c_oh = w.m[r] * koh;  // MOH: its hydroxide is not in [OH-]
+    *charge -= c_oh;
+    *dsum += c_oh;
+    *abs_sum -= c_oh;
+    *i2 += (1.0 - 2.0 * pm.z) * c_oh;
+    e[r] -= koh;
+  }
+  double x[kMaxPairMetals];
+  bool have_x = false;
+  if (na == 1 && w.inv_jacobian != 0.0) {
+    // One metal: J is the Newton derivative of the last step (at m within 1e-8 of the total).
+    x[0] = w.m[0] * e[0] * w.inv_jacobian;
+    have_x = true;
+  } else {
+    double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1];
+    for (int r = 0; r < na; ++r) {
+      double diag = 1.0 + pair_metals_[r].k_oh_eff * w.oh;
+      for (int p = 0; p < np; ++p) diag += pair_systems_[p].total * g[r][p];
+      for (int c = 0; c < na; ++c) {
+        double off = 0.0;
+        for (int p = 0; p < np; ++p) off += pair_systems_[p].total * g[r][p] * g[c][p];
+        a[r][c] = (r == c ? diag : 0.0) - w.m[r] * off;
+      }
+      a[r][na] = w.m[r] * e[r];
+    }
+    have_x = equilibrium_detail::solve_dense(na, a, x);
+  }
+  if (have_x) {
+    for (int r = 0; r < na; ++r) {
+      *dsum -= e[r] * x[r];
+      free_metal_slope_[r] = kLn10 * x[r];  // dm/dpH = -ln10 dm/dln h = ln10 x
+    }
+  }
 }
 
 namespace {
@@ -317,6 +419,9 @@ double add_solution_species(const Mixture& mixture, const EquilibriumModel& mode
                             const EquilibriumModel::Partition& p, double pH, Equilibrium* r) {
   double alpha[kMaxPka + 1];
   double mass_res = 0.0;
+  std::vector<EquilibriumModel::IonPairSpecies> pairs;
+  std::vector<double> free_ion;
+  if (model.has_ion_pairs()) model.ion_pair_state(pH, &pairs, &free_ion);
   for (int k = 0; k < model.num_systems(); ++k) {
     const SystemAmount& sa = mixture.systems[k];
     model.fractions(k, pH, alpha);
@@ -328,8 +433,12 @@ double add_solution_species(const Mixture& mixture, const EquilibriumModel& mode
       const int z = sa.system.charge_of(j);
       const double c = dissolved * alpha[j];
       sum += c;
-      r->species.push_back({sa.system.id + " " + sa.system.species_label(j), sa.system.id, z, c,
-                            model.species_gamma(k, j)});
+      double paired = 0.0;  // ion pairs of this species, listed with their metals
+      for (const EquilibriumModel::IonPairSpecies& q : pairs) {
+        if (q.system == k && q.j == j) paired += q.conc_mol_per_L;
+      }
+      r->species.push_back({sa.system.id + " " + sa.system.species_label(j), sa.system.id, z,
+                            std::max(0.0, c - paired), model.species_gamma(k, j)});
     }
     if (sa.total_mol_per_L > 0) {
       mass_res = std::max(mass_res, std::fabs(sum + removed - sa.total_mol_per_L) / sa.total_mol_per_L);
@@ -338,6 +447,26 @@ double add_solution_species(const Mixture& mixture, const EquilibriumModel& mode
   for (std::size_t t = 0; t < mixture.ions.size(); ++t) {
     const IonAmount& i = mixture.ions[t];
     // Clamped: a counterion precipitated to exhaustion may round to just below zero.
+    if (model.has_ion_pairs()) {
+      // The free ion, then each of its pairs: "CaOH+", and e.g. "Na.phosphate HA-" for
+      // Na+ + phosphate HA2-.
+      const double c = std::max(0.0, free_ion[t] - model.ion_removed(p, static_cast<int>(t)));
+      r->species.push_back({i.id, "", i.charge, c, model.ion_gamma(static_cast<int>(t))});
+      const std::string metal = i.id.substr(0, i.id.find_first_of("+0123456789"));
+      for (const EquilibriumModel::IonPairSpecies& q : pairs) {
+        if (q.ion != static_cast<int>(t)) continue;
+        std::string name = metal + "OH+";
+        if (q.system >= 0) {
+          const AcidBaseSystem& sys = mixture.systems[q.system].system;
+          const int hn = static_cast<int>(sys.pkas.size()) - q.j;
+          name = metal + "." + sys.id + " " + (hn > 1 ? "H" + std::to_string(hn) : hn == 1 ? "H" : "") + "A";
+          const int m = std::abs(q.charge);
+          if (q.charge != 0) name += (m > 1 ? std::to_string(m) : "") + (q.charge < 0 ? "-" : "+");
+        }
+        r->species.push_back({name, "", q.charge, q.conc_mol_per_L, model.gamma(q.charge)});
+      }
+      continue;
+    }
     const double paired = model.hydroxo_paired(static_cast<int>(t), pH);
     const double c = std::max(0.0, i.conc_mol_per_L - model.ion_removed(p, static_cast<int>(t)) - paired);
     r->species.push_back({i.id, "", i.charge, c, model.ion_gamma(static_cast<int>(t))});
@@ -462,7 +591,8 @@ void add_range_warnings(const Mixture& mixture, Equilibrium* r) {
     r->warnings.push_back("ionic strength above " + fixed(kDaviesMaxIonicStrength, 1) +
                           " mol/L: the Davies equation is outside its range");
   }
-  if ((mixture.activity == ActivityModel::kSit || mixture.activity == ActivityModel::kTruesdellJones) &&
+  if ((mixture.activity == ActivityModel::kSit || mixture.activity == ActivityModel::kTruesdellJones ||
+       mixture.activity == ActivityModel::kIonPairs) &&
       r->ionic_strength_mol_per_L > kCheckedMaxIonicStrength) {
     r->warnings.push_back("ionic strength above " + fixed(kCheckedMaxIonicStrength, 1) + " mol/L: beyond the range in which the " +
                           model_words(mixture.activity) + " was checked against published buffer tables");

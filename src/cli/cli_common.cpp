@@ -201,7 +201,9 @@ void add_activity_options(po::options_description& desc, ActivityOptions& a) {
       ("activity", po::value(&a.activity),
        ("activity model: " + activity_model_names() + " (default " +
         activity_model_id(kDefaultActivityModel) + "; sit: specific ion interaction, for ionic "
-        "strength up to " + fixed(kCheckedMaxIonicStrength, 1) + " mol/L; ideal: the same as --ideal)").c_str())
+        "strength up to " + fixed(kCheckedMaxIonicStrength, 1) + " mol/L; ion-pairs: Davies with the "
+        "ion pairs of Na+, K+, Ca2+ and Mg2+, up to " + fixed(kCheckedMaxIonicStrength, 1) +
+        " mol/L; ideal: the same as --ideal)").c_str())
       ("ideal", po::bool_switch(&a.ideal), "activity coefficients 1 (no Davies correction)");
 }
 

@@ -170,7 +170,7 @@ TEST_F(BufferTables, EveryModelAgainstEveryTable) {
   for (const Table& t : tables()) {
     const bool calcium = std::string(t.name).rfind("Ca(OH)2", 0) == 0;
     Stats davies;
-    for (ActivityModel m : {ActivityModel::kDavies, ActivityModel::kSit, ActivityModel::kTruesdellJones}) {
+    for (ActivityModel m : {ActivityModel::kDavies, ActivityModel::kSit, ActivityModel::kTruesdellJones, ActivityModel::kIonPairs}) {
       const double assert_below = m == ActivityModel::kSit ? 1.0
                                   : m == ActivityModel::kDavies && !calcium ? 0.15
                                                                             : -1.0;

@@ -1,12 +1,15 @@
-// Activity-coefficient models of the solver: Davies, specific ion interaction (SIT) and the
-// extended Debye-Hückel equation with ion-size and b parameters (Truesdell-Jones).
+// Activity-coefficient models of the solver: Davies, specific ion interaction (SIT), the
+// extended Debye-Hückel equation with ion-size and b parameters (Truesdell-Jones), and Davies
+// with explicit ion pairs of the metal ions with the anions of the acid-base systems.
 //
 // Every model is written in one form per species i of charge z (I the ionic strength):
 //   log10 gamma_i = -A z^2 sqrt(I) / (1 + Ba_i sqrt(I)) + b_i I + c_i
 // Davies: Ba = 1, b = 0.3 A z^2, c = 0. SIT: Ba = 1.5 (kg/mol)^1/2, b = 0, c = sum_k eps(i,k)
 // m_k over the strong ions k of opposite charge. Truesdell-Jones: Ba = B(T) a_i (a_i the ion
 // size, Kielland 1937), b_i from Truesdell and Jones 1974 (0 where they give none), c = 0;
-// species without published parameters take the Davies form. Model and sources:
+// species without published parameters take the Davies form. Ion pairs: every species (pairs
+// too) takes the Davies form, and the association constants below make the pairs species of
+// the mass balances of both the metal and the system. Model and sources:
 // docs/model.md, "Activities"; docs/data-sources.md.
 #ifndef PKARTA_ACTIVITY_H_
 #define PKARTA_ACTIVITY_H_
@@ -17,9 +20,10 @@
 
 namespace pkarta {
 
-enum class ActivityModel { kDavies, kIdeal, kSit, kTruesdellJones };
+enum class ActivityModel { kDavies, kIdeal, kSit, kTruesdellJones, kIonPairs };
 
-/// The command-line and JSON name of a model: "davies", "ideal", "sit", "truesdell-jones".
+/// The command-line and JSON name of a model: "davies", "ideal", "sit", "truesdell-jones",
+/// "ion-pairs".
 std::string activity_model_id(ActivityModel model);
 /// A model named in words for notes and reports, e.g. "specific ion interaction (SIT)".
 std::string activity_model_label(ActivityModel model);
@@ -76,17 +80,26 @@ class ActivityMedium {
   std::vector<MediumIon> ions_;
 };
 
-/// A metal ion's first hydroxo complex M(2+) + OH- = MOH+, which the models with specific terms
-/// carry with the water equilibrium: log10 K at 25 °C and I = 0, and its enthalpy (kJ/mol, 0
-/// when not known; van 't Hoff). Sources: docs/data-sources.md, "Activity coefficients".
-struct HydroxoComplex {
+/// An association constant M + L = ML: log10 K at 25 °C and I = 0 (K in L/mol), and the
+/// enthalpy of association (kJ/mol, 0 when not known: K held at every temperature).
+struct AssociationConstant {
   double log10_k = 0.0;
   double dH_kJ_per_mol = 0.0;
   /// K at temperature T (van 't Hoff, constant dH).
   double k_at(double temperature_C) const;
 };
+/// A metal ion's first hydroxo complex M(2+) + OH- = MOH+, which the models with specific terms
+/// and the ion-pair model carry with the water equilibrium. Sources: docs/data-sources.md,
+/// "Activity coefficients".
+using HydroxoComplex = AssociationConstant;
 /// The hydroxo complex of a strong ion (by id and charge), or nullopt when none is modelled.
 std::optional<HydroxoComplex> hydroxo_complex(const std::string& ion, int charge);
+/// The ion pair of the ion-pair model between a metal ion (by id and charge, e.g. "Na+", 1)
+/// and the species of charge `ligand_charge` of an acid-base system (by id, e.g. "phosphate",
+/// -2 for HPO4 2-), or nullopt when the model has none. Sources: docs/data-sources.md,
+/// "Activity coefficients".
+std::optional<AssociationConstant> ion_pair_constant(const std::string& metal, int metal_charge,
+                                                     const std::string& system, int ligand_charge);
 
 /// Debye-Hückel B (1/angstrom) at temperature T: 50.29 sqrt(rho / (eps T)), rho in g/cm3;
 /// about 0.3288 at 25 °C.

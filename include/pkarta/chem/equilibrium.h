@@ -183,6 +183,20 @@ class EquilibriumModel {
   /// Strong ion t held in its hydroxo complex (CaOH+, MgOH+; models with specific terms) at
   /// pH, mol/L; 0 for other ions and models.
   double hydroxo_paired(int ion, double pH) const;
+  /// The ion-pair model: one ion pair (or hydroxo complex) of a state, metal ion t of the
+  /// mixture with species j of system k (k = -1, j = -1: the hydroxo complex MOH), mol/L.
+  struct IonPairSpecies {
+    int ion = -1;
+    int system = -1;
+    int j = -1;
+    int charge = 0;
+    double conc_mol_per_L = 0.0;
+  };
+  /// Whether the model carries ion pairs (the ion-pair model with a metal and a partner present).
+  bool has_ion_pairs() const { return !pair_metals_.empty(); }
+  /// The ion pairs at pH under the current activity coefficients, and the free concentration of
+  /// each strong ion of the mixture (its total where it forms no pair), mol/L.
+  void ion_pair_state(double pH, std::vector<IonPairSpecies>* pairs, std::vector<double>* free_ion) const;
   double h_gamma() const { return gamma_h_; }
   double oh_gamma() const { return gamma_oh_; }
   double kw() const { return kw_; }
@@ -259,6 +273,8 @@ class EquilibriumModel {
   };
   void update_effective_constants();
   void prepare_activity_terms(const Mixture& mixture);
+  void prepare_ion_pairs(const Mixture& mixture);
+  void update_pair_constants();
   static double moments(const Sys& s, double h, double* alpha, double* zbar, double* z2bar);
   Partition partition(const double* alpha, double h, double dose) const;
   /// d/d ln[H+] of the drug's share of the charge (dissolved drug charge less the counterion
@@ -289,6 +305,53 @@ class EquilibriumModel {
     LogGammaTerms act;   // of MOH+
   };
   std::vector<HydroxoPair> pairs_;
+  // The ion-pair model (docs/model.md, "Activities"): metal ions held in pairs (index a), each
+  // with its hydroxo complex where one is modelled, and per system the pairs of its species.
+  static constexpr int kMaxPairMetals = 8;
+  static constexpr int kMaxPairSystems = 8;
+  struct PairMetal {
+    int ion = -1;          // index into ions_
+    int z = 1;
+    double k_oh = 0.0;     // hydroxo complex MOH, thermodynamic at T (0: none)
+    double k_oh_eff = 0.0;
+  };
+  struct PairTerm {
+    int metal = -1;        // index into pair_metals_
+    int j = 0;             // species of the system
+    int zl = 0;            // its charge
+    double k = 0.0;        // thermodynamic at T
+    double k_eff = 0.0;    // k gamma(M) gamma(L) / gamma(ML)
+  };
+  struct PairSystem {
+    int sys = -1;          // index into systems_
+    int n = 0;             // its pKa count
+    double total = 0.0;    // its total, mol/L
+    std::vector<PairTerm> terms;
+    /// K'_aj by metal and species (0: no pair), the terms as a dense table for the hot loops.
+    std::array<std::array<double, kMaxPka + 1>, kMaxPairMetals> k_eff{};
+  };
+  /// Work of one ion-pair state at [H+] = h: free metals, hydroxide and per pair system the
+  /// weights beta_j P_j (beta_j = prod ka_eff / h^j, P_j = 1 + sum K_eff m) and their sum.
+  struct PairWork {
+    double m[kMaxPairMetals];
+    double oh = 0.0;
+    double inv_jacobian = 0.0;  // one metal: 1/(dF/dm) of the last Newton step (0: not known)
+    double w[kMaxPairSystems][kMaxPka + 1];     // beta_j P_j / S: fractions of species j (free and paired)
+    double beta_s[kMaxPairSystems][kMaxPka + 1];  // beta_j / S: the free species' share, per unit total
+  };
+  /// Solves the metals' mass balances at pH ([H+] = h) by Newton from the last solution,
+  /// carried to this pH along its slope dm/dpH, and fills `w`.
+  void solve_pairs(double pH, double h, double oh, PairWork* w) const;
+  /// Adds the ion-pair model's systems and pairs to the sums of evaluate() at pH.
+  void evaluate_pairs(double pH, double h, double oh, double* charge, double* dsum,
+                      double* abs_sum, double* i2, double* osm) const;
+  bool ion_pair_model_ = false;
+  std::vector<PairMetal> pair_metals_;
+  std::vector<PairSystem> pair_systems_;
+  std::vector<int> sys_pair_;              // per system: index into pair_systems_, or -1
+  mutable std::array<double, kMaxPairMetals> free_metal_{};  // last solution (warm start) ...
+  mutable std::array<double, kMaxPairMetals> free_metal_slope_{};  // ... its dm/dpH ...
+  mutable double free_metal_pH_ = 0.0;                            // ... and its pH
   LogGammaTerms h_act_, oh_act_;
   double gamma_h_ = 1.0, gamma_oh_ = 1.0;
   bool h_generic_ = false, oh_generic_ = false;  // H+ and OH- terms of the generic form
