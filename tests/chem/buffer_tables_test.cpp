@@ -42,6 +42,7 @@
 #include <string>
 #include <vector>
 
+#include "pkarta/analyses/mix.h"
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/io/xml_input.h"
@@ -165,6 +166,42 @@ class BufferTables : public ::testing::Test {
  protected:
   Library lib_ = builtin_library();
 };
+
+// `mix` warns where the Davies default is known to drift: every McIlvaine row above I = 0.3 with
+// Davies gets the hint (and is more than 0.05 alkaline of the table there), the same row under
+// ion-pairs gets none and lies closer; Walpole's acetate rows (no multivalent anion, I below
+// 0.1) get no warning at all.
+TEST_F(BufferTables, MixWarnsWhereDaviesDriftsAgainstMcIlvaine) {
+  const Table t = mcilvaine();
+  int hinted = 0;
+  for (const Row& r : t.rows) {
+    Mixture m;
+    m.temperature_C = t.temperature_C;
+    for (const auto& [id, c] : r.reagents) add_reagent(m, lib_, id, c);
+    const MixResult davies = analyse_mix(m, {});
+    ASSERT_TRUE(davies.equilibrium.usable());
+    if (davies.equilibrium.ionic_strength_mol_per_L < 0.3) continue;
+    bool hint = false;
+    for (const std::string& w : davies.equilibrium.warnings) hint = hint || w.find("--activity ion-pairs") != std::string::npos;
+    EXPECT_TRUE(hint) << "row pH " << r.pH;
+    hinted += hint;
+    EXPECT_GT(davies.equilibrium.pH - (r.pH + t.scale_offset), 0.05) << "row pH " << r.pH;
+    m.activity = ActivityModel::kIonPairs;
+    const MixResult pairs = analyse_mix(m, {});
+    for (const std::string& w : pairs.equilibrium.warnings) EXPECT_EQ(w.find("--activity ion-pairs"), std::string::npos) << w;
+    EXPECT_LT(std::fabs(pairs.equilibrium.pH - (r.pH + t.scale_offset)), std::fabs(davies.equilibrium.pH - (r.pH + t.scale_offset)))
+        << "row pH " << r.pH;
+  }
+  EXPECT_GE(hinted, 10);
+  for (const Table& quiet : {walpole()}) {
+    for (const Row& r : quiet.rows) {
+      Mixture m;
+      m.temperature_C = quiet.temperature_C;
+      for (const auto& [id, c] : r.reagents) add_reagent(m, lib_, id, c);
+      EXPECT_TRUE(analyse_mix(m, {}).equilibrium.warnings.empty()) << quiet.name << " row pH " << r.pH;
+    }
+  }
+}
 
 TEST_F(BufferTables, EveryModelAgainstEveryTable) {
   for (const Table& t : tables()) {

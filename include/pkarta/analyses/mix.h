@@ -22,6 +22,16 @@ struct MixResult {
 /// 0.93; osmotic coefficients as tabulated by Robinson and Stokes, Electrolyte Solutions, 1959).
 inline constexpr double kOsmoticCoefficient = 0.93;
 
+/// Above this ionic strength (mol/L), with at least kDaviesHintMultivalentMolPerL of di- and
+/// trivalent buffer anions, Davies activities drift alkaline against published buffer tables
+/// (tests/chem/buffer_tables_test.cpp: McIlvaine 1921, mean 0.054 up to I 0.3, 0.113 above).
+inline constexpr double kDaviesHintIonicStrength = 0.15;
+inline constexpr double kDaviesHintMultivalentMolPerL = 0.005;
+
+/// Under Davies activities at such an ionic strength, adds a warning to `e` naming the
+/// multivalent anions and the models that are closer (`--activity ion-pairs` or `sit`).
+void add_activity_model_hint(const Mixture& mixture, Equilibrium* e);
+
 /// Solves the mixture and derives capacity and the osmolality estimate.
 MixResult analyse_mix(const Mixture& mixture, std::vector<std::string> inputs);
 
