@@ -361,7 +361,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   out->oh = oh;
   out->inv_jacobian = 0.0;
   const double inv_h = 1.0 / h;
-  double beta[kMaxPairSystems][kMaxPka + 1];
+  double beta[kMaxPairSystems][kMaxPka + 1] = {};  // zeroed: the analyser cannot see that n matches
   for (int p = 0; p < np; ++p) {
     const Sys& s = systems_[pair_systems_[p].sys];
     double b = 1.0;
@@ -371,7 +371,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
       beta[p][i + 1] = b;
     }
   }
-  double m[kMaxPairMetals], total[kMaxPairMetals], diag0[kMaxPairMetals];
+  double m[kMaxPairMetals] = {}, total[kMaxPairMetals] = {}, diag0[kMaxPairMetals] = {};
   for (int a = 0; a < na; ++a) {
     total[a] = ions_[pair_metals_[a].ion].conc;
     diag0[a] = 1.0 + pair_metals_[a].k_oh_eff * oh;
@@ -383,7 +383,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   // The weights at m: per system the fractions w and free shares bs, and G_ap.
   double (&w)[kMaxPairSystems][kMaxPka + 1] = out->w;
   double (&bs)[kMaxPairSystems][kMaxPka + 1] = out->beta_s;
-  double G[kMaxPairMetals][kMaxPairSystems];
+  double G[kMaxPairMetals][kMaxPairSystems] = {};
   if (na == 1 && np == 1) {
     // One metal and one system (the common case): with S = B0 + B1 m (B0 = sum beta_j,
     // B1 = sum K'_j beta_j) and D = 1 + K'_OH [OH-], the balance m (D + T B1/S) = M is the
@@ -419,7 +419,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
     for (int p = 0; p < np; ++p) {
       const PairSystem& ps = pair_systems_[p];
       const int n = ps.n;
-      double P[kMaxPka + 1];
+      double P[kMaxPka + 1] = {};
       double sum = 0.0;
       if (na == 1) {  // one metal: P_j = 1 + K'_j m, G = sum_j K'_j bs_j
         const double* k = ps.k_eff[0].data();
@@ -488,7 +488,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
       out->inv_jacobian = 1.0 / (diag - m[0] * off);
       dm[0] = (total[0] - m[0] * diag) * out->inv_jacobian;
     } else {
-      double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1];
+      double a[2 * equilibrium_detail::kMaxComp][2 * equilibrium_detail::kMaxComp + 1] = {};
       for (int r = 0; r < na; ++r) {
         double diag = diag0[r];
         for (int p = 0; p < np; ++p) diag += pair_systems_[p].total * G[r][p];

@@ -340,8 +340,8 @@ class EquilibriumModel {
     double beta_s[kMaxPairSystems][kMaxPka + 1];  // beta_j / S: the free species' share, per unit total
   };
   /// Solves the metals' mass balances at pH ([H+] = h) by Newton from the last solution,
-  /// carried to this pH along its slope dm/dpH, and fills `w`.
-  void solve_pairs(double pH, double h, double oh, PairWork* w) const;
+  /// carried to this pH along its slope dm/dpH, and fills `out`.
+  void solve_pairs(double pH, double h, double oh, PairWork* out) const;
   /// Adds the ion-pair model's systems and pairs to the sums of evaluate() at pH.
   void evaluate_pairs(double pH, double h, double oh, double* charge, double* dsum,
                       double* abs_sum, double* i2, double* osm) const;
