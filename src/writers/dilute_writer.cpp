@@ -21,7 +21,7 @@ void write_dilute_text(const DilutionResult& result, std::ostream& out) {
   out << "  ratio = total volume / formulation volume (ratio 10: 1 volume of formulation + 9 of medium)\n\n";
   const bool drug = !r.points.empty() && r.points.front().has_drug;
   if (drug) {
-    TextTable t({"ratio", "pH", "drug (mg/mL)", "drug (mol/L)", "solubility (mol/L)", "limited by",
+    TextTable t({"ratio", "pH", "drug (mg/mL as free form)", "drug (mol/L)", "solubility (mol/L)", "limited by",
                  "supersaturation", "risk"});
     for (const DilutionPoint& p : r.points) {
       t.add_row({sig(p.ratio, 4), fixed(p.pH, 3), sig(p.drug_mg_per_mL, 3), sig(p.drug_mol_per_L, 3),
@@ -100,7 +100,8 @@ void write_dilute_json(const DilutionResult& result, std::ostream& out) {
     o["osmolarity_mOsm_per_L"] = p.osmolarity_mOsm_per_L;
     if (p.has_drug) {
       o["drug_mol_per_L"] = p.drug_mol_per_L;
-      o["drug_mg_per_mL"] = p.drug_mg_per_mL;
+      o["drug_mg_per_mL"] = p.drug_mg_per_mL;  // as free form (the key of earlier versions)
+      o["drug_mg_per_mL_as_free_form"] = p.drug_mg_per_mL;
       o["solubility_mol_per_L"] = num(p.solubility_mol_per_L);
       o["limiting_solid"] = p.limiting_solid;
       o["supersaturation_ratio"] = p.supersaturation_ratio;
