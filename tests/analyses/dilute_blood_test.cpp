@@ -68,6 +68,14 @@ constexpr double kPlasmaMediumI = 0.13;
 // hand calculation explicitly, so the linear term carries 7.7 less its buffer value at pH 7.4.
 double protein_beta(const Library& lib, double beta_total) { return beta_total - phosphate_beta_at_74(lib, kPlasmaMediumI); }
 
+// Options of a 1:10 dilution into plasma-7.4 (the medium of every case below).
+DilutionOptions plasma_1_in_10() {
+  DilutionOptions o;
+  o.medium_id = "plasma-7.4";
+  o.ratios = {10};
+  return o;
+}
+
 double formulation_naoh_for_ph4(const Library& lib) {
   double lo = 0.0, hi = 0.15;
   for (int i = 0; i < 80; ++i) {
@@ -128,9 +136,7 @@ TEST(DiluteBlood, CitratePh4IntoPlasmaMatchesTheOpenSystemHandCalculation) {
   Mixture form;
   add_reagent(form, lib, "citric-acid.H2O", 0.05);
   add_reagent(form, lib, "NaOH", naoh);
-  DilutionOptions o;
-  o.medium_id = "plasma-7.4";
-  o.ratios = {10};
+  DilutionOptions o = plasma_1_in_10();
   const DilutionResult r = analyse_dilution(form, lib, o);
   ASSERT_TRUE(r.usable()) << r.message;
   EXPECT_EQ(r.blood_model, "open");
@@ -149,9 +155,7 @@ TEST(DiluteBlood, ClosedStaysAnOptionAndOutputsSayWhich) {
   const Library lib = builtin_library();
   Mixture form;
   add_reagent(form, lib, "citric-acid.H2O", 0.05);
-  DilutionOptions o;
-  o.medium_id = "plasma-7.4";
-  o.ratios = {10};
+  DilutionOptions o = plasma_1_in_10();
   const DilutionResult open = analyse_dilution(form, lib, o);
   o.blood_model = BloodModel::kClosed;
   const DilutionResult closed = analyse_dilution(form, lib, o);
@@ -193,9 +197,7 @@ TEST(DiluteBlood, CitricAcidHclIntoPlasmaAndWholeBlood) {
   Mixture form;
   add_reagent(form, lib, "citric-acid.H2O", 0.05);
   add_reagent(form, lib, "HCl", 0.01);
-  DilutionOptions o;
-  o.medium_id = "plasma-7.4";
-  o.ratios = {10};
+  DilutionOptions o = plasma_1_in_10();
   const DilutionResult plasma = analyse_dilution(form, lib, o);
   o.blood = BloodKind::kWhole;
   const DilutionResult whole = analyse_dilution(form, lib, o);
@@ -234,10 +236,7 @@ TEST(DiluteBlood, MediumPhosphateIsNotCountedTwice) {
   const Library lib = builtin_library();
   Mixture form;
   add_reagent(form, lib, "NaCl", 0.154);
-  DilutionOptions o;
-  o.medium_id = "plasma-7.4";
-  o.ratios = {10};
-  const DilutionResult r = analyse_dilution(form, lib, o);
+  const DilutionResult r = analyse_dilution(form, lib, plasma_1_in_10());
   ASSERT_TRUE(r.usable()) << r.message;
   const double hand = 1e3 * phosphate_beta_at_74(lib, kPlasmaMediumI);
   EXPECT_NEAR(r.medium_explicit_buffer_mM_per_pH, hand, 0.01);
