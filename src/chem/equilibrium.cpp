@@ -361,7 +361,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   out->oh = oh;
   out->inv_jacobian = 0.0;
   const double inv_h = 1.0 / h;
-  double beta[kMaxPairSystems][kMaxPka + 1] = {};  // zeroed: the analyser cannot see that n matches
+  double beta[kMaxPairSystems][kMaxPka + 1];  // rows 0..n filled for each system (n as the system's)
   for (int p = 0; p < np; ++p) {
     const Sys& s = systems_[pair_systems_[p].sys];
     double b = 1.0;
@@ -383,7 +383,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
   // The weights at m: per system the fractions w and free shares bs, and G_ap.
   double (&w)[kMaxPairSystems][kMaxPka + 1] = out->w;
   double (&bs)[kMaxPairSystems][kMaxPka + 1] = out->beta_s;
-  double G[kMaxPairMetals][kMaxPairSystems] = {};
+  double G[kMaxPairMetals][kMaxPairSystems];
   if (na == 1 && np == 1) {
     // One metal and one system (the common case): with S = B0 + B1 m (B0 = sum beta_j,
     // B1 = sum K'_j beta_j) and D = 1 + K'_OH [OH-], the balance m (D + T B1/S) = M is the
@@ -393,7 +393,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
     const int n = ps.n;
     double b0 = 0.0, b1 = 0.0;
     for (int j = 0; j <= n; ++j) {
-      b0 += beta[0][j];
+      b0 += beta[0][j];  // NOLINT(clang-analyzer-core.uninitialized.Assign): filled to n above
       b1 += k[j] * beta[0][j];
     }
     const double T = ps.total, M = total[0], D = diag0[0];
@@ -419,7 +419,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
     for (int p = 0; p < np; ++p) {
       const PairSystem& ps = pair_systems_[p];
       const int n = ps.n;
-      double P[kMaxPka + 1] = {};
+      double P[kMaxPka + 1];
       double sum = 0.0;
       if (na == 1) {  // one metal: P_j = 1 + K'_j m, G = sum_j K'_j bs_j
         const double* k = ps.k_eff[0].data();
@@ -441,7 +441,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
         double pj = 1.0;
         for (int a = 0; a < na; ++a) pj += ps.k_eff[a][j] * m[a];
         P[j] = pj;
-        sum += beta[p][j] * pj;
+        sum += beta[p][j] * pj;  // NOLINT(clang-analyzer-core.UndefinedBinaryOperatorResult): filled to n above
       }
       const double inv = 1.0 / sum;
       for (int j = 0; j <= n; ++j) {
@@ -468,7 +468,7 @@ void EquilibriumModel::solve_pairs(double pH, double h, double oh, PairWork* out
       for (int j = 0; j <= ps.n; ++j) {
         double kd = 0.0;
         for (int a = 0; a < na; ++a) kd += ps.k_eff[a][j] * dm[a];
-        w[p][j] += bs[p][j] * kd - w[p][j] * gd;
+        w[p][j] += bs[p][j] * kd - w[p][j] * gd;  // NOLINT(clang-analyzer-core.UndefinedBinaryOperatorResult): set by weights()
         bs[p][j] -= bs[p][j] * gd;
       }
     }
