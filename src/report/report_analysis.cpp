@@ -131,6 +131,18 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
   }
   // The formulation diluted into the route's medium (or the one asked).
   auto dilute_formulation = [&](const Mixture& formulation, std::vector<std::string> inputs) {
+    // The formulation itself: where Davies activities are known to drift (ionic strength and
+    // multivalent buffer anions), the summary says so and names the closer models.
+    {
+      Mixture all = formulation;
+      Equilibrium e = solve(all);
+      if (e.usable()) {
+        add_activity_model_hint(all, &e);
+        for (const std::string& w : e.warnings) {
+          if (w.find("--activity ion-pairs") != std::string::npos) d.warnings.push_back("formulation: " + w);
+        }
+      }
+    }
     std::string medium = request.dilution_medium;
     if (medium.empty()) {
       medium = request.route == "parenteral" ? "plasma-7.4" : request.route == "oral" ? "sif-6.8" : "saline-0.9";

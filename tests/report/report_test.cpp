@@ -325,6 +325,12 @@ TEST(Report, AdjustedFormulationGetsItsRecipe) {
   ASSERT_TRUE(e.usable());
   EXPECT_NEAR(e.pH, 7.4, 0.005);
   EXPECT_NEAR(f.osmolality_estimate_mOsm_per_kg, 290.0, 1.0);
+  // 50 mM phosphate with NaCl to isotonicity: I above 0.15 with multivalent anions, where Davies
+  // drifts alkaline against McIlvaine's table (tests/chem/buffer_tables_test.cpp): the summary says so.
+  bool hint = false;
+  for (const std::string& w : d.warnings) hint = hint || w.rfind("formulation: ionic strength", 0) == 0;
+  EXPECT_GT(f.ionic_strength_mol_per_L, 0.15);
+  EXPECT_TRUE(hint);
   // The dilution is of this formulation (parenteral: into plasma).
   ASSERT_TRUE(d.dilution);
   EXPECT_EQ(d.dilution->medium_id, "plasma-7.4");
