@@ -134,10 +134,9 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     // The formulation itself: where Davies activities are known to drift (ionic strength and
     // multivalent buffer anions), the summary says so and names the closer models.
     {
-      Mixture all = formulation;
-      Equilibrium e = solve(all);
+      Equilibrium e = solve(formulation);
       if (e.usable()) {
-        add_activity_model_hint(all, &e);
+        add_activity_model_hint(formulation, &e);
         for (const std::string& w : e.warnings) {
           if (w.find("--activity ion-pairs") != std::string::npos) d.warnings.push_back("formulation: " + w);
         }
