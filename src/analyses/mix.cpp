@@ -1,26 +1,29 @@
 #include "pkarta/analyses/mix.h"
 
+#include <algorithm>
+
 #include "pkarta/base/format.h"
 #include "pkarta/chem/water.h"
 
 namespace pkarta {
 
-void add_activity_model_hint(const Mixture& mixture, Equilibrium* e) {
-  if (mixture.activity != ActivityModel::kDavies || !(e->ionic_strength_mol_per_L > kDaviesHintIonicStrength)) return;
+std::string activity_model_hint(const Mixture& mixture, const Equilibrium& e) {
+  if (mixture.activity != ActivityModel::kDavies || !(e.ionic_strength_mol_per_L > kDaviesHintIonicStrength)) return {};
   const std::string drug = mixture.drug ? mixture.drug->compound.system.id : std::string();
   double multivalent = 0.0;
-  std::string systems;
-  for (const Species& sp : e->species) {
+  std::vector<std::string> systems;
+  for (const Species& sp : e.species) {
     if (sp.system.empty() || sp.system == drug || sp.charge > -2) continue;
     multivalent += sp.conc_mol_per_L;
-    if (systems.find(sp.system) == std::string::npos) systems += (systems.empty() ? "" : ", ") + sp.system;
+    if (std::find(systems.begin(), systems.end(), sp.system) == systems.end()) systems.push_back(sp.system);
   }
-  if (multivalent < kDaviesHintMultivalentMolPerL) return;
-  e->warnings.push_back("ionic strength " + sig(e->ionic_strength_mol_per_L, 2) + " mol/L with " +
-                        sig(multivalent * 1e3, 2) + " mM of di- and trivalent anions (" + systems +
-                        "): Davies activities run alkaline here against published buffer tables (McIlvaine "
-                        "1921: +0.05 to +0.15 pH at I 0.3-0.6); --activity ion-pairs or sit comes closer "
-                        "(README, \"Accuracy\")");
+  if (multivalent < kDaviesHintMultivalentMolPerL) return {};
+  std::string names;
+  for (const std::string& id : systems) names += (names.empty() ? "" : ", ") + id;
+  return "ionic strength " + sig(e.ionic_strength_mol_per_L, 2) + " mol/L with " + sig(multivalent * 1e3, 2) +
+         " mM of di- and trivalent anions (" + names +
+         "): Davies activities run alkaline here against published buffer tables (McIlvaine 1921: +0.05 to "
+         "+0.15 pH at I 0.3-0.6); --activity ion-pairs or sit comes closer (README, \"Accuracy\")";
 }
 
 MixResult analyse_mix(const Mixture& mixture, std::vector<std::string> inputs) {
@@ -30,7 +33,9 @@ MixResult analyse_mix(const Mixture& mixture, std::vector<std::string> inputs) {
   r.equilibrium = solve(mixture);
   if (mixture.drug) r.drug_name = mixture.drug->compound.name;
   if (r.equilibrium.usable()) {
-    add_activity_model_hint(mixture, &r.equilibrium);
+    if (std::string hint = activity_model_hint(mixture, r.equilibrium); !hint.empty()) {
+      r.equilibrium.warnings.push_back(std::move(hint));
+    }
     r.capacity_mol_per_L_per_pH = buffer_capacity(mixture);
     r.osmolality_estimate_mOsm_per_kg = kOsmoticCoefficient * r.equilibrium.osmolarity_mOsm_per_L /
                                         water_density_kg_per_L(mixture.temperature_C);

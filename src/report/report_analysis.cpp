@@ -129,17 +129,13 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
       }
     }
   }
-  // The formulation diluted into the route's medium (or the one asked).
-  auto dilute_formulation = [&](const Mixture& formulation, std::vector<std::string> inputs) {
-    // The formulation itself: where Davies activities are known to drift (ionic strength and
-    // multivalent buffer anions), the summary says so and names the closer models.
-    {
-      Equilibrium e = solve(formulation);
-      if (e.usable()) {
-        add_activity_model_hint(formulation, &e);
-        for (const std::string& w : e.warnings) {
-          if (w.find("--activity ion-pairs") != std::string::npos) d.warnings.push_back("formulation: " + w);
-        }
+  // The recommended formulation: where Davies activities are known to drift (ionic strength
+  // and multivalent buffer anions), the summary says so and names the closer models; then the
+  // formulation diluted into the route's medium (or the one asked).
+  auto check_and_dilute = [&](const Mixture& formulation, std::vector<std::string> inputs) {
+    if (const Equilibrium e = solve(formulation); e.usable()) {
+      if (const std::string hint = activity_model_hint(formulation, e); !hint.empty()) {
+        d.warnings.push_back("formulation: " + hint);
       }
     }
     std::string medium = request.dilution_medium;
@@ -185,8 +181,8 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     d.recipe = make_recipe(library, ro);
     Mixture formulation = recipe_mixture(library, *d.recipe, request.activity);
     add_drug(formulation, library, compound, request.dose_mol_per_L, request.form);
-    dilute_formulation(formulation, {d.recipe->buffer_name + " " + sig(d.recipe->conc_mol_per_L * 1e3, 3) + " mM",
-                                     compound.id + " " + request.dose_text});
+    check_and_dilute(formulation, {d.recipe->buffer_name + " " + sig(d.recipe->conc_mol_per_L * 1e3, 3) + " mM",
+                                   compound.id + " " + request.dose_text});
   } else if (d.screen && d.screen->fallback && !d.screen->fallback->adjusted.empty() &&
              d.screen->fallback->adjusted.front().recommended_conc_mol_per_L) {
     // No buffer holds the target made first; the first that does with the pH adjusted after the
@@ -196,9 +192,9 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
       d.adjusted_formulation = make_formulation(library, recipe_options(alt), compound, request.dose_mol_per_L,
                                                 request.form, ScreenPreparation::kAdjusted);
       const Formulation& f = *d.adjusted_formulation;
-      dilute_formulation(formulation_mixture(library, f, compound, request.activity),
-                         {f.recipe.buffer_name + " " + sig(f.recipe.conc_mol_per_L * 1e3, 3) + " mM, pH adjusted after the dose",
-                          compound.id + " " + request.dose_text});
+      check_and_dilute(formulation_mixture(library, f, compound, request.activity),
+                       {f.recipe.buffer_name + " " + sig(f.recipe.conc_mol_per_L * 1e3, 3) + " mM, pH adjusted after the dose",
+                        compound.id + " " + request.dose_text});
     } catch (const std::exception& e) {
       d.warnings.push_back(std::string("recipe of the adjusted formulation: ") + e.what());
     }

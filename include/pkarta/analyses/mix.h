@@ -28,9 +28,10 @@ inline constexpr double kOsmoticCoefficient = 0.93;
 inline constexpr double kDaviesHintIonicStrength = 0.15;
 inline constexpr double kDaviesHintMultivalentMolPerL = 0.005;
 
-/// Under Davies activities at such an ionic strength, adds a warning to `e` naming the
-/// multivalent anions and the models that are closer (`--activity ion-pairs` or `sit`).
-void add_activity_model_hint(const Mixture& mixture, Equilibrium* e);
+/// Under Davies activities at such an ionic strength, a warning naming the multivalent anions
+/// of the solved state `e` and the models that are closer (`--activity ion-pairs` or `sit`);
+/// empty otherwise. analyse_mix() adds it to the state's warnings.
+std::string activity_model_hint(const Mixture& mixture, const Equilibrium& e);
 
 /// Solves the mixture and derives capacity and the osmolality estimate.
 MixResult analyse_mix(const Mixture& mixture, std::vector<std::string> inputs);
