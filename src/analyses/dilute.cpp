@@ -142,10 +142,16 @@ AcidBaseSystem blood_buffer_system(double ionic_strength_mol_per_L, double tempe
 
 double blood_buffer_total(double beta_mol_per_L_per_pH) { return beta_mol_per_L_per_pH * 1.5 / std::log(10.0); }
 
+namespace {
+// A system of a physiological medium that the solver carries explicitly beside the lumped
+// non-bicarbonate buffer: every one present but carbonate (the Van Slyke equation's own term).
+bool explicit_medium_system(const SystemAmount& s) { return s.system.id != "carbonate" && s.total_mol_per_L > 0; }
+}  // namespace
+
 double explicit_medium_buffer_value(const Mixture& medium, double ionic_strength_mol_per_L) {
   double beta = 0.0;
   for (const SystemAmount& s : medium.systems) {
-    if (s.system.id == "carbonate" || !(s.total_mol_per_L > 0)) continue;
+    if (!explicit_medium_system(s)) continue;
     Mixture one;
     one.temperature_C = medium.temperature_C;
     one.activity = medium.activity;
@@ -267,7 +273,7 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
     // carries only the rest.
     std::string explicit_names;
     for (const SystemAmount& s : med.systems) {
-      if (s.system.id == "carbonate" || !(s.total_mol_per_L > 0)) continue;
+      if (!explicit_medium_system(s)) continue;
       explicit_names += (explicit_names.empty() ? "" : ", ") + s.system.id;
     }
     if (explicit_names.empty()) explicit_names = "systems";
