@@ -427,7 +427,7 @@ void EquilibriumModel::fractions(int system, double pH, double* alpha) const {
     // Ion pairs: the fractions of each protonation state, free and paired together.
     PairWork w;
     const double h = std::pow(10.0, -pH);
-  solve_pairs(pH, h, kw_ / (h * gamma_oh_), &w);
+    solve_pairs(pH, h, kw_ / (h * gamma_oh_), &w);
     const int p = sys_pair_[system];
     for (int j = 0; j <= systems_[system].n; ++j) alpha[j] = w.w[p][j];
     return;

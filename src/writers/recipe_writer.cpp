@@ -75,10 +75,6 @@ std::string tonicity_id(const Recipe& r) {
   return "NaCl";
 }
 
-}  // namespace
-
-namespace {
-
 // The recipe's text; `buffer_alone` false (a formulation made with the pH adjusted after the
 // dose): the reagents and titrant only, without the buffer's own procedure and computed
 // solution, which the formulation's order of addition and values replace.
