@@ -15,6 +15,8 @@
 
 #include <cmath>
 #include <cstdio>
+#include <utility>
+#include <vector>
 
 #include "pkarta/chem/equilibrium.h"
 #include "pkarta/chem/mixture_builder.h"
@@ -56,6 +58,19 @@ Mixture build(const Library& lib, const Standard& s, double t) {
     add_reagent(m, lib, id, reagent_conc_mol_per_L(lib, id, a, t));
   }
   return m;
+}
+
+// The IUPAC value of a standard at each temperature it is given for (5, 25, 37, 50 °C; NaN
+// where the table has none).
+std::vector<std::pair<double, double>> values_by_temperature(const Standard& s) {
+  return {{5.0, s.ph5}, {25.0, s.ph25}, {37.0, s.ph37}, {50.0, s.ph50}};
+}
+
+// The standard at temperature t under an activity model.
+Equilibrium solve_standard(const Library& lib, const Standard& s, double t, ActivityModel model) {
+  Mixture m = build(lib, s, t);
+  m.activity = model;
+  return solve(m);
 }
 
 class PrimaryStandards : public ::testing::Test {
@@ -102,11 +117,9 @@ TEST_F(PrimaryStandards, PhAt5CWithin003) {
 // table, to be verified.
 TEST_F(PrimaryStandards, SitWithin003From5To50C) {
   for (const Standard& s : standards()) {
-    for (const auto& [t, ph] : {std::pair<double, double>{5.0, s.ph5}, {25.0, s.ph25}, {37.0, s.ph37}, {50.0, s.ph50}}) {
+    for (const auto& [t, ph] : values_by_temperature(s)) {
       if (std::isnan(ph)) continue;
-      Mixture m = build(lib_, s, t);
-      m.activity = ActivityModel::kSit;
-      const Equilibrium e = solve(m);
+      const Equilibrium e = solve_standard(lib_, s, t, ActivityModel::kSit);
       ASSERT_TRUE(e.usable()) << s.name;
       std::printf("  %-40s %2.0f C: sit %.3f  IUPAC %.3f  (%+.3f)\n", s.name, t, e.pH, ph, e.pH - ph);
       EXPECT_NEAR(e.pH, ph, 0.03) << s.name << " at " << t << " C";
@@ -123,11 +136,9 @@ TEST_F(PrimaryStandards, SitWithin003From5To50C) {
 TEST_F(PrimaryStandards, IonPairsWithin003From5To50CAndAtLeastAsGoodAsDaviesAt25C) {
   double mean_pairs = 0.0, mean_davies = 0.0;
   for (const Standard& s : standards()) {
-    for (const auto& [t, ph] : {std::pair<double, double>{5.0, s.ph5}, {25.0, s.ph25}, {37.0, s.ph37}, {50.0, s.ph50}}) {
+    for (const auto& [t, ph] : values_by_temperature(s)) {
       if (std::isnan(ph)) continue;
-      Mixture m = build(lib_, s, t);
-      m.activity = ActivityModel::kIonPairs;
-      const Equilibrium e = solve(m);
+      const Equilibrium e = solve_standard(lib_, s, t, ActivityModel::kIonPairs);
       ASSERT_TRUE(e.usable()) << s.name;
       std::printf("  %-40s %2.0f C: ion-pairs %.3f  IUPAC %.3f  (%+.3f)\n", s.name, t, e.pH, ph, e.pH - ph);
       EXPECT_NEAR(e.pH, ph, t == 25.0 ? 0.02 : 0.03) << s.name << " at " << t << " C";
