@@ -119,6 +119,10 @@ constexpr Hydroxo kHydroxo[] = {{"Ca2+", 2, 1.30, 0.0}, {"Mg2+", 2, 2.58, 0.0}};
 //  [SM77]  Smith and Martell, Critical Stability Constants, vol. 3 (Other Organic Ligands),
 //          Plenum 1977, citric acid, I = 0.1 mol/L; recalled, to be verified; put at I = 0
 //          with the Davies equation as for [MF88] (A br = 0.1074 at I = 0.1).
+//  [A]     dH of NaHPO4-: no measured value read; NaSO4-'s 4.69 kJ/mol [N90], the pair of the
+//          same charge type with an oxyanion, taken as an estimate (ion pairs of this kind form
+//          with heat taken up, so K rises with temperature). It moves the phosphate primary
+//          standards by +0.004 at 5 °C and -0.005 at 50 °C (K unchanged at 25 °C).
 // Not carried (no constant read or recalled): K+ with the phosphate species ([MF88] take its
 // pairing as negligible), Na+ and K+ with PO4 3- and with HCit 2-, K+ with carbonate. Nor
 // Na+ with carbonate: [N90]'s NaCO3- (log K 1.27, dH 37.3 kJ/mol) and NaHCO3 (-0.25), used
@@ -134,7 +138,7 @@ struct PairConstant {
   double dH;
 };
 constexpr PairConstant kIonPairs[] = {
-    {"Na+", 1, "phosphate", -2, 0.62, 0.0},   // [MF88] 1.3 L/mol at I = 0.7: 0.114 + 4 x 0.1254
+    {"Na+", 1, "phosphate", -2, 0.62, 4.69},  // [MF88] 1.3 L/mol at I = 0.7: 0.114 + 4 x 0.1254; dH: see [A]
     {"Na+", 1, "phosphate", -1, -0.06, 0.0},  // [MF88] 0.49 L/mol at I = 0.7: -0.310 + 2 x 0.1254
     {"Na+", 1, "citrate", -3, 1.34, 0.0},     // [SM77] 0.70 at I = 0.1: + 6 x 0.1074
     {"K+", 1, "citrate", -3, 1.24, 0.0},      // [SM77] 0.60 at I = 0.1: + 6 x 0.1074
