@@ -577,15 +577,21 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
     r.warnings.push_back("the final equilibrium did not converge");
   }
   r.pH_drift = r.pH_after_drug - target;
-  auto ph_at = [&](double temperature_C) {
+  // The same totals at a storage temperature: pH and the drug solid there.
+  auto at_storage = [&](double temperature_C, double& pH, std::string& solid) {
     Mixture m = final_mix;
     m.temperature_C = temperature_C;
     EquilibriumModel model(m);
     const StateSummary s = model.solve(SolverOptions{}, r.pH_after_drug);
-    return s.converged ? s.pH : kNaN;
+    pH = s.converged ? s.pH : kNaN;
+    solid = s.converged && job.dose_mol_per_L > 0 ? to_string(s.solids, job.compound) : "none";
   };
-  r.pH_at_5C = ph_at(options.low_temperature_C);
-  r.pH_at_40C = ph_at(options.high_temperature_C);
+  at_storage(options.low_temperature_C, r.pH_at_5C, r.drug_solid_at_5C);
+  at_storage(options.high_temperature_C, r.pH_at_40C, r.drug_solid_at_40C);
+  const double storage_limit = options.max_drift_pH ? *options.max_drift_pH : tol;
+  auto new_solid = [&](const std::string& solid) { return solid != "none" && solid != r.drug_solid; };
+  r.holds_at_storage = within(r.pH_at_5C, target, storage_limit) && within(r.pH_at_40C, target, storage_limit) &&
+                       !new_solid(r.drug_solid_at_5C) && !new_solid(r.drug_solid_at_40C);
   r.pH_after_acid_challenge = load > 0 ? challenged(used, load) : kNaN;
   r.pH_after_base_challenge = load > 0 ? challenged(used, -load) : kNaN;
 

@@ -174,6 +174,7 @@ void rank_screen_results(std::vector<ScreenResult>& results) {
   std::stable_sort(results.begin(), results.end(), [&](const ScreenResult& a, const ScreenResult& b) {
     const int ga = status_group(a.status), gb = status_group(b.status);
     if (ga != gb) return ga < gb;
+    if (a.status == ScreenStatus::kOk && a.holds_at_storage != b.holds_at_storage) return a.holds_at_storage;
     const double ca = key_conc(a), cb = key_conc(b);
     if (ca != cb) return ca < cb;
     if (!a.min_conc_mol_per_L) {  // nothing holds the target: closest to it first

@@ -181,7 +181,10 @@ void write_summary(const Page& pg) {
               " mM, rounded up); holds pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) +
               " with the dose: pH " + fixed(lead->pH_after_drug, 2) + " (" + fixed(lead->pH_at_5C, 2) + " at " +
               fixed(sr.low_temperature_C, 0) + " °C, " + fixed(lead->pH_at_40C, 2) + " at " +
-              fixed(sr.high_temperature_C, 0) + " °C)",
+              fixed(sr.high_temperature_C, 0) + " °C)" +
+              (lead->holds_at_storage ? std::string()
+                                      : "; it holds at " + fixed(sr.temperature_C, 0) + " °C only: " +
+                                            storage_failure_text(sr, *lead) + " (no screened buffer holds at both)"),
           "Highlighted first row of the buffer screen (" + pg.number("screen") + ").");
     } else {
       const bool adjusted = sr.fallback && !sr.fallback->adjusted.empty();
@@ -192,7 +195,10 @@ void write_summary(const Page& pg) {
               : std::string("none"),
           "No screened buffer made first at the target holds pH " + fixed(sr.target_pH, 2) + " ± " +
               fixed(sr.tolerance_pH, 2) + " with this dose" +
-              (alt ? "; made with the pH adjusted after the dose (" + adjusted_titrant_words(d, *alt) + "), it holds it (set by " + alt->binding + ")." : std::string(".")),
+              (alt ? "; made with the pH adjusted after the dose (" + adjusted_titrant_words(d, *alt) + "), it holds it (set by " + alt->binding + ")" +
+                         (alt->holds_at_storage ? std::string(".")
+                                                : " at " + fixed(sr.temperature_C, 0) + " °C only: " + storage_failure_text(sr, *alt) + ".")
+                   : std::string(".")),
           d.adjusted_formulation ? "Buffer screen (" + pg.number("screen") + "); recipe (" + pg.number("recipe") + ")."
                                  : "Buffer screen (" + pg.number("screen") + ").");
     }

@@ -172,7 +172,8 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                        (sr.route == "any" ? std::string("every buffer of the library") : "buffers the library lists for " + sr.route + " use"),
                    {"buffer", "status", "min conc (mM)", "recommended (mM)", "set by", "titrant", "titrant (mM)", "nearest pKa", "pH after dose",
                     "capacity (mM per pH)", "osmolarity (mOsm/L)", "pH at " + fixed(sr.low_temperature_C, 0) + " °C",
-                    "pH at " + fixed(sr.high_temperature_C, 0) + " °C", "solid left"}, {}};
+                    "pH at " + fixed(sr.high_temperature_C, 0) + " °C", "solid left",
+                    "holds at " + fixed(sr.low_temperature_C, 0) + " and " + fixed(sr.high_temperature_C, 0) + " °C"}, {}};
     for (const ScreenResult& r : sr.results) {
       const bool computed = r.status == ScreenStatus::kOk || r.status == ScreenStatus::kNotAchievable;
       const double conc = r.min_conc_mol_per_L.value_or(r.conc_used_mol_per_L);
@@ -187,7 +188,8 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                          computed ? fixed(r.pH_after_drug, 2) : "",
                          computed ? sig(r.capacity_mol_per_L_per_pH * 1e3, 3) : "",
                          computed ? fixed(r.osmolarity_mOsm_per_L, 1) : "", computed ? fixed(r.pH_at_5C, 2) : "",
-                         computed ? fixed(r.pH_at_40C, 2) : "", computed ? r.drug_solid : ""});
+                         computed ? fixed(r.pH_at_40C, 2) : "", computed ? r.drug_solid : "",
+                         r.status == ScreenStatus::kOk ? (r.holds_at_storage ? "yes" : "no") : ""});
     }
     tables.push_back(st);
   }

@@ -32,7 +32,8 @@ std::vector<DataTable> screen_tables(const std::vector<ScreenReport>& reports, c
                "pH_drift", "pH_after_acid_challenge", "pH_after_base_challenge", "capacity_mol_per_L_per_pH",
                "ionic_strength_mol_per_L", "osmolarity_mOsm_per_L", "osmolality_estimate_mOsm_per_kg",
                "low_temperature_C", "pH_at_low_temperature", "high_temperature_C", "pH_at_high_temperature",
-               "drug_solid", "worst_pH_in_dose_range", "routes", "preparation", "challenge_mol_per_L"},
+               "drug_solid", "worst_pH_in_dose_range", "routes", "preparation", "challenge_mol_per_L",
+               "drug_solid_at_low_temperature", "drug_solid_at_high_temperature", "holds_at_storage_temperatures"},
               {}};
   DataTable c{"criteria",
               {"compound", "buffer", "criterion", "quantity", "value", "limit_low", "limit_high", "pass",
@@ -52,7 +53,8 @@ std::vector<DataTable> screen_tables(const std::vector<ScreenReport>& reports, c
              full(r.osmolarity_mOsm_per_L), full(kOsmoticCoefficient * r.osmolarity_mOsm_per_L / density),
              full(rep.low_temperature_C), full(r.pH_at_5C), full(rep.high_temperature_C), full(r.pH_at_40C),
              r.drug_solid, full(r.worst_pH_in_dose_range), join_words(r.routes),
-             screen_preparation_name(rep.preparation), full(rep.challenge_mol_per_L)});
+             screen_preparation_name(rep.preparation), full(rep.challenge_mol_per_L), r.drug_solid_at_5C,
+             r.drug_solid_at_40C, boolean(r.holds_at_storage)});
       for (const ScreenCriterion& k : r.criteria) {
         c.add({rep.compound_id, r.buffer, k.id, k.quantity, full(k.value), full(k.limit_low), full(k.limit_high),
                boolean(k.pass), full(k.min_conc_mol_per_L), boolean(k.min_conc_at_lower_bound)});

@@ -77,6 +77,18 @@ const char* kOsmolalityNote =
     "Osmolarity is ideal (sum of dissolved species); osmolality estimate = 0.93 x osmolarity / "
     "density of water, an estimate that must be measured.";
 
+// "ok", or "ok (25 °C)" for a buffer that holds the target at the run temperature only.
+std::string status_cell(const ScreenReport& rep, const ScreenResult& r) {
+  if (r.status == ScreenStatus::kOk && !r.holds_at_storage) return "ok (" + fixed(rep.temperature_C, 0) + " °C)";
+  return screen_status_name(r.status);
+}
+
+// Below the table: which ok buffers do not hold at the storage temperatures, and why.
+void write_storage_note(const ScreenReport& rep, std::ostream& out) {
+  const std::string text = screen_storage_note(rep);
+  if (!text.empty()) write_wrapped(out, text, 100, "  ");
+}
+
 // Per buffer that was searched: each criterion's value and verdict at the strength used.
 void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
   bool any = false;
@@ -136,6 +148,9 @@ nlohmann::ordered_json result_json(const ScreenReport& rep, const ScreenResult& 
   x["pH_at_5C"] = number(r.pH_at_5C);
   x["pH_at_40C"] = number(r.pH_at_40C);
   x["drug_solid"] = r.drug_solid;
+  x["drug_solid_at_5C"] = r.drug_solid_at_5C;
+  x["drug_solid_at_40C"] = r.drug_solid_at_40C;
+  x["holds_at_storage_temperatures"] = r.holds_at_storage;
   if (rep.dose_range_fraction > 0) {
     x["worst_pH_in_dose_range"] = opt_number(r.worst_pH_in_dose_range);
     x["dose_range_within_tolerance"] = r.dose_range_within_tolerance;
@@ -226,7 +241,8 @@ std::string screen_fallback_summary(const ScreenReport& rep) {
     return text + " Made with the pH adjusted after the dose (--preparation adjusted), no buffer is ok either.";
   }
   return text + " Made with the pH adjusted after the dose (--preparation adjusted: buffer and dose dissolved, "
-                "then the titrant added to the target), these hold it:";
+                "then the titrant added to the target), these hold it at " +
+         fixed(rep.temperature_C, 0) + " °C:";
 }
 
 std::vector<std::string> screen_fallback_items(const ScreenReport& rep) {
@@ -239,11 +255,59 @@ std::vector<std::string> screen_fallback_items(const ScreenReport& rep) {
                        " mM";
     if (!r.titrant.empty()) line += " with " + sig(1e3 * r.titrant_mol_per_L, 3) + " mM " + r.titrant;
     line += " (set by " + r.binding + "; pH " + fixed(r.pH_at_5C, 2) + " at " + fixed(rep.low_temperature_C, 0) +
-            " °C, " + fixed(r.pH_at_40C, 2) + " at " + fixed(rep.high_temperature_C, 0) + " °C)";
+            " °C, " + fixed(r.pH_at_40C, 2) + " at " + fixed(rep.high_temperature_C, 0) + " °C";
+    if (!r.holds_at_storage) line += ": " + storage_failure_text(rep, r);
+    line += ")";
     items.push_back(line);
   }
   return items;
 }
+std::string storage_failure_text(const ScreenReport& rep, const ScreenResult& r) {
+  const double limit = rep.max_drift_pH ? *rep.max_drift_pH : rep.tolerance_pH;
+  std::vector<std::string> parts;
+  const bool cold = !(std::fabs(r.pH_at_5C - rep.target_pH) <= limit);
+  const bool warm = !(std::fabs(r.pH_at_40C - rep.target_pH) <= limit);
+  const std::string lo = fixed(rep.low_temperature_C, 0) + " °C", hi = fixed(rep.high_temperature_C, 0) + " °C";
+  if (cold || warm) {
+    parts.push_back("outside " + fixed(rep.target_pH, 2) + " +/- " + fixed(limit, 2) + " at " +
+                    (cold && warm ? lo + " and " + hi : cold ? lo : hi));
+  }
+  auto solid_text = [&](const std::string& solid, const std::string& where) {
+    if (solid != "none" && solid != r.drug_solid) {
+      parts.push_back("the dose does not stay dissolved at " + where + " (" + solid + " solid)");
+    }
+  };
+  solid_text(r.drug_solid_at_5C, lo);
+  solid_text(r.drug_solid_at_40C, hi);
+  std::string text;
+  for (const std::string& p : parts) text += (text.empty() ? "" : "; ") + p;
+  return text;
+}
+
+std::string screen_storage_note(const ScreenReport& rep) {
+  std::string list;
+  bool any_holds = false;
+  const std::string lo = fixed(rep.low_temperature_C, 0) + " °C", hi = fixed(rep.high_temperature_C, 0) + " °C";
+  for (const ScreenResult& r : rep.results) {
+    if (r.status != ScreenStatus::kOk) continue;
+    if (r.holds_at_storage) {
+      any_holds = true;
+      continue;
+    }
+    list += (list.empty() ? "" : ", ") + r.buffer + " " + fixed(r.pH_at_5C, 2) + " / " + fixed(r.pH_at_40C, 2);
+    for (const auto& [solid, where] : {std::pair{r.drug_solid_at_5C, lo}, std::pair{r.drug_solid_at_40C, hi}}) {
+      if (solid != "none" && solid != r.drug_solid) list += " (" + solid + " solid at " + where + ")";
+    }
+  }
+  if (list.empty()) return "";
+  const double limit = rep.max_drift_pH ? *rep.max_drift_pH : rep.tolerance_pH;
+  const std::string t = fixed(rep.temperature_C, 0) + " °C";
+  return "ok (" + t + "): holds the target at " + t + " only; the same formulation stored at " + lo + " / " + hi +
+         " reads pH " + list + " (target " + fixed(rep.target_pH, 2) + " +/- " + fixed(limit, 2) + ")." +
+         (any_holds ? " Ranked after the buffers that hold at both." : "") +
+         " --max-drift PH makes the storage pH a criterion.";
+}
+
 const char* screen_osmolality_note() { return kOsmolalityNote; }
 
 namespace {
@@ -345,7 +409,7 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     int rank = 0;
     for (const ScreenResult& r : rep.results) {
       std::vector<std::string> row = {
-          std::to_string(++rank), r.buffer, screen_status_name(r.status),
+          std::to_string(++rank), r.buffer, status_cell(rep, r),
           r.min_conc_mol_per_L ? (r.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *r.min_conc_mol_per_L, 3) : "n/a",
           r.recommended_conc_mol_per_L ? sig(1e3 * *r.recommended_conc_mol_per_L, 3) : "n/a",
           r.recommended_conc_mol_per_L ? r.binding : (r.binding.empty() ? "" : "fails " + r.binding),
@@ -366,6 +430,7 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
       t.add_row(row);
     }
     t.write(out);
+    write_storage_note(rep, out);
     if (!wide) {
       out << "  (--wide adds the pH after the acid and base challenges, capacity, ionic strength, osmolality,\n"
              "  the pH at the storage temperatures, the drug solid"
@@ -395,40 +460,6 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
                          kOsmolalityNote);
   out << "\n";
   write_wrapped(out, caution_text());
-}
-
-void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out) {
-  write_csv_row(out, {"compound", "form", "dose (mol/L)", "target pH", "tolerance (pH)", "temperature (C)",
-                      "rank", "buffer", "status", "min conc (mol/L)", "conc used (mol/L)", "max conc (mol/L)",
-                      "titrant", "titrant (mol/L)", "pH after drug", "pH drift", "capacity (mol/L per pH)",
-                      "ionic strength (mol/L)", "osmolarity (mOsm/L)", "osmolality estimate (mOsm/kg)",
-                      "pH at 5 C", "pH at 40 C", "drug solid", "worst pH in dose range", "routes",
-                      "recommended conc (mol/L)", "binding", "pH after acid challenge",
-                      "pH after base challenge", "preparation", "challenge (mol/L)"});
-  for (const ScreenReport& rep : reports) {
-    int rank = 0;
-    for (const ScreenResult& r : rep.results) {
-      write_csv_row(out, {rep.compound_id, rep.form, sig(rep.dose_mol_per_L, 6), fixed(rep.target_pH, 3),
-                          fixed(rep.tolerance_pH, 3), fixed(rep.temperature_C, 2), std::to_string(++rank),
-                          r.buffer, screen_status_name(r.status),
-                          r.min_conc_mol_per_L ? sig(*r.min_conc_mol_per_L, 6) : "",
-                          sig(r.conc_used_mol_per_L, 6), sig(r.max_conc_mol_per_L, 6), r.titrant,
-                          sig(r.titrant_mol_per_L, 6), fixed(r.pH_after_drug, 4), fixed(r.pH_drift, 4),
-                          sig(r.capacity_mol_per_L_per_pH, 6), sig(r.ionic_strength_mol_per_L, 6),
-                          fixed(r.osmolarity_mOsm_per_L, 2),
-                          fixed(osmolality_estimate(r.osmolarity_mOsm_per_L, rep.temperature_C), 2),
-                          fixed(r.pH_at_5C, 4), fixed(r.pH_at_40C, 4), r.drug_solid,
-                          r.worst_pH_in_dose_range ? fixed(*r.worst_pH_in_dose_range, 4) : "",
-                          routes_text(r.routes),
-                          r.recommended_conc_mol_per_L ? sig(*r.recommended_conc_mol_per_L, 6) : "", r.binding,
-                          std::isfinite(r.pH_after_acid_challenge) ? fixed(r.pH_after_acid_challenge, 4) : "",
-                          std::isfinite(r.pH_after_base_challenge) ? fixed(r.pH_after_base_challenge, 4) : "",
-                          screen_preparation_name(rep.preparation), sig(rep.challenge_mol_per_L, 6)});
-    }
-  }
-  out << "\r\n";
-  write_csv_row(out, {"caution", caution_text()});
-  write_csv_row(out, {"osmolality", kOsmolalityNote});
 }
 
 }  // namespace pkarta

@@ -156,6 +156,12 @@ struct ScreenResult {
   double pH_at_5C = 0.0;                 ///< same totals re-equilibrated at low_temperature_C
   double pH_at_40C = 0.0;                ///< ... and at high_temperature_C
   std::string drug_solid = "none";       ///< solid left at conc_used ("none", "free", salt id, ...)
+  std::string drug_solid_at_5C = "none";   ///< solid at low_temperature_C (same totals)
+  std::string drug_solid_at_40C = "none";  ///< ... and at high_temperature_C
+  /// The formulation also holds at both storage temperatures: pH within the storage limit of the
+  /// target (max_drift_pH when given, else the tolerance) and no drug solid there that is not
+  /// present at the run temperature.
+  bool holds_at_storage = true;
   std::optional<double> worst_pH_in_dose_range;  ///< when dose_range_fraction > 0
   bool dose_range_within_tolerance = true;
   std::string binding;                   ///< criterion setting min_conc (or failing at max-conc)
@@ -186,8 +192,10 @@ struct ScreenFallback {
 /// begins (a report whose recipe is made isotonic leaves it out: the recipe answers it).
 inline constexpr const char* kLowOsmolalityWarningStart = "the leading buffer's osmolality estimate, ";
 
-/// A screen of one compound: ranked results (achievable first by concentration needed, then
-/// by |pH drift over 5-40 °C|; then not-achievable, dose-not-soluble, outside-range).
+/// A screen of one compound: ranked results (achievable first, those that also hold at both
+/// storage temperatures before those that hold at the run temperature only, each by
+/// concentration needed, then by |pH drift over 5-40 °C|; then not-achievable,
+/// dose-not-soluble, outside-range).
 struct ScreenReport {
   std::string compound_id;
   std::string compound_name;

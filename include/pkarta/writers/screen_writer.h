@@ -17,7 +17,6 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
 /// With `wide` every column of the screen (capacity, ionic strength, osmolality, storage pH,
 /// drug solid, routes...); without, the columns that fit 100 text columns (as the overload above).
 void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& out, bool wide);
-void write_screen_csv(const std::vector<ScreenReport>& reports, std::ostream& out);
 /// The method note and the osmolality note the writers end with.
 std::string screen_method_note(ActivityModel activity);
 /// When the screen has a fallback (no buffer ok made premade): one paragraph saying what the dose
@@ -25,6 +24,12 @@ std::string screen_method_note(ActivityModel activity);
 /// that holds the target (at most three). Empty without a fallback.
 std::string screen_fallback_summary(const ScreenReport& report);
 std::vector<std::string> screen_fallback_items(const ScreenReport& report);
+/// Why a result does not hold at the storage temperatures ("outside 7.40 +/- 0.10 at 5 °C; the
+/// dose does not stay dissolved at 5 °C (free solid)"); empty when it holds.
+std::string storage_failure_text(const ScreenReport& report, const ScreenResult& result);
+/// One paragraph naming the ok buffers that hold the target at the run temperature only, with
+/// their storage pH and the reason; empty when every ok buffer holds at both ends.
+std::string screen_storage_note(const ScreenReport& report);
 const char* screen_osmolality_note();
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
 /// The JSON document `pkarta screen` prints: write_screen_json's object, with "screens" (one
