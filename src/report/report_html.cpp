@@ -26,6 +26,14 @@ using report_internal::profile_chart;
 using report_internal::species_chart;
 using report_internal::write_table_html;
 
+// The text writers' ASCII "+/-" as the report's "±".
+std::string with_plus_minus_sign(std::string text) {
+  for (std::size_t at = text.find("+/-"); at != std::string::npos; at = text.find("+/-", at)) {
+    text.replace(at, 3, "±");
+  }
+  return text;
+}
+
 // "1:10", "1:2.5": a dilution ratio.
 std::string ratio_text(double ratio) {
   if (std::fabs(ratio - std::round(ratio)) < 1e-9) return "1:" + fixed(ratio, 0);
@@ -184,7 +192,8 @@ void write_summary(const Page& pg) {
               fixed(sr.high_temperature_C, 0) + " °C)" +
               (lead->holds_at_storage ? std::string()
                                       : "; it holds at " + fixed(sr.temperature_C, 0) + " °C only: " +
-                                            storage_failure_text(sr, *lead) + " (no screened buffer holds at both)"),
+                                            with_plus_minus_sign(storage_failure_text(sr, *lead)) +
+                                            " (no screened buffer holds at both)"),
           "Highlighted first row of the buffer screen (" + pg.number("screen") + ").");
     } else {
       const bool adjusted = sr.fallback && !sr.fallback->adjusted.empty();
@@ -197,7 +206,8 @@ void write_summary(const Page& pg) {
               fixed(sr.tolerance_pH, 2) + " with this dose" +
               (alt ? "; made with the pH adjusted after the dose (" + adjusted_titrant_words(d, *alt) + "), it holds it (set by " + alt->binding + ")" +
                          (alt->holds_at_storage ? std::string(".")
-                                                : " at " + fixed(sr.temperature_C, 0) + " °C only: " + storage_failure_text(sr, *alt) + ".")
+                                                : " at " + fixed(sr.temperature_C, 0) + " °C only: " +
+                                                      with_plus_minus_sign(storage_failure_text(sr, *alt)) + ".")
                    : std::string(".")),
           d.adjusted_formulation ? "Buffer screen (" + pg.number("screen") + "); recipe (" + pg.number("recipe") + ")."
                                  : "Buffer screen (" + pg.number("screen") + ").");

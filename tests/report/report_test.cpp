@@ -347,6 +347,40 @@ TEST(Report, AdjustedFormulationGetsItsRecipe) {
   EXPECT_NE(out.str().find("Recipe of the formulation, pH adjusted after the dose"), std::string::npos);
 }
 
+// When no screened buffer holds the target at both storage temperatures the summary says the
+// recommended one holds at the run temperature only. Demo acid, 0.5 mg/mL at pH 7.6: the
+// buffers near pH 7.6 are amines (HEPES dpKa/dT -0.014 per K, Good et al. 1966, Biochemistry
+// 5, 467; tris -0.028), so at 5 °C each lies 0.28 or more above the target, beyond +/-0.10,
+// while phosphate (the one buffer that would hold in storage) fails the acid challenge.
+TEST(Report, SummarySaysWhenTheRecommendedBufferHoldsAtTheRunTemperatureOnly) {
+  setenv("SOURCE_DATE_EPOCH", kExampleEpoch, 1);
+  const Library library = builtin_library();
+  const Compound compound = load_compound_file(source("compounds/demo-acid.xml"), library, nullptr);
+  ReportRequest req;
+  req.dose_text = "0.5mg/mL";
+  req.dose_mol_per_L = dose_conc_mol_per_L(library, compound, "free", parse_amount("0.5mg/mL"), 25.0);
+  req.target_pH = 7.6;
+  req.uncertainty_samples = 0;
+  RunRecord run;
+  run.date_utc = report_date_utc();
+  const ReportData d = analyse_report(compound, library, req, run);
+  ASSERT_TRUE(d.screen);
+  const ScreenResult& lead = d.screen->results.front();
+  ASSERT_EQ(lead.status, ScreenStatus::kOk);
+  EXPECT_FALSE(lead.holds_at_storage);
+  EXPECT_GT(lead.pH_at_5C - 7.6, 0.2);
+  std::ostringstream out;
+  write_report_html(d, "acid-7.6", out);
+  const std::string html_text = out.str();
+  EXPECT_NE(html_text.find("it holds at 25 °C only: outside 7.60 ± 0.10 at 5 °C"), std::string::npos);
+  pugi::xml_document doc;
+  const pugi::xml_node html = parse_html(html_text, doc);
+  const pugi::xml_node table = html.select_node("//table[@data-csv='screen.csv']").node();
+  ASSERT_TRUE(table);
+  EXPECT_STREQ(table.select_node("thead/tr/th[last()]").node().child_value(), "holds at 5 and 40 °C");
+  EXPECT_STREQ(table.select_node("tbody/tr[1]/td[last()]").node().child_value(), "no");
+}
+
 TEST(Report, RoundUp125) {
   EXPECT_DOUBLE_EQ(round_up_125(0.000656), 0.001);
   EXPECT_DOUBLE_EQ(round_up_125(0.00415), 0.005);
