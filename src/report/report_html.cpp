@@ -397,7 +397,10 @@ void write_screen(const Page& pg) {
                                            " mM of strong acid or of strong base added to the formulation"
                                      : std::string())
       << "; the recommended strength is that rounded up to the 1-2-5 series in mM (set by: the criterion that "
-         "decides). Buffers are ranked by the minimum concentration, then by their pH change between "
+         "decides). The buffers that also hold when the same formulation is kept at "
+      << fixed(sr.low_temperature_C, 0) << " and at " << fixed(sr.high_temperature_C, 0)
+      << " °C (pH within the tolerance there, no drug solid forming) come first; within each group they "
+         "are ranked by the minimum concentration, then by their pH change between "
       << fixed(sr.low_temperature_C, 0) << " and " << fixed(sr.high_temperature_C, 0) << " °C.</p>\n";
   if (const ScreenResult* lead = leading_buffer(d)) {
     out << "<p class=\"lead-statement\"><strong>Leading buffer: " << esc(lead->name) << " at "

@@ -170,10 +170,11 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                    "Buffer screen: target pH " + fixed(sr.target_pH, 2) + " ± " + fixed(sr.tolerance_pH, 2) + " after the dose, " +
                        fixed(sr.temperature_C, 1) + " °C, " +
                        (sr.route == "any" ? std::string("every buffer of the library") : "buffers the library lists for " + sr.route + " use"),
-                   {"buffer", "status", "min conc (mM)", "recommended (mM)", "set by", "titrant", "titrant (mM)", "nearest pKa", "pH after dose",
+                   {"buffer", "status",
+                    "holds at " + fixed(sr.low_temperature_C, 0) + " and " + fixed(sr.high_temperature_C, 0) + " °C",
+                    "min conc (mM)", "recommended (mM)", "set by", "titrant", "titrant (mM)", "nearest pKa", "pH after dose",
                     "capacity (mM per pH)", "osmolarity (mOsm/L)", "pH at " + fixed(sr.low_temperature_C, 0) + " °C",
-                    "pH at " + fixed(sr.high_temperature_C, 0) + " °C", "solid left",
-                    "holds at " + fixed(sr.low_temperature_C, 0) + " and " + fixed(sr.high_temperature_C, 0) + " °C"}, {}};
+                    "pH at " + fixed(sr.high_temperature_C, 0) + " °C", "solid left"}, {}};
     for (const ScreenResult& r : sr.results) {
       const bool computed = r.status == ScreenStatus::kOk || r.status == ScreenStatus::kNotAchievable;
       const double conc = r.min_conc_mol_per_L.value_or(r.conc_used_mol_per_L);
@@ -182,14 +183,15 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
       if (r.min_conc_at_lower_bound) conc_text = "< " + sig(conc * 1e3, 3);
       const std::string rec_text = r.recommended_conc_mol_per_L ? sig(*r.recommended_conc_mol_per_L * 1e3, 3) : "";
       const std::string set_by = r.recommended_conc_mol_per_L ? r.binding : (r.binding.empty() ? "" : "fails " + r.binding);
-      st.rows.push_back({r.buffer, screen_status_name(r.status), computed ? conc_text : "", computed ? rec_text : "",
+      st.rows.push_back({r.buffer, screen_status_name(r.status),
+                         r.status == ScreenStatus::kOk ? (r.holds_at_storage ? "yes" : "no") : "",
+                         computed ? conc_text : "", computed ? rec_text : "",
                          computed ? set_by : "", computed ? r.titrant : "",
                          computed ? sig(r.titrant_mol_per_L * 1e3, 3) : "", fixed(r.nearest_pka, 2),
                          computed ? fixed(r.pH_after_drug, 2) : "",
                          computed ? sig(r.capacity_mol_per_L_per_pH * 1e3, 3) : "",
                          computed ? fixed(r.osmolarity_mOsm_per_L, 1) : "", computed ? fixed(r.pH_at_5C, 2) : "",
-                         computed ? fixed(r.pH_at_40C, 2) : "", computed ? r.drug_solid : "",
-                         r.status == ScreenStatus::kOk ? (r.holds_at_storage ? "yes" : "no") : ""});
+                         computed ? fixed(r.pH_at_40C, 2) : "", computed ? r.drug_solid : ""});
     }
     tables.push_back(st);
   }
