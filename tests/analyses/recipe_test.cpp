@@ -245,6 +245,40 @@ TEST_F(RecipeTest, IsotonicDiluteBufferNeedsAboutNinePerMilleSodiumChloride) {
   EXPECT_NEAR(r.pH, 7.4, 1e-9);  // the split was re-solved at the salt's ionic strength
 }
 
+// Isotonic 50 mM phosphate at pH 7.4 (I 0.22 mol/L, 40 mM HPO4 2-) lies where Davies drifts
+// against McIlvaine's table (tests/chem/buffer_tables_test.cpp): the recipe quotes the pH the
+// same weights give with explicit ion pairs and under SIT, each as solved here, both 0.03-0.06
+// below the target. 1 mM phosphate in the same saline (0.8 mM HPO4 2-) gets no such warning.
+TEST_F(RecipeTest, IsotonicPhosphateQuotesThePhUnderTheOtherModelsWhereTheyPart) {
+  RecipeOptions o;
+  o.buffer = "phosphate";
+  o.pH = 7.4;
+  o.conc_mol_per_L = 0.05;
+  o.isotonic = true;
+  const Recipe r = make_recipe(lib_, o);
+  std::string warning;
+  for (const std::string& w : r.warnings) {
+    if (w.find("the activity models part here") != std::string::npos) warning = w;
+  }
+  ASSERT_FALSE(warning.empty());
+  for (const ActivityModel m : {ActivityModel::kIonPairs, ActivityModel::kSit}) {
+    Mixture other = recipe_mixture(lib_, r, ActivityModel::kDavies);
+    other.activity = m;
+    const Equilibrium e = solve(other);
+    ASSERT_TRUE(e.usable());
+    EXPECT_GT(7.4 - e.pH, 0.03);
+    EXPECT_LT(7.4 - e.pH, 0.06);
+    char quoted[16];
+    std::snprintf(quoted, sizeof quoted, "pH %.2f", e.pH);
+    if (m == ActivityModel::kSit) std::snprintf(quoted, sizeof quoted, "%.2f under SIT", e.pH);
+    EXPECT_NE(warning.find(quoted), std::string::npos) << quoted << " in: " << warning;
+  }
+  o.conc_mol_per_L = 0.001;
+  for (const std::string& w : make_recipe(lib_, o).warnings) {
+    EXPECT_EQ(w.find("the activity models part here"), std::string::npos) << w;
+  }
+}
+
 TEST_F(RecipeTest, HypertonicBufferGetsNoSaltAndAWarning) {
   // 0.25 M citrate near pH 6 is about 3 x 250 = 750 mOsm/L of sodium alone: no NaCl can help.
   RecipeOptions o;
