@@ -296,25 +296,10 @@ Recipe make_recipe(const Library& library, const RecipeOptions& o) {
     out.warnings.push_back("the solved recipe gives pH " + fmt("%.4f", out.pH) + ", not the target");
   }
   for (const std::string& w : e.warnings) out.warnings.push_back(w);
-  // Where Davies is known to drift (davies_drift_conditions) the activity models part: the pH the
-  // same weights give under the two models made for that range, what the pH meter may show
-  // before the adjustment.
-  const Mixture mixed = recipe_mixture(library, out, o.activity);
-  if (const std::optional<DaviesDriftConditions> c = davies_drift_conditions(mixed, e)) {
-    std::string others;
-    for (const ActivityModel m : {ActivityModel::kIonPairs, ActivityModel::kSit}) {
-      Mixture other = mixed;
-      other.activity = m;
-      const Equilibrium x = solve(other);
-      if (!x.usable()) continue;
-      others += std::string(others.empty() ? "pH " : " and ") + fmt("%.2f", x.pH) +
-                (m == ActivityModel::kSit ? " under SIT" : " with explicit ion pairs");
-    }
-    if (!others.empty()) {
-      out.warnings.push_back(c->words() + ": the activity models part here (README, \"Accuracy\"); the same weights "
-                             "give " + others + ", against Davies' " + fmt("%.2f", out.pH) +
-                             ". Expect to adjust the pH, or size the recipe with --activity ion-pairs");
-    }
+  // Where Davies is known to drift the activity models part: the pH the same weights give under
+  // the two models made for that range, what the pH meter may show before the adjustment.
+  if (const std::string hint = activity_model_hint(recipe_mixture(library, out, o.activity), e); !hint.empty()) {
+    out.warnings.push_back(hint + ". Expect to adjust the pH, or size the recipe with --activity ion-pairs");
   }
   for (const RecipeReagent& r : out.reagents) {
     if (r.state == "liquid") {

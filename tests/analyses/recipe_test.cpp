@@ -261,6 +261,7 @@ TEST_F(RecipeTest, IsotonicPhosphateQuotesThePhUnderTheOtherModelsWhereTheyPart)
     if (w.find("the activity models part here") != std::string::npos) warning = w;
   }
   ASSERT_FALSE(warning.empty());
+  EXPECT_NE(warning.find("Expect to adjust the pH"), std::string::npos) << warning;
   for (const ActivityModel m : {ActivityModel::kIonPairs, ActivityModel::kSit}) {
     Mixture other = recipe_mixture(lib_, r, ActivityModel::kDavies);
     other.activity = m;
@@ -269,7 +270,7 @@ TEST_F(RecipeTest, IsotonicPhosphateQuotesThePhUnderTheOtherModelsWhereTheyPart)
     EXPECT_GT(7.4 - e.pH, 0.03);
     EXPECT_LT(7.4 - e.pH, 0.06);
     char quoted[16];
-    std::snprintf(quoted, sizeof quoted, "pH %.2f", e.pH);
+    std::snprintf(quoted, sizeof quoted, "pH %.2f with", e.pH);
     if (m == ActivityModel::kSit) std::snprintf(quoted, sizeof quoted, "%.2f under SIT", e.pH);
     EXPECT_NE(warning.find(quoted), std::string::npos) << quoted << " in: " << warning;
   }

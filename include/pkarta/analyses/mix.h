@@ -2,7 +2,6 @@
 #ifndef PKARTA_MIX_H_
 #define PKARTA_MIX_H_
 
-#include <optional>
 #include <string>
 #include <vector>
 
@@ -29,24 +28,10 @@ inline constexpr double kOsmoticCoefficient = 0.93;
 inline constexpr double kDaviesHintIonicStrength = 0.15;
 inline constexpr double kDaviesHintMultivalentMolPerL = 0.005;
 
-/// Where Davies is known to drift: the solved state's ionic strength, its di- and trivalent
-/// buffer anions (mol/L, all species of charge -2 or below of the library systems, the drug's
-/// own excluded) and the ids of their systems.
-struct DaviesDriftConditions {
-  double ionic_strength_mol_per_L = 0.0;
-  double multivalent_mol_per_L = 0.0;
-  std::vector<std::string> systems;
-  /// "ionic strength 0.22 mol/L with 40 mM of di- and trivalent anions (phosphate)"
-  std::string words() const;
-};
-
-/// Set when `mixture` is solved under Davies activities above kDaviesHintIonicStrength with at
-/// least kDaviesHintMultivalentMolPerL of multivalent anions in the solved state `e`.
-std::optional<DaviesDriftConditions> davies_drift_conditions(const Mixture& mixture, const Equilibrium& e);
-
-/// Under such conditions, a warning naming the multivalent anions of the solved state `e` and
-/// the models that are closer (`--activity ion-pairs` or `sit`); empty otherwise.
-/// analyse_mix() adds it to the state's warnings.
+/// Under Davies activities at such an ionic strength and with such multivalent anions in the
+/// solved state `e`: a warning naming them, the pH the same mixture has with explicit ion pairs
+/// and under SIT, and what the published tables say; empty otherwise. analyse_mix() adds it to
+/// the state's warnings.
 std::string activity_model_hint(const Mixture& mixture, const Equilibrium& e);
 
 /// Solves the mixture and derives capacity and the osmolality estimate.
