@@ -248,6 +248,10 @@ int run_screen(const Args& args) {
     batch.progress = bar;
     std::vector<ScreenReport> reports = screen_batch(lib, jobs, opt, batch);
     bar.finish();
+    for (ScreenReport& rep : reports) {
+      rep.dose_text = dose;
+      rep.dose_basis = dose_as;
+    }
 
     auto screen_json = [&reports](const ScreenBands* bands) {
       std::ostringstream doc;

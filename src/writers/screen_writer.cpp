@@ -89,6 +89,28 @@ void write_storage_note(const ScreenReport& rep, std::ostream& out) {
   if (!text.empty()) write_wrapped(out, text, 100, "  ");
 }
 
+// A shell command over several lines, broken before an option with a backslash so that it can be
+// pasted as it stands; each line at most `width` columns where the words allow.
+void write_command(std::ostream& out, const std::string& cmd, std::size_t width, const std::string& indent) {
+  std::string line = indent;
+  std::size_t i = 0;
+  while (i < cmd.size()) {
+    // The next option with its value ("--dose 0.5mg/mL"), or the leading words.
+    std::size_t j = cmd.find(" --", i + 1);
+    if (j == std::string::npos) j = cmd.size();
+    const std::string part = cmd.substr(i, j - i);
+    const std::string piece = line.size() > indent.size() ? part : part.substr(part.find_first_not_of(' '));
+    if (line.size() > indent.size() && line.size() + piece.size() + 2 > width) {
+      out << line << " \\\n";
+      line = indent + "  " + part.substr(part.find_first_not_of(' '));
+    } else {
+      line += piece;
+    }
+    i = j;
+  }
+  out << line << "\n";
+}
+
 // Per buffer that was searched: each criterion's value and verdict at the strength used.
 void write_screen_criteria(const ScreenReport& rep, std::ostream& out) {
   bool any = false;
@@ -216,6 +238,8 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
     f["results"] = ok;
     j["premade_fallback"] = f;
   }
+  const std::string cmd = screen_recipe_command(rep);
+  j["recipe_command"] = cmd.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(cmd);
   j["warnings"] = rep.warnings;
   return j;
 }
@@ -306,6 +330,50 @@ std::string screen_storage_note(const ScreenReport& rep) {
          " reads pH " + list + " (target " + fixed(rep.target_pH, 2) + " +/- " + fixed(limit, 2) + ")." +
          (any_holds ? " Ranked after the buffers that hold at both." : "") +
          " --max-drift PH makes the storage pH a criterion.";
+}
+
+namespace {
+// A command-line argument, single-quoted when it holds anything a shell would split or expand.
+std::string shell_word(const std::string& w) {
+  if (!w.empty() && w.find_first_not_of("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789/._-+%,=:") ==
+                        std::string::npos) {
+    return w;
+  }
+  std::string q = "'";
+  for (char c : w) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return q + "'";
+}
+}  // namespace
+
+std::string screen_recipe_command(const ScreenReport& rep) {
+  const ScreenResult* lead = nullptr;
+  bool adjusted = rep.preparation == ScreenPreparation::kAdjusted;
+  for (const ScreenResult& r : rep.results) {
+    if (r.status == ScreenStatus::kOk && r.recommended_conc_mol_per_L) {
+      lead = &r;
+      break;
+    }
+  }
+  if (!lead && rep.fallback && !rep.fallback->adjusted.empty() && rep.fallback->adjusted.front().recommended_conc_mol_per_L) {
+    lead = &rep.fallback->adjusted.front();
+    adjusted = true;
+  }
+  if (!lead || rep.compound_file.empty()) return "";
+  std::string cmd = "pkarta recipe --buffer " + shell_word(lead->buffer) + " --ph " + fixed(rep.target_pH, 2) +
+                    " --conc " + sig(1e3 * *lead->recommended_conc_mol_per_L, 3) + "mM --compound " +
+                    shell_word(rep.compound_file) + " --dose ";
+  if (rep.dose_text.empty()) {
+    cmd += sig(1e3 * rep.dose_mol_per_L, 6) + "mM --dose-as free";
+  } else {
+    cmd += shell_word(rep.dose_text);
+    if (rep.dose_basis != "weighed") cmd += " --dose-as " + shell_word(rep.dose_basis);
+  }
+  if (rep.form != "free") cmd += " --form " + shell_word(rep.form);
+  if (adjusted) cmd += " --preparation adjusted";
+  if (std::fabs(rep.temperature_C - 25.0) > 1e-9) cmd += " --temp " + sig(rep.temperature_C, 6);
+  if (rep.activity != kDefaultActivityModel) cmd += " --activity " + activity_model_id(rep.activity);
+  if (rep.route == "parenteral" || rep.route == "ophthalmic") cmd += " --isotonic";
+  return cmd;
 }
 
 const char* screen_osmolality_note() { return kOsmolalityNote; }
@@ -439,6 +507,10 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     write_screen_criteria(rep, out);
     write_screen_near_misses(rep, out);
     write_fallback(rep, out);
+    if (const std::string cmd = screen_recipe_command(rep); !cmd.empty()) {
+      out << "\n  bench recipe of this answer (reagents and drug to weigh, order of addition):\n";
+      write_command(out, cmd, 100, "    ");
+    }
     std::vector<std::string> notes;
     for (const ScreenResult& r : rep.results) {
       for (const std::string& w : r.route_flags) notes.push_back(r.buffer + ": " + w);

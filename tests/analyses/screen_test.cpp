@@ -577,6 +577,44 @@ TEST(ScreenCli, TextAndCsvCarryUnitsAndTheCaution) {
   EXPECT_NE(r.out.find("caution,"), std::string::npos);
 }
 
+// The screen's answer ends with the recipe command that makes it: pasted as printed (backslash
+// line breaks), it runs and gives the formulation at the target pH with the buffer and strength
+// of the screen's leading line. Demo acid, 5 mg/mL at pH 7.4, parenteral: no buffer made first
+// holds it, so the command is of the adjusted fallback's leader (with --preparation adjusted and
+// --isotonic, 290 mOsm/kg, the common-practice tonicity target).
+TEST(ScreenCli, PrintsTheRecipeCommandOfItsAnswerAndTheCommandRuns) {
+  const RunResult r = run("screen --compound compounds/demo-acid.xml --dose 5mg/mL --target-ph 7.4 --route parenteral");
+  ASSERT_EQ(r.code, 0) << r.err;
+  const std::size_t at = r.out.find("pkarta recipe ");
+  ASSERT_NE(at, std::string::npos) << r.out;
+  std::string cmd;
+  for (std::size_t i = at; i < r.out.size(); ++i) {
+    if (r.out.compare(i, 2, "\\\n") == 0) {  // a backslash-newline and the indentation after it
+      i += 2;
+      while (i < r.out.size() && r.out[i] == ' ') ++i;
+      --i;
+      continue;
+    }
+    if (r.out[i] == '\n') break;
+    cmd += r.out[i];
+  }
+  EXPECT_NE(cmd.find("--preparation adjusted"), std::string::npos) << cmd;
+  EXPECT_NE(cmd.find("--isotonic"), std::string::npos) << cmd;
+  const RunResult json = run("screen --compound compounds/demo-acid.xml --dose 5mg/mL --target-ph 7.4 --route parenteral "
+                             "--format json");
+  ASSERT_EQ(json.code, 0) << json.err;
+  const nlohmann::json j = nlohmann::json::parse(json.out);
+  const nlohmann::json& lead = j["premade_fallback"]["results"][0];
+  const RunResult recipe = run(cmd.substr(std::string("pkarta ").size()) + " --format json");
+  ASSERT_EQ(recipe.code, 0) << cmd << "\n" << recipe.err;
+  const nlohmann::json x = nlohmann::json::parse(recipe.out);
+  EXPECT_EQ(x["buffer"], lead["buffer"]);
+  EXPECT_NEAR(x["conc_mol_per_L"].get<double>(), lead["recommended_conc_mol_per_L"].get<double>(), 1e-9);
+  EXPECT_NEAR(x["formulation"]["pH"].get<double>(), 7.4, 0.005);
+  EXPECT_NEAR(x["formulation"]["osmolality_estimate_mOsm_per_kg"].get<double>(), 290.0, 1.0);
+  EXPECT_EQ(j["recipe_command"], nlohmann::json(std::string(cmd)));
+}
+
 TEST(ScreenCli, BatchOverAFolderMatchesSingleRuns) {
   const std::string dir = temp_dir() + "/batch";
   std::filesystem::create_directories(dir);

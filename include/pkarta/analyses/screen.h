@@ -201,6 +201,10 @@ struct ScreenReport {
   std::string compound_name;
   std::string compound_file;
   std::string form = "free";
+  /// The dose as the user gave it ("0.5mg/mL") and its basis ("weighed" or "free"), for the
+  /// recipe command of the text output; empty when the screen was not run from the command line.
+  std::string dose_text;
+  std::string dose_basis = "weighed";
   double target_pH = 0.0;
   double tolerance_pH = 0.0;
   double temperature_C = 25.0;

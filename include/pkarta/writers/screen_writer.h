@@ -30,6 +30,12 @@ std::string storage_failure_text(const ScreenReport& report, const ScreenResult&
 /// One paragraph naming the ok buffers that hold the target at the run temperature only, with
 /// their storage pH and the reason; empty when every ok buffer holds at both ends.
 std::string screen_storage_note(const ScreenReport& report);
+/// The `pkarta recipe` command that prints the bench recipe of the screen's answer: the leading
+/// ok buffer at its recommended strength with the compound and dose (with --preparation adjusted
+/// for the leading buffer of the adjusted fallback), --isotonic for parenteral and ophthalmic
+/// routes; empty when no buffer is ok either way. The dose is the user's text when known, else
+/// the dose in mM of free form.
+std::string screen_recipe_command(const ScreenReport& report);
 const char* screen_osmolality_note();
 void write_screen_json(const std::vector<ScreenReport>& reports, std::ostream& out);
 /// The JSON document `pkarta screen` prints: write_screen_json's object, with "screens" (one
