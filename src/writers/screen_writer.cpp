@@ -475,7 +475,13 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
     TextTable t(head);
     if (wide) t.set_max_width(0);
     int rank = 0;
+    std::vector<std::string> outside;  // named below the default table, not given a row each
     for (const ScreenResult& r : rep.results) {
+      if (!wide && r.status == ScreenStatus::kOutsideRange) {
+        outside.push_back(r.buffer + " " + fixed(r.nearest_pka, 2));
+        ++rank;
+        continue;
+      }
       std::vector<std::string> row = {
           std::to_string(++rank), r.buffer, status_cell(rep, r),
           r.min_conc_mol_per_L ? (r.min_conc_at_lower_bound ? "<" : "") + sig(1e3 * *r.min_conc_mol_per_L, 3) : "n/a",
@@ -498,10 +504,16 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
       t.add_row(row);
     }
     t.write(out);
+    if (!outside.empty()) {
+      std::string list;
+      for (const std::string& o : outside) list += (list.empty() ? "" : ", ") + o;
+      write_wrapped(out, "outside-range (no pKa within 1 of the target; nearest pKa at " +
+                             fixed(rep.temperature_C, 0) + " °C): " + list + ".", 100, "  ");
+    }
     write_storage_note(rep, out);
     if (!wide) {
-      out << "  (--wide adds the pH after the acid and base challenges, capacity, ionic strength, osmolality,\n"
-             "  the pH at the storage temperatures, the drug solid"
+      out << "  (--wide adds the outside-range rows, the pH after the acid and base challenges, capacity,\n"
+             "  ionic strength, osmolality, the pH at the storage temperatures, the drug solid"
           << (rep.dose_range_fraction > 0 ? ", the worst pH over the dose range" : "") << " and the routes)\n";
     }
     write_screen_criteria(rep, out);

@@ -12,6 +12,7 @@
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
+#include <regex>
 #include <sstream>
 
 #include "pkarta/chem/mixture_builder.h"
@@ -613,6 +614,21 @@ TEST(ScreenCli, PrintsTheRecipeCommandOfItsAnswerAndTheCommandRuns) {
   EXPECT_NEAR(x["formulation"]["pH"].get<double>(), 7.4, 0.005);
   EXPECT_NEAR(x["formulation"]["osmolality_estimate_mOsm_per_kg"].get<double>(), 290.0, 1.0);
   EXPECT_EQ(j["recipe_command"], nlohmann::json(std::string(cmd)));
+}
+
+// Buffers with no pKa within 1 of the target are named on one line below the default table
+// (acetate's pKa 4.76 is 2.6 from pH 7.4), and keep their rows with --wide.
+TEST(ScreenCli, OutsideRangeBuffersAreNamedBelowTheDefaultTable) {
+  const std::string args = "screen --compound compounds/demo-acid.xml --dose 1mg/mL --form sodium --target-ph 7.4";
+  const RunResult r = run(args);
+  ASSERT_EQ(r.code, 0) << r.err;
+  const std::size_t line = r.out.find("outside-range (no pKa within 1 of the target");
+  ASSERT_NE(line, std::string::npos) << r.out;
+  EXPECT_NE(r.out.find("acetate 4.76", line), std::string::npos) << r.out;
+  EXPECT_FALSE(std::regex_search(r.out, std::regex("\n  [0-9]+ +acetate +"))) << r.out;  // no row of its own
+  const RunResult w = run(args + " --wide");
+  ASSERT_EQ(w.code, 0) << w.err;
+  EXPECT_TRUE(std::regex_search(w.out, std::regex("\n  [0-9]+ +acetate +outside-range"))) << w.out;
 }
 
 TEST(ScreenCli, BatchOverAFolderMatchesSingleRuns) {
