@@ -225,16 +225,21 @@ TEST_F(RecipeTest, RecipesFedBackThroughMixGiveTheirTargetPh) {
   }
 }
 
+// Phosphate at pH 7.4 and a strength, made isotonic with NaCl.
+RecipeOptions isotonic_phosphate_7_4(double conc_mol_per_L) {
+  RecipeOptions o;
+  o.buffer = "phosphate";
+  o.pH = 7.4;
+  o.conc_mol_per_L = conc_mol_per_L;
+  o.isotonic = true;
+  return o;
+}
+
 TEST_F(RecipeTest, IsotonicDiluteBufferNeedsAboutNinePerMilleSodiumChloride) {
   // 0.9 % w/v NaCl (154 mM) is the isotonic saline, 286-288 mOsm/kg with the osmotic
   // coefficient 0.93 (common practice). A 1 mM phosphate buffer made to 290 mOsm/kg with
   // NaCl therefore needs about 9 g/L of NaCl: within 2 % of 0.9 %.
-  RecipeOptions o;
-  o.buffer = "phosphate";
-  o.pH = 7.4;
-  o.conc_mol_per_L = 0.001;
-  o.isotonic = true;
-  const Recipe r = make_recipe(lib_, o);
+  const Recipe r = make_recipe(lib_, isotonic_phosphate_7_4(0.001));
   ASSERT_EQ(r.reagents.size(), 3u);
   const RecipeReagent& nacl = r.reagents[2];
   EXPECT_EQ(nacl.id, "NaCl");
@@ -250,11 +255,7 @@ TEST_F(RecipeTest, IsotonicDiluteBufferNeedsAboutNinePerMilleSodiumChloride) {
 // same weights give with explicit ion pairs and under SIT, each as solved here, both 0.03-0.06
 // below the target. 1 mM phosphate in the same saline (0.8 mM HPO4 2-) gets no such warning.
 TEST_F(RecipeTest, IsotonicPhosphateQuotesThePhUnderTheOtherModelsWhereTheyPart) {
-  RecipeOptions o;
-  o.buffer = "phosphate";
-  o.pH = 7.4;
-  o.conc_mol_per_L = 0.05;
-  o.isotonic = true;
+  RecipeOptions o = isotonic_phosphate_7_4(0.05);
   const Recipe r = make_recipe(lib_, o);
   std::string warning;
   for (const std::string& w : r.warnings) {

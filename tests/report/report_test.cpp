@@ -292,24 +292,40 @@ TEST(Report, RecipeDilutionUncertaintyAndFitSections) {
   EXPECT_EQ(html.select_nodes("//table[@data-csv='fit-residuals.csv']/tbody/tr").size(), fixture().compound.measured.size());
 }
 
+// The report of the demo acid at a dose of its free form, a target pH and a route (no Monte
+// Carlo bands), with the library and compound it was made from.
+struct DemoAcidReport {
+  Library library;
+  Compound compound;
+  ReportData data;
+};
+DemoAcidReport demo_acid_report(const std::string& dose, double target_pH, const std::string& route) {
+  setenv("SOURCE_DATE_EPOCH", kExampleEpoch, 1);
+  DemoAcidReport r;
+  r.library = builtin_library();
+  r.compound = load_compound_file(source("compounds/demo-acid.xml"), r.library, nullptr);
+  ReportRequest req;
+  req.dose_text = dose;
+  req.dose_mol_per_L = dose_conc_mol_per_L(r.library, r.compound, "free", parse_amount(dose), 25.0);
+  req.target_pH = target_pH;
+  req.route = route;
+  req.uncertainty_samples = 0;
+  RunRecord run;
+  run.date_utc = report_date_utc();
+  r.data = analyse_report(r.compound, r.library, req, run);
+  return r;
+}
+
 // A free acid whose dose itself moves the pH (demo-acid, 5 mg/mL at pH 7.4): no buffer made first
 // at the target holds it, one made with the pH adjusted after the dose does, and the report then
 // gives that formulation's recipe (the drug, the titrant after it) instead of a buffer recipe. The
 // recipe is checked against the equilibrium of its own contents (charge balance solved afresh) and
 // against the tonicity target (290 mOsm/kg, common practice).
 TEST(Report, AdjustedFormulationGetsItsRecipe) {
-  setenv("SOURCE_DATE_EPOCH", kExampleEpoch, 1);
-  const Library library = builtin_library();
-  const Compound compound = load_compound_file(source("compounds/demo-acid.xml"), library, nullptr);
-  ReportRequest req;
-  req.dose_text = "5mg/mL";
-  req.dose_mol_per_L = dose_conc_mol_per_L(library, compound, "free", parse_amount("5mg/mL"), 25.0);
-  req.target_pH = 7.4;
-  req.route = "parenteral";
-  req.uncertainty_samples = 0;
-  RunRecord run;
-  run.date_utc = report_date_utc();
-  const ReportData d = analyse_report(compound, library, req, run);
+  const DemoAcidReport r = demo_acid_report("5mg/mL", 7.4, "parenteral");
+  const Library& library = r.library;
+  const Compound& compound = r.compound;
+  const ReportData& d = r.data;
   ASSERT_TRUE(d.screen && d.screen->fallback);
   ASSERT_FALSE(d.screen->fallback->adjusted.empty());
   EXPECT_FALSE(d.recipe);
@@ -321,7 +337,7 @@ TEST(Report, AdjustedFormulationGetsItsRecipe) {
   EXPECT_EQ(f.preparation, ScreenPreparation::kAdjusted);
   // 5 mg/mL of the free form in 1 L: 5 g weighed.
   EXPECT_NEAR(f.drug.mass_g, 5.0 * f.recipe.volume_L, 1e-9);
-  const Equilibrium e = solve(formulation_mixture(library, f, compound, req.activity));
+  const Equilibrium e = solve(formulation_mixture(library, f, compound, ReportRequest{}.activity));
   ASSERT_TRUE(e.usable());
   EXPECT_NEAR(e.pH, 7.4, 0.005);
   EXPECT_NEAR(f.osmolality_estimate_mOsm_per_kg, 290.0, 1.0);
@@ -353,17 +369,8 @@ TEST(Report, AdjustedFormulationGetsItsRecipe) {
 // 5, 467; tris -0.028), so at 5 °C each lies 0.28 or more above the target, beyond +/-0.10,
 // while phosphate (the one buffer that would hold in storage) fails the acid challenge.
 TEST(Report, SummarySaysWhenTheRecommendedBufferHoldsAtTheRunTemperatureOnly) {
-  setenv("SOURCE_DATE_EPOCH", kExampleEpoch, 1);
-  const Library library = builtin_library();
-  const Compound compound = load_compound_file(source("compounds/demo-acid.xml"), library, nullptr);
-  ReportRequest req;
-  req.dose_text = "0.5mg/mL";
-  req.dose_mol_per_L = dose_conc_mol_per_L(library, compound, "free", parse_amount("0.5mg/mL"), 25.0);
-  req.target_pH = 7.6;
-  req.uncertainty_samples = 0;
-  RunRecord run;
-  run.date_utc = report_date_utc();
-  const ReportData d = analyse_report(compound, library, req, run);
+  const DemoAcidReport r = demo_acid_report("0.5mg/mL", 7.6, "any");
+  const ReportData& d = r.data;
   ASSERT_TRUE(d.screen);
   const ScreenResult& lead = d.screen->results.front();
   ASSERT_EQ(lead.status, ScreenStatus::kOk);
