@@ -251,6 +251,7 @@ int run_screen(const Args& args) {
     for (ScreenReport& rep : reports) {
       rep.dose_text = dose;
       rep.dose_basis = dose_as;
+      rep.library_files = common.library_files;
     }
 
     auto screen_json = [&reports](const ScreenBands* bands) {

@@ -370,9 +370,15 @@ std::string screen_recipe_command(const ScreenReport& rep) {
   }
   if (rep.form != "free") cmd += " --form " + shell_word(rep.form);
   if (adjusted) cmd += " --preparation adjusted";
-  if (std::fabs(rep.temperature_C - 25.0) > 1e-9) cmd += " --temp " + sig(rep.temperature_C, 6);
+  if (std::fabs(rep.temperature_C - 25.0) > 1e-9) {
+    std::string t = fixed(rep.temperature_C, 2);  // "37", "37.5": no trailing zeros
+    while (t.back() == '0') t.pop_back();
+    if (t.back() == '.') t.pop_back();
+    cmd += " --temp " + t;
+  }
   if (rep.activity != kDefaultActivityModel) cmd += " --activity " + activity_model_id(rep.activity);
   if (rep.route == "parenteral" || rep.route == "ophthalmic") cmd += " --isotonic";
+  for (const std::string& f : rep.library_files) cmd += " --library " + shell_word(f);
   return cmd;
 }
 

@@ -205,6 +205,7 @@ struct ScreenReport {
   /// recipe command of the text output; empty when the screen was not run from the command line.
   std::string dose_text;
   std::string dose_basis = "weighed";
+  std::vector<std::string> library_files;  ///< the --library files the screen was run with
   double target_pH = 0.0;
   double tolerance_pH = 0.0;
   double temperature_C = 25.0;
