@@ -94,8 +94,12 @@ int run_screen(const Args& args) {
          "strong acid and, separately, strong base added to the finished formulation must leave its "
          "pH within the tolerance; 0 turns this off")
         ("min-capacity", po::value(&min_capacity), "buffer capacity required, mol/L per pH (e.g. 0.01 or 10mM)")
-        ("storage", po::value(&storage)->default_value("5,40"), "storage temperatures, °C: LOW,HIGH (pH reported at both)")
-        ("max-drift", po::value(&max_drift), "the pH at both storage temperatures must lie within this of the target")
+        ("storage", po::value(&storage)->default_value("5,40"),
+         "storage temperatures, °C: LOW,HIGH; the pH and any drug solid are computed at both, and buffers "
+         "that hold the target there rank first")
+        ("max-drift", po::value(&max_drift),
+         "the pH at both storage temperatures must lie within this of the target (a criterion; without it "
+         "the tolerance decides the ranking only)")
         ("round", po::value(&round), "round the recommended strength up to a multiple of this (e.g. 5mM); "
          "default: 1-2-5 series in mM from 1 mM")
         ("threads", po::value(&threads)->default_value("0"), "worker threads for a batch (0: all cores)")
