@@ -289,7 +289,8 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
     r.blood_description = (open ? "open CO2 at pCO2 " + sig(options.pco2_mmHg, 3) + " mmHg"
                                 : std::string("closed CO2 (carbonate total kept)")) +
                           " with " + kind + sig(r.non_bicarbonate_buffer_mM_per_pH, 3) + " mmol/L/pH, " +
-                          sig(r.medium_explicit_buffer_mM_per_pH, 2) + " of it the medium's own " + explicit_names;
+                          "of which " + sig(r.medium_explicit_buffer_mM_per_pH, 2) + " mmol/L/pH is the medium's own " +
+                          explicit_names + ", solved explicitly";
   }
 
   for (double ratio : options.ratios) {

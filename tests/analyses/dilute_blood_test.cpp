@@ -243,7 +243,7 @@ TEST(DiluteBlood, MediumPhosphateIsNotCountedTwice) {
   EXPECT_GT(hand, 0.2);
   EXPECT_LT(hand, 0.45);
   EXPECT_NEAR(r.lumped_buffer_mM_per_pH + r.medium_explicit_buffer_mM_per_pH, 7.7, 1e-12);
-  EXPECT_NE(r.blood_description.find("of it the medium's own phosphate"), std::string::npos) << r.blood_description;
+  EXPECT_NE(r.blood_description.find("of which 0.38 mmol/L/pH is the medium's own phosphate, solved explicitly"), std::string::npos) << r.blood_description;
 }
 
 // The lumped buffer's own value at pH 7.4 and I 0.15: beta = ln(10) C x variance of the proton
