@@ -286,6 +286,7 @@ std::vector<std::string> screen_fallback_items(const ScreenReport& rep) {
   }
   return items;
 }
+
 std::string storage_failure_text(const ScreenReport& rep, const ScreenResult& r) {
   const double limit = rep.max_drift_pH ? *rep.max_drift_pH : rep.tolerance_pH;
   std::vector<std::string> parts;
