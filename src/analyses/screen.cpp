@@ -9,6 +9,7 @@
 #include <thread>
 
 #include "pkarta/base/format.h"
+#include "pkarta/analyses/dilute.h"
 #include "pkarta/analyses/mix.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/analyses/profile.h"
@@ -605,6 +606,22 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
   else if (!achievable) r.status = ScreenStatus::kNotAchievable;
   else r.status = ScreenStatus::kOk;
   if (r.status == ScreenStatus::kOk) r.route_flags = screen_route_flags(options.route, r, options.temperature_C);
+  if (r.status == ScreenStatus::kOk && !options.dilution_medium.empty() && std::isfinite(r.pH_after_drug)) {
+    DilutionOptions d;
+    d.medium_id = options.dilution_medium;
+    const DilutionResult dr = analyse_dilution(final_mix, library, d);
+    if (dr.usable()) {
+      r.dilution_max_supersaturation = 0.0;
+      for (const DilutionPoint& p : dr.points) {
+        if (p.supersaturation_ratio > r.dilution_max_supersaturation) {
+          r.dilution_max_supersaturation = p.supersaturation_ratio;
+          r.dilution_worst_ratio = p.ratio;
+        }
+      }
+    } else {
+      r.warnings.push_back("dilution into " + options.dilution_medium + ": " + dr.message);
+    }
+  }
   return r;
 }
 

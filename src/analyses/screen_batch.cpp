@@ -3,6 +3,8 @@
 
 #include "pkarta/analyses/screen.h"
 
+#include "pkarta/analyses/dilute.h"
+
 #include <algorithm>
 #include <atomic>
 #include <cmath>
@@ -209,6 +211,7 @@ ScreenReport report_header(const ScreenJob& job, const ScreenOptions& options) {
   rep.min_capacity_mol_per_L_per_pH = options.min_capacity_mol_per_L_per_pH;
   rep.max_drift_pH = options.max_drift_pH;
   rep.round_step_mol_per_L = options.round_step_mol_per_L;
+  rep.dilution_medium = options.dilution_medium;
   return rep;
 }
 
@@ -229,6 +232,15 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
   check_options(options);
   for (const ScreenJob& job : jobs) check_job(job);
   const std::vector<const Buffer*> buffers = screen_candidates(library, options);
+  std::string dilution_label;
+  if (!options.dilution_medium.empty()) {
+    if (!library.media.count(options.dilution_medium)) {
+      throw InputError("unknown dilution medium \"" + options.dilution_medium + "\" (pkarta library list media)");
+    }
+    const Medium& m = library.medium(options.dilution_medium);
+    dilution_label = m.id + ", " + m.name + (is_physiological_medium(library, m.id) ? ", open CO2 at pCO2 40 mmHg, 37 °C"
+                                                                                   : ", at " + fixed(options.temperature_C, 0) + " °C");
+  }
   int threads = batch.threads;
   if (threads <= 0) threads = std::max(1u, std::thread::hardware_concurrency());
 
@@ -236,6 +248,7 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
   reports.reserve(jobs.size());
   for (const ScreenJob& job : jobs) {
     reports.push_back(report_header(job, options));
+    reports.back().dilution_label = dilution_label;
     reports.back().results.resize(buffers.size());
   }
   // The solubility at the target first (one per compound), then every (compound, buffer) pair.
@@ -272,6 +285,20 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
                              (where.empty() ? std::string("it dissolves nowhere between pH 1 and 13 in water")
                                             : "in water it dissolves " + where) +
                              "; lower the dose or move the target pH");
+    }
+    // The leading ok buffer may precipitate the drug on dilution while another ok buffer does not.
+    const ScreenResult* lead = nullptr;
+    const ScreenResult* clear = nullptr;
+    for (const ScreenResult& r : rep.results) {
+      if (r.status != ScreenStatus::kOk || !std::isfinite(r.dilution_max_supersaturation)) continue;
+      if (!lead) lead = &r;
+      else if (!clear && r.dilution_max_supersaturation <= 1.0) clear = &r;
+    }
+    if (lead && clear && lead->dilution_max_supersaturation > 1.0) {
+      rep.warnings.push_back("the leading buffer, " + lead->buffer + ", may let the drug precipitate on dilution into " +
+                             rep.dilution_medium + " (highest supersaturation ratio " +
+                             sig(lead->dilution_max_supersaturation, 3) + "); " + clear->buffer + " does not (" +
+                             sig(clear->dilution_max_supersaturation, 3) + "): weigh the two");
     }
     if (rep.route == "parenteral" || rep.route == "ophthalmic") {
       for (const ScreenResult& r : rep.results) {

@@ -71,7 +71,7 @@ int run_screen(const Args& args) {
     std::string target_alias;
     std::string dose, form = "free", dose_as = "weighed", target, tolerance = "0.1", buffers = "all", route = "any",
                 temp = "25", dose_range, threads = "0", uncertainty = "0", seed = "1",
-                preparation = "premade", challenge = "1mM", min_capacity, storage = "5,40", max_drift, round;
+                preparation = "premade", challenge = "1mM", min_capacity, storage = "5,40", max_drift, round, into;
     po::options_description desc("screen options");
     desc.add_options()
         ("compound", po::value(&compounds)->composing(),
@@ -102,6 +102,9 @@ int run_screen(const Args& args) {
          "the tolerance decides the ranking only)")
         ("round", po::value(&round), "round the recommended strength up to a multiple of this (e.g. 5mM); "
          "default: 1-2-5 series in mM from 1 mM")
+        ("into", po::value(&into),
+         "medium each ok formulation is diluted into, 1:1 to 1:100 (highest supersaturation reported), "
+         "or none (default: plasma-7.4 for the parenteral route, none otherwise)")
         ("threads", po::value(&threads)->default_value("0"), "worker threads for a batch (0: all cores)")
         ("uncertainty", po::value(&uncertainty)->default_value("0"),
          "Monte Carlo samples over the pKa sd and S0 log-sd: 5/50/95 % bands of min conc (one compound)")
@@ -121,7 +124,7 @@ int run_screen(const Args& args) {
                  "pkarta screen --compound FILE --dose AMOUNT [--form free|SALT] --target-ph PH "
                  "[--tolerance 0.1] [--buffers all|ID,ID] [--route oral|parenteral|ophthalmic|any] "
                  "[--temp CELSIUS] [--dose-range 10%] [--preparation premade|adjusted] [--challenge 1mM] "
-                 "[--min-capacity CAPACITY] [--storage 5,40] [--max-drift PH] [--round AMOUNT]",
+                 "[--min-capacity CAPACITY] [--storage 5,40] [--max-drift PH] [--round AMOUNT] [--into MEDIUM|none]",
                  desc);
       std::cout << "\n" << tables_help(screen_table_info());
       print_examples(std::cout, {"pkarta screen --compound compounds/demo-base.xml --dose 0.5mg/mL --form hydrochloride --target-ph 5 --route parenteral",
@@ -209,6 +212,16 @@ int run_screen(const Args& args) {
     batch.threads = static_cast<int>(option_count("--threads", threads, 0, 1024, "threads"));
 
     const Library lib = load_libraries(common);
+    if (into.empty()) {
+      if (route == "parenteral" && lib.media.count("plasma-7.4")) opt.dilution_medium = "plasma-7.4";
+    } else if (into != "none") {
+      if (!lib.media.count(into)) {
+        std::string known;
+        for (const auto& m : lib.media) known += (known.empty() ? "" : ", ") + m.first;
+        throw InputError(SourceLocation{"--into", 0, 0}, "unknown medium \"" + into + "\" (media: " + known + ")");
+      }
+      opt.dilution_medium = into;
+    }
     if (buffers != "all") {
       opt.buffers = split_list(buffers);
       if (opt.buffers.empty()) {

@@ -33,7 +33,8 @@ std::vector<DataTable> screen_tables(const std::vector<ScreenReport>& reports, c
                "ionic_strength_mol_per_L", "osmolarity_mOsm_per_L", "osmolality_estimate_mOsm_per_kg",
                "low_temperature_C", "pH_at_low_temperature", "high_temperature_C", "pH_at_high_temperature",
                "drug_solid", "worst_pH_in_dose_range", "routes", "preparation", "challenge_mol_per_L",
-               "drug_solid_at_low_temperature", "drug_solid_at_high_temperature", "holds_at_storage_temperatures"},
+               "drug_solid_at_low_temperature", "drug_solid_at_high_temperature", "holds_at_storage_temperatures",
+               "dilution_medium", "dilution_max_supersaturation", "dilution_worst_ratio"},
               {}};
   DataTable c{"criteria",
               {"compound", "buffer", "criterion", "quantity", "value", "limit_low", "limit_high", "pass",
@@ -54,7 +55,9 @@ std::vector<DataTable> screen_tables(const std::vector<ScreenReport>& reports, c
              full(rep.low_temperature_C), full(r.pH_at_5C), full(rep.high_temperature_C), full(r.pH_at_40C),
              r.drug_solid, full(r.worst_pH_in_dose_range), join_words(r.routes),
              screen_preparation_name(rep.preparation), full(rep.challenge_mol_per_L), r.drug_solid_at_5C,
-             r.drug_solid_at_40C, boolean(r.holds_at_storage)});
+             r.drug_solid_at_40C, boolean(r.holds_at_storage), rep.dilution_medium,
+             full(r.dilution_max_supersaturation),
+             std::isfinite(r.dilution_max_supersaturation) ? full(r.dilution_worst_ratio) : std::string()});
       for (const ScreenCriterion& k : r.criteria) {
         c.add({rep.compound_id, r.buffer, k.id, k.quantity, full(k.value), full(k.limit_low), full(k.limit_high),
                boolean(k.pass), full(k.min_conc_mol_per_L), boolean(k.min_conc_at_lower_bound)});

@@ -173,6 +173,11 @@ nlohmann::ordered_json result_json(const ScreenReport& rep, const ScreenResult& 
   x["drug_solid_at_5C"] = r.drug_solid_at_5C;
   x["drug_solid_at_40C"] = r.drug_solid_at_40C;
   x["holds_at_storage_temperatures"] = r.holds_at_storage;
+  if (!rep.dilution_medium.empty()) {
+    x["dilution_max_supersaturation"] = number(r.dilution_max_supersaturation);
+    x["dilution_worst_ratio"] = std::isfinite(r.dilution_max_supersaturation) ? nlohmann::ordered_json(r.dilution_worst_ratio)
+                                                                                : nlohmann::ordered_json(nullptr);
+  }
   if (rep.dose_range_fraction > 0) {
     x["worst_pH_in_dose_range"] = opt_number(r.worst_pH_in_dose_range);
     x["dose_range_within_tolerance"] = r.dose_range_within_tolerance;
@@ -216,6 +221,10 @@ nlohmann::ordered_json report_json(const ScreenReport& rep) {
   if (rep.min_capacity_mol_per_L_per_pH > 0) j["min_capacity_mol_per_L_per_pH"] = rep.min_capacity_mol_per_L_per_pH;
   if (rep.max_drift_pH) j["max_drift_pH"] = *rep.max_drift_pH;
   j["solubility_at_target_pH_mol_per_L"] = number(rep.solubility_at_target_mol_per_L);
+  if (!rep.dilution_medium.empty()) {
+    j["dilution_medium"] = rep.dilution_medium;
+    j["dilution"] = rep.dilution_label;
+  }
   if (rep.solubility_at_target_mol_per_L < rep.dose_mol_per_L) {  // the ranges are computed then
     nlohmann::ordered_json ranges = nlohmann::ordered_json::array();
     for (const auto& [lo, hi] : rep.dose_soluble_pH_ranges) ranges.push_back({lo, hi});
@@ -331,6 +340,30 @@ std::string screen_storage_note(const ScreenReport& rep) {
          " reads pH " + list + " (target " + fixed(rep.target_pH, 2) + " +/- " + fixed(limit, 2) + ")." +
          (any_holds ? " Ranked after the buffers that hold at both." : "") +
          " --max-drift PH makes the storage pH a criterion.";
+}
+
+namespace {
+// "1:2", "1:2.5": a dilution ratio.
+std::string ratio_words(double ratio) {
+  std::string t = fixed(ratio, 1);
+  if (t.size() > 2 && t.compare(t.size() - 2, 2, ".0") == 0) t.resize(t.size() - 2);
+  return "1:" + t;
+}
+}  // namespace
+
+std::string screen_dilution_note(const ScreenReport& rep) {
+  if (rep.dilution_medium.empty()) return "";
+  std::string list;
+  for (const ScreenResult& r : rep.results) {
+    if (r.status != ScreenStatus::kOk || !std::isfinite(r.dilution_max_supersaturation)) continue;
+    list += (list.empty() ? "" : ", ") + r.buffer + " " + sig(r.dilution_max_supersaturation, 3) +
+            (r.dilution_max_supersaturation > 1.0 ? " at " + ratio_words(r.dilution_worst_ratio) + " (may precipitate)"
+                                                  : "");
+  }
+  if (list.empty()) return "";
+  return "diluted 1:1 to 1:100 into " + rep.dilution_label + ", each formulation as screened (no tonicity "
+         "reagent) reaches at most the supersaturation ratio (above 1 the drug may precipitate: a driving force, "
+         "not a rate): " + list + ".";
 }
 
 namespace {
@@ -518,6 +551,7 @@ void write_screen_text(const std::vector<ScreenReport>& reports, std::ostream& o
                              fixed(rep.temperature_C, 0) + " °C): " + list + ".", 100, "  ");
     }
     write_storage_note(rep, out);
+    if (const std::string d = screen_dilution_note(rep); !d.empty()) write_wrapped(out, d, 100, "  ");
     if (!wide) {
       out << "  (--wide adds the outside-range rows, the pH after the acid and base challenges, capacity,\n"
              "  ionic strength, osmolality, the pH at the storage temperatures, the drug solid"

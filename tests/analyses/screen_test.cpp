@@ -2,6 +2,8 @@
 // ranking, batch runs and the command line.
 #include "pkarta/analyses/screen.h"
 
+#include "pkarta/analyses/dilute.h"
+
 #include <gtest/gtest.h>
 
 #include "cli_run.h"
@@ -11,6 +13,7 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <map>
 #include <nlohmann/json.hpp>
 #include <regex>
 #include <sstream>
@@ -385,6 +388,42 @@ TEST_F(Screen, DoseThatDissolvesAt25CButNotAt40CDoesNotHoldInStorage) {
   EXPECT_FALSE(m.holds_at_storage);
 }
 
+// With a dilution medium each ok formulation is diluted as `dilute` dilutes it (1:1 to 1:100,
+// plasma at 37 °C with open CO2): the screen's highest supersaturation ratio is that of
+// analyse_dilution on the same formulation rebuilt here. At pH 5 the trivalent citrate holds the
+// mixture more acid on the first dilution into plasma than acetate at the same strength (its
+// capacity near pH 5-6.5 per mM is larger), so the weak base stays further from precipitating.
+TEST_F(Screen, DilutionIntoPlasmaMatchesDiluteForEachOkFormulation) {
+  ScreenOptions opt;
+  opt.target_pH = 5.0;
+  opt.route = "parenteral";
+  opt.buffers = {"acetate", "citrate"};
+  opt.dilution_medium = "plasma-7.4";
+  const ScreenJob j = job(base_, 0.5, "hydrochloride");
+  const ScreenReport rep = screen(lib_, j, opt);
+  ASSERT_EQ(rep.dilution_medium, "plasma-7.4");
+  std::map<std::string, double> worst;
+  for (const ScreenResult& r : rep.results) {
+    ASSERT_EQ(r.status, ScreenStatus::kOk) << r.buffer;
+    ASSERT_TRUE(std::isfinite(r.dilution_max_supersaturation)) << r.buffer;
+    const Buffer& b = lib_.buffer(r.buffer);
+    const BufferPreparation prep = prepare_buffer(lib_, b, r.conc_used_mol_per_L, opt.target_pH, opt.temperature_C);
+    const Mixture m = screen_mixture(lib_, b, prep, &j.compound, j.dose_mol_per_L, j.form, opt.temperature_C);
+    DilutionOptions d;
+    d.medium_id = "plasma-7.4";
+    const DilutionResult dr = analyse_dilution(m, lib_, d);
+    ASSERT_TRUE(dr.usable()) << dr.message;
+    double hi = 0.0;
+    for (const DilutionPoint& p : dr.points) hi = std::max(hi, p.supersaturation_ratio);
+    EXPECT_NEAR(r.dilution_max_supersaturation, hi, 1e-9 * hi) << r.buffer;
+    worst[r.buffer] = hi;
+  }
+  EXPECT_LT(worst.at("citrate"), worst.at("acetate"));
+  // Without a medium nothing is diluted.
+  opt.dilution_medium.clear();
+  for (const ScreenResult& r : screen(lib_, j, opt).results) EXPECT_TRUE(std::isnan(r.dilution_max_supersaturation));
+}
+
 TEST_F(Screen, DoseAboveTheHendersonHasselbalchSolubilityIsNotSoluble) {
   // Ideal Henderson-Hasselbalch for the base (pKa 3.1, 8.4; S0 12 ug/mL): at pH 6.5,
   // S = S0 (1 + 10^(8.4 - 6.5) + 10^(8.4 + 3.1 - 13)) = 3.1e-3 mol/L, below a 2 mg/mL dose of
@@ -631,6 +670,30 @@ TEST(ScreenCli, OutsideRangeBuffersAreNamedBelowTheDefaultTable) {
   EXPECT_TRUE(std::regex_search(w.out, std::regex("\n  [0-9]+ +acetate +outside-range"))) << w.out;
 }
 
+// The parenteral route dilutes each ok formulation into plasma by default (the text names the
+// medium and gives each buffer's highest supersaturation ratio; JSON the medium and the values);
+// --into none turns it off, and other routes dilute only when asked.
+TEST(ScreenCli, ParenteralScreensDiluteIntoPlasmaUnlessToldOtherwise) {
+  const std::string args = "screen --compound compounds/demo-base.xml --dose 0.5mg/mL --form hydrochloride --target-ph 5";
+  const RunResult iv = run(args + " --route parenteral");
+  ASSERT_EQ(iv.code, 0) << iv.err;
+  EXPECT_NE(iv.out.find("diluted 1:1 to 1:100 into plasma-7.4"), std::string::npos) << iv.out;
+  const RunResult json = run(args + " --route parenteral --format json");
+  ASSERT_EQ(json.code, 0) << json.err;
+  const nlohmann::json j = nlohmann::json::parse(json.out);
+  EXPECT_EQ(j["dilution_medium"], "plasma-7.4");
+  EXPECT_TRUE(j["results"][0]["dilution_max_supersaturation"].is_number());
+  const RunResult off = run(args + " --route parenteral --into none");
+  ASSERT_EQ(off.code, 0) << off.err;
+  EXPECT_EQ(off.out.find("diluted 1:1"), std::string::npos);
+  const RunResult oral = run(args + " --route oral");
+  ASSERT_EQ(oral.code, 0) << oral.err;
+  EXPECT_EQ(oral.out.find("diluted 1:1"), std::string::npos);
+  const RunResult asked = run(args + " --route oral --into sif-6.8");
+  ASSERT_EQ(asked.code, 0) << asked.err;
+  EXPECT_NE(asked.out.find("diluted 1:1 to 1:100 into sif-6.8"), std::string::npos) << asked.out;
+}
+
 TEST(ScreenCli, BatchOverAFolderMatchesSingleRuns) {
   const std::string dir = temp_dir() + "/batch";
   std::filesystem::create_directories(dir);
@@ -672,6 +735,7 @@ TEST(ScreenCli, BadInputExitsTwoWithAClearMessage) {
       {"--dose 1mg/mL --target-ph 6 --form tartrate", "has no salt 'tartrate'"},
       {"--dose 1mg/mL --target-ph 6 --buffers HEPES --route parenteral", "--route: none of the selected buffers"},
       {"--dose 1mg/mL --target-ph 6 --format xml", "--format: unknown format"},
+      {"--dose 1mg/mL --target-ph 6 --into seawater", "--into: unknown medium \"seawater\" (media: "},
   };
   for (const Case& c : cases) {
     const RunResult r = run(base + c.args);

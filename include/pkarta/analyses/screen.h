@@ -32,6 +32,7 @@
 
 #include <cstddef>
 #include <functional>
+#include <limits>
 #include <optional>
 #include <ostream>
 #include <string>
@@ -80,6 +81,11 @@ struct ScreenOptions {
   /// Recommended strength: the minimum rounded up to a multiple of this (mol/L); 0: to the
   /// 1-2-5 series in mM starting at 1 mM.
   double round_step_mol_per_L = 0.0;
+  /// Library medium each ok formulation is diluted into (analyse_dilution with its default ratios
+  /// 1:1 to 1:100, 37 °C for a physiological medium): the highest supersaturation ratio is
+  /// reported, not a criterion. Empty: no dilution (the command line sets plasma-7.4 for the
+  /// parenteral route).
+  std::string dilution_medium;
   /// False with a message naming the field ("ScreenOptions::tolerance_pH = 0, must be > 0").
   bool is_valid(std::string* error) const;
 };
@@ -162,6 +168,11 @@ struct ScreenResult {
   /// target (max_drift_pH when given, else the tolerance) and no drug solid there that is not
   /// present at the run temperature.
   bool holds_at_storage = true;
+  /// With ScreenOptions::dilution_medium, for ok results: the highest supersaturation ratio of the
+  /// drug over the dilution ratios (above 1: it may precipitate) and the ratio where it is; NaN and
+  /// 0 when not computed.
+  double dilution_max_supersaturation = std::numeric_limits<double>::quiet_NaN();
+  double dilution_worst_ratio = 0.0;
   std::optional<double> worst_pH_in_dose_range;  ///< when dose_range_fraction > 0
   bool dose_range_within_tolerance = true;
   std::string binding;                   ///< criterion setting min_conc (or failing at max-conc)
@@ -206,6 +217,8 @@ struct ScreenReport {
   std::string dose_text;
   std::string dose_basis = "weighed";
   std::vector<std::string> library_files;  ///< the --library files the screen was run with
+  std::string dilution_medium;             ///< ScreenOptions::dilution_medium
+  std::string dilution_label;              ///< how it was diluted ("plasma, open CO2, 37 °C"); empty without
   double target_pH = 0.0;
   double tolerance_pH = 0.0;
   double temperature_C = 25.0;

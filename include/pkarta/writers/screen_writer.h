@@ -30,6 +30,9 @@ std::string storage_failure_text(const ScreenReport& report, const ScreenResult&
 /// One paragraph naming the ok buffers that hold the target at the run temperature only, with
 /// their storage pH and the reason; empty when every ok buffer holds at both ends.
 std::string screen_storage_note(const ScreenReport& report);
+/// With a dilution medium: one paragraph giving each ok buffer's highest supersaturation ratio on
+/// dilution (and the ratio where it exceeds 1); empty otherwise.
+std::string screen_dilution_note(const ScreenReport& report);
 /// The `pkarta recipe` command that prints the bench recipe of the screen's answer: the leading
 /// ok buffer at its recommended strength with the compound and dose (with --preparation adjusted
 /// for the leading buffer of the adjusted fallback), --isotonic for parenteral and ophthalmic
