@@ -87,9 +87,18 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
     d.classification = classify(compound, library, co);
   }
 
-  // Buffer screen at the target pH, and the drift curves of its leading buffers.
+  // The medium the formulation is diluted into: the one asked, else the route's.
+  std::string dilution_medium = request.dilution_medium;
+  if (dilution_medium.empty()) {
+    dilution_medium = request.route == "parenteral" ? "plasma-7.4" : request.route == "oral" ? "sif-6.8" : "saline-0.9";
+    if (!library.media.count(dilution_medium)) dilution_medium = "none";
+  }
+
+  // Buffer screen at the target pH (each ok formulation also diluted into that medium), and the
+  // drift curves of its leading buffers.
   if (request.target_pH && request.dose_mol_per_L > 0.0) {
     ScreenOptions so;
+    if (dilution_medium != "none") so.dilution_medium = dilution_medium;
     so.target_pH = *request.target_pH;
     so.tolerance_pH = request.tolerance_pH;
     so.temperature_C = request.temperature_C;
@@ -138,14 +147,9 @@ ReportData analyse_report(const Compound& compound, const Library& library, cons
         d.warnings.push_back("formulation: " + hint);
       }
     }
-    std::string medium = request.dilution_medium;
-    if (medium.empty()) {
-      medium = request.route == "parenteral" ? "plasma-7.4" : request.route == "oral" ? "sif-6.8" : "saline-0.9";
-      if (!library.media.count(medium)) medium = "none";
-    }
-    if (medium == "none") return;
+    if (dilution_medium == "none") return;
     DilutionOptions dl;
-    dl.medium_id = medium;
+    dl.medium_id = dilution_medium;
     DilutionResult r = analyse_dilution(formulation, library, dl, std::move(inputs));
     if (r.usable()) d.dilution = std::move(r);
     else d.warnings.push_back("dilution: " + r.message);

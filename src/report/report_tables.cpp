@@ -175,6 +175,8 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                     "min conc (mM)", "recommended (mM)", "set by", "titrant", "titrant (mM)", "nearest pKa", "pH after dose",
                     "capacity (mM per pH)", "osmolarity (mOsm/L)", "pH at " + fixed(sr.low_temperature_C, 0) + " °C",
                     "pH at " + fixed(sr.high_temperature_C, 0) + " °C", "solid left"}, {}};
+    const bool diluted = !sr.dilution_medium.empty();
+    if (diluted) st.header.push_back("highest supersaturation on dilution into " + sr.dilution_medium + " (as screened)");
     for (const ScreenResult& r : sr.results) {
       const bool computed = r.status == ScreenStatus::kOk || r.status == ScreenStatus::kNotAchievable;
       const double conc = r.min_conc_mol_per_L.value_or(r.conc_used_mol_per_L);
@@ -192,6 +194,9 @@ std::vector<ReportTable> report_tables(const ReportData& d) {
                          computed ? sig(r.capacity_mol_per_L_per_pH * 1e3, 3) : "",
                          computed ? fixed(r.osmolarity_mOsm_per_L, 1) : "", computed ? fixed(r.pH_at_5C, 2) : "",
                          computed ? fixed(r.pH_at_40C, 2) : "", computed ? r.drug_solid : ""});
+      if (diluted) {
+        st.rows.back().push_back(std::isfinite(r.dilution_max_supersaturation) ? sig(r.dilution_max_supersaturation, 3) : "");
+      }
     }
     tables.push_back(st);
   }

@@ -388,6 +388,25 @@ TEST(Report, SummarySaysWhenTheRecommendedBufferHoldsAtTheRunTemperatureOnly) {
   EXPECT_STREQ(table.select_node("tbody/tr[1]/*[3]").node().child_value(), "no");
 }
 
+// The parenteral report dilutes every ok buffer of its screen into plasma as the screen command
+// does, and for the leading buffer that agrees with the dilution section, which dilutes the
+// recipe made isotonic with dextrose (a non-electrolyte, so the ratio barely moves): within 2 %.
+TEST(Report, ScreenTableGivesEachBuffersDilutionAndTheLeaderAgreesWithTheDilutionSection) {
+  const ReportData& d = fixture().data;
+  ASSERT_TRUE(d.screen && d.dilution);
+  ASSERT_EQ(d.screen->dilution_medium, "plasma-7.4");
+  double section = 0.0;
+  for (const DilutionPoint& p : d.dilution->points) section = std::max(section, p.supersaturation_ratio);
+  const ScreenResult& lead = d.screen->results.front();
+  ASSERT_EQ(lead.status, ScreenStatus::kOk);
+  EXPECT_NEAR(lead.dilution_max_supersaturation / section, 1.0, 0.02);
+  for (const ReportTable& t : report_tables(d)) {
+    if (t.file != "screen.csv") continue;
+    EXPECT_EQ(t.header.back(), "highest supersaturation on dilution into plasma-7.4 (as screened)");
+    EXPECT_EQ(t.rows.front().back(), sig(lead.dilution_max_supersaturation, 3));
+  }
+}
+
 TEST(Report, RoundUp125) {
   EXPECT_DOUBLE_EQ(round_up_125(0.000656), 0.001);
   EXPECT_DOUBLE_EQ(round_up_125(0.00415), 0.005);
