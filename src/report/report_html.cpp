@@ -401,7 +401,13 @@ void write_screen(const Page& pg) {
       << fixed(sr.low_temperature_C, 0) << " and at " << fixed(sr.high_temperature_C, 0)
       << " °C (pH within the tolerance there, no drug solid forming) come first; within each group they "
          "are ranked by the minimum concentration, then by their pH change between "
-      << fixed(sr.low_temperature_C, 0) << " and " << fixed(sr.high_temperature_C, 0) << " °C.</p>\n";
+      << fixed(sr.low_temperature_C, 0) << " and " << fixed(sr.high_temperature_C, 0) << " °C."
+      << (sr.dilution_medium.empty()
+              ? std::string()
+              : " The last column dilutes each ok formulation as screened (no tonicity reagent) 1:1 to 1:100 into " +
+                    esc(sr.dilution_label) + ", as in the dilution section: its highest supersaturation ratio "
+                    "(above 1 the drug may precipitate).")
+      << "</p>\n";
   if (const ScreenResult* lead = leading_buffer(d)) {
     out << "<p class=\"lead-statement\"><strong>Leading buffer: " << esc(lead->name) << " at "
         << esc(sig(lead->recommended_conc_mol_per_L.value_or(lead->conc_used_mol_per_L) * 1e3, 3)) << " mM"
