@@ -422,7 +422,7 @@ void write_screen(const Page& pg) {
       const std::vector<std::string> items = screen_fallback_items(sr);
       if (!items.empty()) {
         out << "<ul>\n";
-        for (const std::string& item : items) out << "<li>" << esc(item) << "</li>\n";
+        for (const std::string& item : items) out << "<li>" << esc(with_plus_minus_sign(item)) << "</li>\n";
         out << "</ul>\n";
       }
     }

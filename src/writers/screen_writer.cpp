@@ -290,6 +290,10 @@ std::vector<std::string> screen_fallback_items(const ScreenReport& rep) {
     line += " (set by " + r.binding + "; pH " + fixed(r.pH_at_5C, 2) + " at " + fixed(rep.low_temperature_C, 0) +
             " °C, " + fixed(r.pH_at_40C, 2) + " at " + fixed(rep.high_temperature_C, 0) + " °C";
     if (!r.holds_at_storage) line += ": " + storage_failure_text(rep, r);
+    if (std::isfinite(r.dilution_max_supersaturation)) {
+      line += "; diluted into " + rep.dilution_medium + ", supersaturation at most " +
+              sig(r.dilution_max_supersaturation, 3) + (r.dilution_max_supersaturation > 1.0 ? ", may precipitate" : "");
+    }
     line += ")";
     items.push_back(line);
   }

@@ -8,6 +8,7 @@
 #include "pkarta/analyses/screen.h"
 #include "pkarta/chem/water.h"
 #include "pkarta/io/xml_input.h"
+#include "pkarta/writers/screen_writer.h"
 #include "test_compounds.h"
 
 namespace pkarta {
@@ -69,6 +70,28 @@ TEST(ScreenFallback, PremadeFailureGivesTheAdjustedBuffersThatHoldTheTarget) {
     EXPECT_NEAR(r.pH_after_drug, opt.target_pH, opt.tolerance_pH) << r.buffer;
     ASSERT_TRUE(r.recommended_conc_mol_per_L) << r.buffer;
   }
+}
+
+// The same case: tris moves by about -0.03 pH per °C (Good et al. 1966, Biochemistry 5, 467;
+// dH 47.45 kJ/mol, Goldberg et al. 2002), so adjusted to 7.4 at 25 °C it reads some 0.5 higher
+// at 5 °C; phosphate moves by about -0.003 per °C (the Ph. Eur. 0.025/0.025 standard). The
+// adjusted list puts phosphate first and says why tris does not hold in storage.
+TEST(ScreenFallback, AdjustedListPutsTheBufferThatHoldsInStorageFirstAndSaysWhy) {
+  const Library lib = builtin_library();
+  ScreenOptions opt;
+  opt.target_pH = 7.4;
+  opt.buffers = {"phosphate", "tris"};
+  const ScreenReport rep = screen(lib, acid_job(0.02), opt);
+  ASSERT_TRUE(rep.fallback);
+  ASSERT_EQ(rep.fallback->adjusted.size(), 2u);
+  EXPECT_EQ(rep.fallback->adjusted[0].buffer, "phosphate");
+  EXPECT_TRUE(rep.fallback->adjusted[0].holds_at_storage);
+  EXPECT_FALSE(rep.fallback->adjusted[1].holds_at_storage);
+  EXPECT_GT(rep.fallback->adjusted[1].pH_at_5C - 7.4, 0.4);
+  const std::vector<std::string> items = screen_fallback_items(rep);
+  ASSERT_EQ(items.size(), 2u);
+  EXPECT_EQ(items[0].find("outside"), std::string::npos) << items[0];
+  EXPECT_NE(items[1].find("outside 7.40 +/- 0.10 at 5 °C"), std::string::npos) << items[1];
 }
 
 TEST(ScreenFallback, NoFallbackWhenABufferHoldsTheTargetOrTheScreenIsAdjusted) {
