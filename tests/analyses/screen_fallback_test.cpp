@@ -27,6 +27,14 @@ ScreenJob acid_job(double dose_mol_per_L) {
   return j;
 }
 
+// Phosphate and tris at pH 7.4, the other options at their defaults.
+ScreenOptions phosphate_and_tris_at_7_4() {
+  ScreenOptions opt;
+  opt.target_pH = 7.4;
+  opt.buffers = {"phosphate", "tris"};
+  return opt;
+}
+
 TEST(ScreenFallback, DoseTitrantMatchesTheChargeBalanceByHand) {
   // With activity coefficients 1, the strong base that brings C mol/L of a monoprotic acid to
   // pH p in water is, from the charge balance [Na+] + [H+] = [A-] + [OH-]:
@@ -53,9 +61,7 @@ TEST(ScreenFallback, PremadeFailureGivesTheAdjustedBuffersThatHoldTheTarget) {
   // ionisation is more than 0.1 M phosphate or tris absorbs within 0.1 pH, so no buffer is ok;
   // adjusted after the dose, both hold the target by construction of that preparation.
   const Library lib = builtin_library();
-  ScreenOptions opt;
-  opt.target_pH = 7.4;
-  opt.buffers = {"phosphate", "tris"};
+  const ScreenOptions opt = phosphate_and_tris_at_7_4();
   const ScreenReport rep = screen(lib, acid_job(0.02), opt);
   for (const ScreenResult& r : rep.results) EXPECT_NE(r.status, ScreenStatus::kOk) << r.buffer;
   ASSERT_TRUE(rep.fallback);
@@ -78,10 +84,7 @@ TEST(ScreenFallback, PremadeFailureGivesTheAdjustedBuffersThatHoldTheTarget) {
 // adjusted list puts phosphate first and says why tris does not hold in storage.
 TEST(ScreenFallback, AdjustedListPutsTheBufferThatHoldsInStorageFirstAndSaysWhy) {
   const Library lib = builtin_library();
-  ScreenOptions opt;
-  opt.target_pH = 7.4;
-  opt.buffers = {"phosphate", "tris"};
-  const ScreenReport rep = screen(lib, acid_job(0.02), opt);
+  const ScreenReport rep = screen(lib, acid_job(0.02), phosphate_and_tris_at_7_4());
   ASSERT_TRUE(rep.fallback);
   ASSERT_EQ(rep.fallback->adjusted.size(), 2u);
   EXPECT_EQ(rep.fallback->adjusted[0].buffer, "phosphate");
