@@ -268,17 +268,21 @@ void check_dose(const std::string& option, const Compound& compound, const std::
   }
 }
 
+void check_medium_option(const Library& library, const std::string& option, const std::string& id) {
+  try {
+    library.medium(id);
+  } catch (const InputError& e) {
+    throw InputError(SourceLocation{option, 0, 0}, e.message());
+  }
+}
+
 Mixture build_formulation(const FormulationOptions& f, const Library& library,
                           std::vector<std::string>* inputs, Compound* compound_out) {
   Mixture m;
   m.temperature_C = option_temperature("--temp", f.temperature);
   m.activity = activity_model_of(f.activity);
   if (!f.medium.empty()) {
-    try {
-      library.medium(f.medium);
-    } catch (const InputError& e) {
-      throw InputError(SourceLocation{"--medium", 0, 0}, e.message());
-    }
+    check_medium_option(library, "--medium", f.medium);
     add_medium(m, library, f.medium);
     if (inputs) inputs->push_back("medium " + f.medium);
   }

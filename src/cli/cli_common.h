@@ -96,6 +96,10 @@ long long option_count(const std::string& option, const std::string& text, doubl
 
 double option_temperature(const std::string& option, const std::string& text);
 
+/// Refuses a medium id the library does not have (InputError naming `option`, with the
+/// library's "did you mean" or its list of media).
+void check_medium_option(const Library& library, const std::string& option, const std::string& id);
+
 /// Splits "A=B" of --add; errors name the option.
 std::pair<std::string, std::string> split_assignment(const std::string& option, const std::string& text);
 

@@ -73,11 +73,7 @@ int run_dilute(const Args& args) {
     check_table_options(tables, common.format, dilute_table_info(), {f.compound_file});
     if (into.empty()) throw InputError(SourceLocation{"--into", 0, 0}, "dilute needs --into MEDIUM");
     const Library lib = load_libraries(common);
-    try {
-      lib.medium(into);
-    } catch (const InputError& e) {
-      throw InputError(SourceLocation{"--into", 0, 0}, e.message());
-    }
+    check_medium_option(lib, "--into", into);
     DilutionOptions options;
     options.medium_id = into;
     options.ratios = parse_ratios(ratios);

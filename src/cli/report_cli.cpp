@@ -88,11 +88,7 @@ std::vector<std::string> make_report(const ReportOptions& r, const CommonOptions
                      "unknown route \"" + r.route + "\", expected oral, parenteral, ophthalmic, topical or any");
   }
   req.route = r.route;
-  if (!r.into.empty() && r.into != "none" && !library.media.count(r.into)) {
-    std::string known;
-    for (const auto& m : library.media) known += (known.empty() ? "" : ", ") + m.first;
-    throw InputError(SourceLocation{"--into", 0, 0}, "unknown medium \"" + r.into + "\" (media: " + known + ")");
-  }
+  if (!r.into.empty() && r.into != "none") check_medium_option(library, "--into", r.into);
   req.dilution_medium = r.into;
   if (!r.dose_mg.empty()) req.classify_dose_mg = option_number("--dose-mg", r.dose_mg, 1e-6, 1e7);
   const Compound compound = load_compound(r.compound_file, library);

@@ -215,11 +215,7 @@ int run_screen(const Args& args) {
     if (into.empty()) {
       if (route == "parenteral" && lib.media.count("plasma-7.4")) opt.dilution_medium = "plasma-7.4";
     } else if (into != "none") {
-      if (!lib.media.count(into)) {
-        std::string known;
-        for (const auto& m : lib.media) known += (known.empty() ? "" : ", ") + m.first;
-        throw InputError(SourceLocation{"--into", 0, 0}, "unknown medium \"" + into + "\" (media: " + known + ")");
-      }
+      check_medium_option(lib, "--into", into);
       opt.dilution_medium = into;
     }
     if (buffers != "all") {

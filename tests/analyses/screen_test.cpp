@@ -735,7 +735,7 @@ TEST(ScreenCli, BadInputExitsTwoWithAClearMessage) {
       {"--dose 1mg/mL --target-ph 6 --form tartrate", "has no salt 'tartrate'"},
       {"--dose 1mg/mL --target-ph 6 --buffers HEPES --route parenteral", "--route: none of the selected buffers"},
       {"--dose 1mg/mL --target-ph 6 --format xml", "--format: unknown format"},
-      {"--dose 1mg/mL --target-ph 6 --into seawater", "--into: unknown medium \"seawater\" (media: "},
+      {"--dose 1mg/mL --target-ph 6 --into seawater", "--into: unknown medium 'seawater' (known: "},
   };
   for (const Case& c : cases) {
     const RunResult r = run(base + c.args);

@@ -694,7 +694,7 @@ TEST(ReportCli, WritesTheReportAndRefusesBadOutputs) {
   EXPECT_NE(r.err.find("mesylate"), std::string::npos) << r.err;
   r = shell(bin + " report --compound compounds/demo-acid.xml --dose 1mg/mL --target-ph 7 --into seawater -o " + dir + "/x.html");
   EXPECT_EQ(r.code, 2);
-  EXPECT_NE(r.err.find("--into: unknown medium \"seawater\""), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("--into: unknown medium 'seawater'"), std::string::npos) << r.err;
   r = shell(bin + " report --compound compounds/demo-acid.xml -o " + dir + "/report");
   EXPECT_EQ(r.code, 2);
   EXPECT_NE(r.err.find("ending in .html"), std::string::npos) << r.err;
