@@ -214,6 +214,21 @@ Mixture diluted_mixture(const Mixture& formulation, const Library& library, cons
   return m;
 }
 
+DilutionConditions dilution_conditions(const Library& library, const DilutionOptions& options,
+                                       double formulation_temperature_C) {
+  const Medium& medium = library.medium(options.medium_id);
+  DilutionConditions c;
+  c.physiological = is_physiological_medium(library, medium.id);
+  c.temperature_C = options.temperature_C ? *options.temperature_C
+                    : c.physiological     ? 37.0
+                                          : formulation_temperature_C;
+  c.open_co2 = options.blood_model == BloodModel::kOpen || (options.blood_model == BloodModel::kAuto && c.physiological);
+  c.words = medium.id + " (" + medium.name + ")" +
+            (c.open_co2 ? ", open CO2 at pCO2 " + sig(options.pco2_mmHg, 3) + " mmHg" : std::string()) + ", " +
+            fixed(c.temperature_C, 0) + " °C";
+  return c;
+}
+
 std::string dilution_medium_label(const DilutionResult& r, bool brief) {
   if (r.blood.empty()) return r.medium_name;
   const std::string what = r.blood == "whole" ? "whole blood" : "plasma";
@@ -232,9 +247,9 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
   r.medium_id = medium.id;
   r.medium_name = medium.name;
   Mixture form = formulation;
-  const bool physiological = is_physiological_medium(library, medium.id);
-  if (options.temperature_C) form.temperature_C = *options.temperature_C;
-  else if (physiological) form.temperature_C = 37.0;
+  const DilutionConditions conditions = dilution_conditions(library, options, formulation.temperature_C);
+  const bool physiological = conditions.physiological;
+  form.temperature_C = conditions.temperature_C;
   {
     Mixture med;
     add_medium(med, library, medium.id);
@@ -242,8 +257,7 @@ DilutionResult analyse_dilution(const Mixture& formulation, const Library& libra
       throw InputError("the open bicarbonate model needs a medium holding bicarbonate; " + medium.id + " has none");
     }
   }
-  const bool open = options.blood_model == BloodModel::kOpen ||
-                    (options.blood_model == BloodModel::kAuto && physiological);
+  const bool open = conditions.open_co2;
   if (physiological || options.blood_model != BloodModel::kAuto) r.blood_model = open ? "open" : "closed";
   const double co2 = options.pco2_mmHg * options.co2_solubility_mM_per_mmHg * 1e-3;
   r.temperature_C = form.temperature_C;

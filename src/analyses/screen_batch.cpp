@@ -232,14 +232,11 @@ std::vector<ScreenReport> screen_batch(const Library& library, const std::vector
   check_options(options);
   for (const ScreenJob& job : jobs) check_job(job);
   const std::vector<const Buffer*> buffers = screen_candidates(library, options);
-  std::string dilution_label;
+  std::string dilution_label;  // throws for an unknown medium before any work
   if (!options.dilution_medium.empty()) {
-    if (!library.media.count(options.dilution_medium)) {
-      throw InputError("unknown dilution medium \"" + options.dilution_medium + "\" (pkarta library list media)");
-    }
-    const Medium& m = library.medium(options.dilution_medium);
-    dilution_label = m.id + ", " + m.name + (is_physiological_medium(library, m.id) ? ", open CO2 at pCO2 40 mmHg, 37 °C"
-                                                                                   : ", at " + fixed(options.temperature_C, 0) + " °C");
+    DilutionOptions d;
+    d.medium_id = options.dilution_medium;
+    dilution_label = dilution_conditions(library, d, options.temperature_C).words;
   }
   int threads = batch.threads;
   if (threads <= 0) threads = std::max(1u, std::thread::hardware_concurrency());

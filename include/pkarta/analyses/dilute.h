@@ -121,6 +121,20 @@ Mixture diluted_mixture(const Mixture& formulation, const Library& library, cons
 /// True for a medium holding the carbonate system whose id or name says plasma or blood.
 bool is_physiological_medium(const Library& library, const std::string& medium_id);
 
+/// How analyse_dilution dilutes a formulation made at `formulation_temperature_C` with these
+/// options: whether the medium is physiological, the temperature of the diluted mixture
+/// (options.temperature_C, else 37 °C for a physiological medium, else the formulation's) and
+/// whether CO2 is open (held at options.pco2_mmHg).
+struct DilutionConditions {
+  bool physiological = false;
+  double temperature_C = 25.0;
+  bool open_co2 = false;
+  /// "plasma-7.4 (plasma-like electrolyte (simplified)), open CO2 at pCO2 40 mmHg, 37 °C"
+  std::string words;
+};
+DilutionConditions dilution_conditions(const Library& library, const DilutionOptions& options,
+                                       double formulation_temperature_C);
+
 /// The mixture with its carbonate total adjusted so that dissolved CO2 (the carbonate species
 /// with no proton removed) equals `co2_mol_per_L`, strong ions unchanged: an outer 1-D solve on
 /// the total carbonate around the closed-system solver (bisection on log C_T; [CO2] rises with
