@@ -274,7 +274,8 @@ Recipe make_recipe(const Library& library, const RecipeOptions& o) {
   out.ionic_strength_mol_per_L = e.ionic_strength_mol_per_L;
   out.osmolarity_mOsm_per_L = e.osmolarity_mOsm_per_L;
   out.osmolality_estimate_mOsm_per_kg = kOsmoticCoefficient * e.osmolarity_mOsm_per_L / rho;
-  out.capacity_mol_per_L_per_pH = buffer_capacity(recipe_mixture(library, out, o.activity));
+  const Mixture made = recipe_mixture(library, out, o.activity);  // the reagents as finally weighed
+  out.capacity_mol_per_L_per_pH = buffer_capacity(made);
   out.isotonic = o.isotonic;
   if (o.isotonic) {
     out.tonicity_method = kTonicityMethod;
@@ -298,9 +299,7 @@ Recipe make_recipe(const Library& library, const RecipeOptions& o) {
   for (const std::string& w : e.warnings) out.warnings.push_back(w);
   // Where Davies is known to drift the activity models part: the pH the same weights give under
   // the two models made for that range, what the pH meter may show before the adjustment.
-  if (const std::string hint = activity_model_hint(recipe_mixture(library, out, o.activity), e); !hint.empty()) {
-    out.warnings.push_back(hint + ". Expect to adjust the pH, or size the recipe with --activity ion-pairs");
-  }
+  if (std::string w = recipe_activity_warning(made, e); !w.empty()) out.warnings.push_back(std::move(w));
   for (const RecipeReagent& r : out.reagents) {
     if (r.state == "liquid") {
       out.notes.push_back(r.id + " is a liquid: weigh it, or convert the mass to a volume with its density");
@@ -313,6 +312,11 @@ Recipe make_recipe(const Library& library, const RecipeOptions& o) {
     out.warnings.push_back("the titrant volume exceeds half the final volume: use a stronger titrant");
   }
   return out;
+}
+
+std::string recipe_activity_warning(const Mixture& mixture, const Equilibrium& e) {
+  const std::string hint = activity_model_hint(mixture, e);
+  return hint.empty() ? hint : hint + ". Expect to adjust the pH, or size the recipe with --activity ion-pairs";
 }
 
 Mixture recipe_mixture(const Library& library, const Recipe& recipe, ActivityModel activity) {

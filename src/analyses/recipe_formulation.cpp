@@ -203,9 +203,7 @@ Formulation make_formulation(const Library& library, const RecipeOptions& option
     f.saturation_ratio = e.drug->saturation_ratio;
   }
   for (const std::string& w : e.warnings) f.warnings.push_back(w);
-  if (const std::string hint = activity_model_hint(m, e); !hint.empty()) {
-    f.warnings.push_back(hint + ". Expect to adjust the pH, or size the recipe with --activity ion-pairs");
-  }
+  if (std::string w = recipe_activity_warning(m, e); !w.empty()) f.warnings.push_back(std::move(w));
   auto ph_at = [&](double T) {
     Mixture x = m;
     x.temperature_C = T;

@@ -589,10 +589,9 @@ ScreenResult screen_buffer(const Library& library, const Buffer& buffer, const S
   };
   at_storage(options.low_temperature_C, r.pH_at_5C, r.drug_solid_at_5C);
   at_storage(options.high_temperature_C, r.pH_at_40C, r.drug_solid_at_40C);
-  const double storage_limit = options.max_drift_pH ? *options.max_drift_pH : tol;
-  auto new_solid = [&](const std::string& solid) { return solid != "none" && solid != r.drug_solid; };
+  const double storage_limit = options.storage_limit_pH();
   r.holds_at_storage = within(r.pH_at_5C, target, storage_limit) && within(r.pH_at_40C, target, storage_limit) &&
-                       !new_solid(r.drug_solid_at_5C) && !new_solid(r.drug_solid_at_40C);
+                       !r.new_solid_in_storage(r.drug_solid_at_5C) && !r.new_solid_in_storage(r.drug_solid_at_40C);
   r.pH_after_acid_challenge = load > 0 ? challenged(used, load) : kNaN;
   r.pH_after_base_challenge = load > 0 ? challenged(used, -load) : kNaN;
 

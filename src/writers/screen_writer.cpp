@@ -301,7 +301,7 @@ std::vector<std::string> screen_fallback_items(const ScreenReport& rep) {
 }
 
 std::string storage_failure_text(const ScreenReport& rep, const ScreenResult& r) {
-  const double limit = rep.max_drift_pH ? *rep.max_drift_pH : rep.tolerance_pH;
+  const double limit = rep.storage_limit_pH();
   std::vector<std::string> parts;
   const bool cold = !(std::fabs(r.pH_at_5C - rep.target_pH) <= limit);
   const bool warm = !(std::fabs(r.pH_at_40C - rep.target_pH) <= limit);
@@ -311,7 +311,7 @@ std::string storage_failure_text(const ScreenReport& rep, const ScreenResult& r)
                     (cold && warm ? lo + " and " + hi : cold ? lo : hi));
   }
   auto solid_text = [&](const std::string& solid, const std::string& where) {
-    if (solid != "none" && solid != r.drug_solid) {
+    if (r.new_solid_in_storage(solid)) {
       parts.push_back("the dose does not stay dissolved at " + where + " (" + solid + " solid)");
     }
   };
@@ -334,11 +334,11 @@ std::string screen_storage_note(const ScreenReport& rep) {
     }
     list += (list.empty() ? "" : ", ") + r.buffer + " " + fixed(r.pH_at_5C, 2) + " / " + fixed(r.pH_at_40C, 2);
     for (const auto& [solid, where] : {std::pair{r.drug_solid_at_5C, lo}, std::pair{r.drug_solid_at_40C, hi}}) {
-      if (solid != "none" && solid != r.drug_solid) list += " (" + solid + " solid at " + where + ")";
+      if (r.new_solid_in_storage(solid)) list += " (" + solid + " solid at " + where + ")";
     }
   }
   if (list.empty()) return "";
-  const double limit = rep.max_drift_pH ? *rep.max_drift_pH : rep.tolerance_pH;
+  const double limit = rep.storage_limit_pH();
   const std::string t = fixed(rep.temperature_C, 0) + " °C";
   return "ok (" + t + "): holds the target at " + t + " only; the same formulation stored at " + lo + " / " + hi +
          " reads pH " + list + " (target " + fixed(rep.target_pH, 2) + " +/- " + fixed(limit, 2) + ")." +

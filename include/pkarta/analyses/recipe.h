@@ -107,6 +107,10 @@ Recipe make_recipe(const Library& library, const RecipeOptions& options);
 Mixture recipe_mixture(const Library& library, const Recipe& recipe,
                        ActivityModel activity = ActivityModel::kDavies);
 
+/// Where the activity models part for a recipe's solved state `e` of `mixture` (activity_model_hint),
+/// that warning with what to do at the bench; empty otherwise.
+std::string recipe_activity_warning(const Mixture& mixture, const Equilibrium& e);
+
 /// Parses a volume: "1L", "500mL", "0.25 L", "250 ml", "1000 uL". Returns litres.
 /// Throws InputError (without location) for no unit, an unknown unit, or a volume <= 0.
 double parse_volume_L(std::string_view text);

@@ -78,6 +78,9 @@ struct ScreenOptions {
   /// With a value: the pH at low_ and high_temperature_C (storage ends) must lie within this of
   /// the target. Without: the storage pH is reported only.
   std::optional<double> max_drift_pH;
+  /// How far from the target the pH may be at the storage temperatures for a buffer to hold
+  /// there: max_drift_pH when given, else the tolerance.
+  double storage_limit_pH() const { return max_drift_pH ? *max_drift_pH : tolerance_pH; }
   /// Recommended strength: the minimum rounded up to a multiple of this (mol/L); 0: to the
   /// 1-2-5 series in mM starting at 1 mM.
   double round_step_mol_per_L = 0.0;
@@ -168,6 +171,9 @@ struct ScreenResult {
   /// target (max_drift_pH when given, else the tolerance) and no drug solid there that is not
   /// present at the run temperature.
   bool holds_at_storage = true;
+  /// A drug solid at a storage temperature (drug_solid_at_5C or _40C) that the run temperature
+  /// does not have.
+  bool new_solid_in_storage(const std::string& solid) const { return solid != "none" && solid != drug_solid; }
   /// With ScreenOptions::dilution_medium, for ok results: the highest supersaturation ratio of the
   /// drug over the dilution ratios (above 1: it may precipitate) and the ratio where it is; NaN and
   /// 0 when not computed.
@@ -236,6 +242,8 @@ struct ScreenReport {
   double challenge_mol_per_L = 0.0;
   double min_capacity_mol_per_L_per_pH = 0.0;
   std::optional<double> max_drift_pH;
+  /// As ScreenOptions::storage_limit_pH().
+  double storage_limit_pH() const { return max_drift_pH ? *max_drift_pH : tolerance_pH; }
   double round_step_mol_per_L = 0.0;
   std::vector<ScreenResult> results;
   /// Set when preparation is premade and no result is ok (see ScreenFallback).
