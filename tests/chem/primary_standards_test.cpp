@@ -138,8 +138,9 @@ TEST_F(PrimaryStandards, SitWithin003From5To50C) {
 // K+ with the phosphate, citrate and carbonate species (constants in docs/data-sources.md,
 // "Activity coefficients") take part of the standards' sodium and potassium out of solution.
 // Tolerance 0.015 at every temperature, near the scale's own consistency at the ends of the
-// range (0.013 at 10 and 40 °C, Hetzer et al. 1977); and at 25 °C the mean |pH - pH(S)| over the seven standards may not exceed that of Davies by more
-// than 0.001, the last digit to which pH(S) is given.
+// range (0.013 at 10 and 40 °C, Hetzer et al. 1977); and at 25 °C the mean |pH - pH(S)| over
+// the seven standards may not exceed that of Davies by more than 0.001, the last digit to which
+// pH(S) is given.
 TEST_F(PrimaryStandards, IonPairsWithin0015From5To50CAndAtLeastAsGoodAsDaviesAt25C) {
   double mean_pairs = 0.0, mean_davies = 0.0;
   for (const Standard& s : standards()) {
