@@ -3,8 +3,6 @@
 
 #include "pkarta/analyses/screen.h"
 
-#include "pkarta/analyses/dilute.h"
-
 #include <algorithm>
 #include <atomic>
 #include <cmath>
@@ -14,6 +12,7 @@
 #include <thread>
 
 #include "pkarta/base/format.h"
+#include "pkarta/analyses/dilute.h"
 #include "pkarta/analyses/mix.h"
 #include "pkarta/chem/mixture_builder.h"
 #include "pkarta/analyses/profile.h"
